@@ -1,0 +1,12 @@
+// Subcommands of the `swathguard` executable. Each lives in its own cmd_<name>.cpp and registers
+// itself here; main.cpp calls every registration function below.
+#pragma once
+
+#include <CLI/CLI.hpp>
+
+namespace sg::app {
+
+// Each function adds one subcommand (with its options and callback) to `app`.
+// Add a line here and a call in main.cpp when adding a command.
+
+}  // namespace sg::app

@@ -1,0 +1,23 @@
+// swathguard: entry point. Parses the command line and runs one subcommand.
+#include <cstdio>
+#include <exception>
+
+#include <CLI/CLI.hpp>
+
+#include "app/commands.hpp"
+
+int main(int argc, char** argv) {
+    CLI::App app{"swathguard: live magnetometer survey coverage, checks, gaps and infill"};
+    app.set_version_flag("--version", "swathguard 0.1.0");
+    app.require_subcommand(1);
+
+    try {
+        app.parse(argc, argv);
+    } catch (const CLI::ParseError& e) {
+        return app.exit(e);
+    } catch (const std::exception& e) {
+        std::fprintf(stderr, "swathguard: %s\n", e.what());
+        return 1;
+    }
+    return 0;
+}
