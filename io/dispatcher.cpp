@@ -57,7 +57,8 @@ void Dispatcher::onLine(const ReceivedLine& line) {
     case log::DecodeStatus::Unsupported: ++c.unsupported; break;
     case log::DecodeStatus::NotDecoded: ++c.not_decoded; break;
     }
-    ++c.by_reason[raw.reason.empty() ? std::string("ok") : raw.reason];
+    // Count by the reason code alone (the stored reason text may add a detail after ": ").
+    ++c.by_reason[raw.reason.empty() ? std::string("ok") : raw.reason.substr(0, raw.reason.find(':'))];
     m_batch.raw.push_back(std::move(raw));
 }
 
