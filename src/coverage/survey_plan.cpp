@@ -321,6 +321,7 @@ std::optional<double> meanLineAxisDeg(const std::vector<PlanLine>& lines) {
     if (lines.empty() || std::hypot(c, s) < 1e-9) return std::nullopt;
     double deg = 0.5 * std::atan2(s, c) * 180.0 / std::numbers::pi;
     if (deg < 0.0) deg += 180.0;
+    if (deg > 180.0 - 1e-9) deg = 0.0;  // -0 and rounding just below 0 mean the same axis
     return deg;
 }
 
