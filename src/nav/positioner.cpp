@@ -144,6 +144,11 @@ void Positioner::addFixProjected(std::int64_t t_ns, double e, double n, int qual
 
     std::uint32_t flags = 0;
     const auto heading = vesselHeadingGrid(t_ns, convergence_rad, flags);
+    // With the tow point straight below the antenna no heading is needed for the offset.
+    if (m_cfg.vessel.tow_point_m[0] == m_cfg.vessel.antenna_m[0] &&
+        m_cfg.vessel.tow_point_m[1] == m_cfg.vessel.antenna_m[1]) {
+        flags &= ~static_cast<std::uint32_t>(kNoHeading);
+    }
     double te = e;
     double tn = n;
     if (heading) {
@@ -243,6 +248,8 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
     if (m_path.empty()) {
         pose.flags |= kNoFix | kNoAltitude;
         pose.easting_m = pose.northing_m = kNaN;
+        pose.heading_grid_rad = pose.heading_true_rad = kNaN;
+        pose.layback_m = pose.cable_out_m = pose.sensor_depth_m = pose.altitude_m = kNaN;
         return pose;
     }
     // Tow point at time t: interpolated on the path, or extrapolated (flagged) past the last fix.
@@ -321,7 +328,7 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
         if (s_fish < m_path.front().s) pose.flags |= kLaybackBeyondHistory;
         fish = pointAtLength(s_fish);
     }
-    pose.flags |= fish.flags & kNoHeading;
+    pose.flags |= fish.flags & (kNoHeading | kHeadingFromCmg);
 
     // Altitude: altimeter, else water depth where the fish is (sounded when the vessel passed
     // there) minus sensor depth.
@@ -360,8 +367,13 @@ void Positioner::placeSensor(const SensorOffset& o, const SensorPose& ref, doubl
     } else {
         p = pointAtLength(s);
     }
-    const double fallback = std::isfinite(p.heading_grid) ? p.heading_grid : 0.0;
-    const double dir = directionAtLength(std::min(s, m_path.back().s), fallback);
+    double dir = directionAtLength(std::min(s, m_path.back().s), p.heading_grid);
+    if (!std::isfinite(dir)) {
+        // The path gives no direction (vessel stopped) and there was no heading either: the
+        // sensor's cross/along offsets cannot be oriented.
+        out.flags |= kNoHeading;
+        dir = 0.0;
+    }
     out.easting_m = p.e + o.cross_m * std::cos(dir);
     out.northing_m = p.n - o.cross_m * std::sin(dir);
     out.heading_grid_rad = wrapTwoPi(dir);

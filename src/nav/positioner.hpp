@@ -37,6 +37,8 @@ enum PoseFlag : std::uint32_t {
     kFixedSensorDepth = 1u << 19,     // sensor depth from the configuration
 };
 inline constexpr std::uint32_t kPoseProblemMask = 0xFFFFu;
+inline constexpr std::uint32_t kAltitudeProblemMask = kNoAltitude;
+inline constexpr std::uint32_t kPositionProblemMask = kPoseProblemMask & ~kAltitudeProblemMask;
 
 enum class AltitudeSource { None, Altimeter, WaterDepthMinusSensorDepth };
 
@@ -51,7 +53,9 @@ struct SensorPose {
     double altitude_m = 0.0;        // sensor above the seabed; meaningful only with a source
     AltitudeSource altitude_source = AltitudeSource::None;
     std::uint32_t flags = 0;
-    bool ok() const { return (flags & kPoseProblemMask) == 0; }
+    bool ok() const { return (flags & kPoseProblemMask) == 0; }                // all usable
+    bool positionOk() const { return (flags & kPositionProblemMask) == 0; }    // position only
+    bool altitudeOk() const { return (flags & kAltitudeProblemMask) == 0; }
 };
 
 // A value series with linear interpolation and an age limit. Times must not go backwards

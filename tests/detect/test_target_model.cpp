@@ -133,6 +133,20 @@ TEST(HalfWidth, WorstOrientationNeverBeatsInduced) {
     EXPECT_NEAR(peakFactorDirect(Orientation::Worst, 60.0 * kDeg, 90.0 * kDeg, 0.0), 0.0, 1e-3);
 }
 
+TEST(PeakFactor, EastWestMirrorSymmetry) {
+    // Mirroring east <-> west leaves a field in the magnetic meridian plane unchanged and turns a
+    // target to starboard of heading psi into one to port of heading -psi, i.e. to starboard of
+    // heading 180 - psi (geometry). The table build relies on this; check it on the direct values.
+    for (Orientation o : {Orientation::Induced, Orientation::Worst}) {
+        for (double hd : {10.0, 35.0, 80.0}) {
+            for (double depr : {15.0, 50.0, 85.0}) {
+                EXPECT_NEAR(peakFactorDirect(o, 0.9, depr * kDeg, hd * kDeg),
+                            peakFactorDirect(o, 0.9, depr * kDeg, (180.0 - hd) * kDeg), 2e-3);
+            }
+        }
+    }
+}
+
 TEST(HalfWidth, SphereEqualsInducedDipoleOfItsMoment) {
     auto cfg = survey(65.0, Orientation::Induced, ModelKind::Sphere);
     const auto spheres = makeModels(cfg);
