@@ -510,24 +510,24 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
         };
         if (model == "mass_rule") {
             c.model = ModelKind::MassRule;
-            c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
             reject({"moment_Am2", "radius_m", "susceptibility", "orientation"},
                    "no such key for model \"mass_rule\" (it uses mass_kg)");
+            c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
         } else {
             c.orientation = t.choice("orientation", {"induced", "worst"}, "worst") == "induced"
                                 ? Orientation::Induced
                                 : Orientation::Worst;
             if (model == "dipole") {
                 c.model = ModelKind::Dipole;
-                c.moment_Am2 = t.number("moment_Am2", 1e-6, 1e9);
                 reject({"mass_kg", "radius_m", "susceptibility"},
                        "no such key for model \"dipole\" (it uses moment_Am2)");
+                c.moment_Am2 = t.number("moment_Am2", 1e-6, 1e9);
             } else {
                 c.model = ModelKind::Sphere;
-                c.radius_m = t.number("radius_m", 1e-3, 100.0);
-                c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
                 reject({"mass_kg", "moment_Am2"},
                        "no such key for model \"sphere\" (it uses radius_m and susceptibility)");
+                c.radius_m = t.number("radius_m", 1e-3, 100.0);
+                c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
             }
         }
         cfg.targets.push_back(std::move(c));
