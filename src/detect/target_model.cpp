@@ -21,6 +21,9 @@ constexpr double kDipoleScale = kMu0Over4Pi * kTeslaToNanoTesla;
 constexpr double kMaxPeakFactor = 2.0;
 
 double wrapTwoPi(double a) {
+    if (a >= 0.0 && a < kTwoPi) return a;  // the usual cases, without fmod
+    if (a < 0.0 && a >= -kTwoPi) return a + kTwoPi;
+    if (a >= kTwoPi && a < 2.0 * kTwoPi) return a - kTwoPi;
     a = std::fmod(a, kTwoPi);
     return a < 0 ? a + kTwoPi : a;
 }
