@@ -194,7 +194,7 @@ TEST(PeakTable, InducedInterpolationErrorIsSmallAndSafe) {
     std::sort(err.begin(), err.end());
     EXPECT_LT(err[err.size() / 2], 0.005);          // median
     EXPECT_LT(err[err.size() * 95 / 100], 0.035);   // 95th percentile
-    EXPECT_LT(worst_over, 0.015);                   // never wider than the truth by > 1.5 % R_T
+    EXPECT_LT(worst_over, 0.02);                    // never wider than the truth by > 2 % R_T
     // The peak factor itself: bilinear in 1-degree depression and 5-degree heading steps.
     double g_err = 0.0;
     for (int i = 0; i < 200; ++i) {
