@@ -10,5 +10,6 @@ namespace sg::app {
 // Add a line here and a call in main.cpp when adding a command.
 void addRecordCommand(CLI::App& app);  // cmd_record.cpp
 void addImportCommand(CLI::App& app);  // cmd_import.cpp
+void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
 
 }  // namespace sg::app
