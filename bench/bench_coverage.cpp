@@ -160,6 +160,25 @@ void BM_Memory20kmSurvey(benchmark::State& state) {
 }
 BENCHMARK(BM_Memory20kmSurvey)->Iterations(1)->Unit(benchmark::kSecond);
 
+// Contiguous coverage: 2 km x 2 km, 112 lines 18 m apart, half-width 10 m (2 m overlap), bearing 30.
+void BM_MemoryContiguousSurvey(benchmark::State& state) {
+    for (auto _ : state) {
+        CoverageRaster r(0.5, kOrigin);
+        {
+            SwathPainter p(r);
+            for (const auto& s : survey(112, 2000.0, 18.0, 10.0, 1.0, 30.0, 1.0)) p.add(s);
+        }
+        state.PauseTiming();
+        const auto touched = r.touchedCells();
+        state.counters["tiles"] = static_cast<double>(r.tileCount());
+        state.counters["touched_cells"] = static_cast<double>(touched);
+        state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
+        state.counters["est_B_per_touched"] = static_cast<double>(r.memoryBytes()) / static_cast<double>(touched);
+        state.ResumeTiming();
+    }
+}
+BENCHMARK(BM_MemoryContiguousSurvey)->Iterations(1)->Unit(benchmark::kSecond);
+
 // ---- gdal comparison export -------------------------------------------------------------------
 
 int gdalExport(const std::string& dir) {
