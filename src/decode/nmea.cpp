@@ -519,39 +519,87 @@ NmeaSentence decodeNmea(std::string_view line) {
     NmeaSentence out;
     // Tolerate a terminator left on by a caller that did not frame the line.
     while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.remove_suffix(1);
-    if (line.find_first_not_of(' ') == std::string_view::npos) {
+    if (line.empty() || (line[0] == ' ' && line.find_first_not_of(' ') == std::string_view::npos)) {
         return fail(std::move(out), Reason::EmptyLine, "");
     }
     if (line.size() > kMaxNmeaBytes) {
         return fail(std::move(out), Reason::TooLong,
                     std::to_string(line.size()) + " bytes > " + std::to_string(kMaxNmeaBytes));
     }
-    for (std::size_t i = 0; i < line.size(); ++i) {
-        const auto c = static_cast<unsigned char>(line[i]);
-        if (c < 0x20 || c >= 0x7F) {
-            return fail(std::move(out), Reason::BinaryBytes,
-                        "byte " + std::to_string(static_cast<unsigned>(c)) + " at offset " +
-                            std::to_string(i));
-        }
-    }
+    auto binaryAt = [&](std::size_t i) {
+        return fail(std::move(out), Reason::BinaryBytes,
+                    "byte " + std::to_string(static_cast<unsigned>(static_cast<unsigned char>(line[i]))) +
+                        " at offset " + std::to_string(i));
+    };
+    auto isBinary = [](char ch) {
+        const auto c = static_cast<unsigned char>(ch);
+        return c < 0x20 || c >= 0x7F;
+    };
     if (line[0] != '$' && line[0] != '!') {
+        for (std::size_t i = 0; i < line.size(); ++i) {
+            if (isBinary(line[i])) return binaryAt(i);
+        }
         return fail(std::move(out), Reason::NotNmea, "does not start with '$' or '!'");
     }
 
-    // Checksum: XOR of the bytes between the start character and '*'.
-    std::string_view body = line.substr(1);
+    // One pass over the body: reject binary bytes, XOR the bytes up to '*' (the checksum covers
+    // the bytes between the start character and '*'), and cut the fields at each ','. The fields
+    // are views into `line`: nothing is allocated.
+    Fields fields;
+    std::string_view address;
+    unsigned x = 0;
+    std::size_t star = std::string_view::npos;
+    bool too_many_fields = false;
+    {
+        std::size_t field_start = 1;
+        bool in_address = true;
+        for (std::size_t i = 1; i < line.size(); ++i) {
+            const char c = line[i];
+            if (isBinary(c)) return binaryAt(i);
+            if (c == '*') {
+                star = i;
+                break;
+            }
+            x ^= static_cast<unsigned char>(c);
+            if (c == ',') {
+                const std::string_view f = line.substr(field_start, i - field_start);
+                if (in_address) {
+                    address = f;
+                    in_address = false;
+                } else if (fields.n < kMaxNmeaFields) {
+                    fields.f[fields.n++] = f;
+                } else {
+                    too_many_fields = true;
+                }
+                field_start = i + 1;
+            }
+        }
+        const std::size_t body_end = star == std::string_view::npos ? line.size() : star;
+        const std::string_view last = line.substr(field_start, body_end - field_start);
+        if (in_address) {
+            address = last;
+        } else if (fields.n < kMaxNmeaFields) {
+            fields.f[fields.n++] = last;
+        } else {
+            too_many_fields = true;
+        }
+        if (star != std::string_view::npos) {
+            for (std::size_t i = star + 1; i < line.size(); ++i) {
+                if (isBinary(line[i])) return binaryAt(i);
+            }
+        }
+    }
+
     bool has_checksum = false;
-    const std::size_t star = body.find('*');
     if (star != std::string_view::npos) {
-        const std::string_view cs = body.substr(star + 1);
-        body = body.substr(0, star);
+        const std::string_view cs = line.substr(star + 1);
         const int hi = cs.size() == 2 ? detail::hexValue(cs[0]) : -1;
         const int lo = cs.size() == 2 ? detail::hexValue(cs[1]) : -1;
         if (hi < 0 || lo < 0) {
             return fail(std::move(out), Reason::BadChecksum,
                         "'*' not followed by exactly two hex digits");
         }
-        const std::uint8_t expected = xorChecksum(body);
+        const auto expected = static_cast<std::uint8_t>(x);
         if (expected != static_cast<std::uint8_t>(hi * 16 + lo)) {
             const char got[3] = {cs[0], cs[1], 0};
             const char want[3] = {detail::kHexUpper[expected >> 4],
@@ -561,24 +609,9 @@ NmeaSentence decodeNmea(std::string_view line) {
         }
         has_checksum = true;
     }
-
-    // Split into fields without allocating.
-    Fields fields;
-    std::string_view address;
-    {
-        std::size_t pos = body.find(',');
-        address = body.substr(0, pos);
-        while (pos != std::string_view::npos) {
-            if (fields.n == kMaxNmeaFields) {
-                return fail(std::move(out), Reason::TooLong,
-                            "more than " + std::to_string(kMaxNmeaFields) + " fields");
-            }
-            const std::size_t next = body.find(',', pos + 1);
-            fields.f[fields.n++] = body.substr(pos + 1, next == std::string_view::npos
-                                                            ? std::string_view::npos
-                                                            : next - pos - 1);
-            pos = next;
-        }
+    if (too_many_fields) {
+        return fail(std::move(out), Reason::TooLong,
+                    "more than " + std::to_string(kMaxNmeaFields) + " fields");
     }
 
     // Address: talker (2) + type (3), or 'P' + maker/type for proprietary sentences.
