@@ -8,5 +8,6 @@ namespace sg::app {
 
 // Each function adds one subcommand (with its options and callback) to `app`.
 // Add a line here and a call in main.cpp when adding a command.
+void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
 
 }  // namespace sg::app
