@@ -12,4 +12,6 @@ void addRecordCommand(CLI::App& app);  // cmd_record.cpp
 void addImportCommand(CLI::App& app);  // cmd_import.cpp
 void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
 
+void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
+
 }  // namespace sg::app

@@ -14,6 +14,8 @@ int main(int argc, char** argv) {
     sg::app::addImportCommand(app);
     sg::app::addSwathCommand(app);
 
+    sg::app::addInspectCommand(app);
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
