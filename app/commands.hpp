@@ -12,6 +12,7 @@ void addRecordCommand(CLI::App& app);  // cmd_record.cpp
 void addImportCommand(CLI::App& app);  // cmd_import.cpp
 void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
 
-void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
+void addInspectCommand(CLI::App& app);
+void addReplayCommands(CLI::App& app);  // cmd_replay.cpp: replay and gaps  // cmd_inspect.cpp: decode a capture file to JSON lines
 
 }  // namespace sg::app

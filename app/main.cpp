@@ -15,6 +15,7 @@ int main(int argc, char** argv) {
     sg::app::addSwathCommand(app);
 
     sg::app::addInspectCommand(app);
+    sg::app::addReplayCommands(app);
 
     try {
         app.parse(argc, argv);

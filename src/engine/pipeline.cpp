@@ -39,8 +39,9 @@ Pipeline::Pipeline(const SurveyConfig& config, std::function<std::int64_t()> nex
 
 void Pipeline::feed(const ReceivedLine& line) {
     ++m_lines;
-    m_decoder.onLine(line);
+    // The clock first: silence at whole seconds before this line is judged without it.
     m_engine->advanceTo(line.utc_ns);
+    m_decoder.onLine(line);
 }
 
 void Pipeline::onSourceEvent(const SourceEvent& event) { m_decoder.onEvent(event); }

@@ -5,6 +5,8 @@
 #include <cmath>
 #include <limits>
 
+#include "detect/swath_plan.hpp"
+
 namespace sg::engine {
 
 namespace {
@@ -63,43 +65,27 @@ SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_
         m_noise.emplace_back(m_cfg.detection.detection.noise_window);
     }
 
-    m_cov_opts = coverage::loadCoverageOptions(sectionOr(root, "coverage"));
-    m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m);
-
-    // Limits derived from the detection model: the altitude at which adjacent lines stop meeting.
+    // Limits derived from the detection model: the altitude at which adjacent lines stop meeting
+    // (detect::planClass, at the noise warn limit and the worst of the line's two directions).
     std::map<std::string, checks::Limits> derived;
+    m_checks = checks::CheckSet::fromConfig(root);  // configured noise limit, for the threshold
     const auto plan_sec = root.optionalTable("plan");
     const double spacing = plan_sec ? plan_sec->number("line_spacing_m", 0.1, 10000.0, 0.0) : 0.0;
     if (spacing > 0.0) {
-        const checks::CheckSet defaults;
-        const double noise_warn = defaults.check("noise").limits().warn;
-        const double threshold = detect::detectionThreshold_nT(
-            m_cfg.detection.detection.min_anomaly_nT, m_cfg.detection.detection.k, noise_warn);
-        double half_extent = 0.0;
-        for (const auto& s : m_cfg.nav.sensors) half_extent = std::max(half_extent, std::abs(s.cross_m));
-        const auto& model = m_models[m_coverage_model];
-        const double burial = model.targetClass().burial_m;
-        // Worst heading and side: the swath edge must reach half the spacing beyond the array.
-        const auto reaches = [&](double altitude_m) {
-            for (int h = 0; h < 24; ++h) {
-                const auto hw = model.halfWidths(altitude_m + burial, h * 15.0 * kDegToRad, threshold);
-                if (std::min(hw.port_m, hw.starboard_m) + half_extent < spacing / 2.0) return false;
-            }
-            return true;
-        };
-        if (reaches(0.05)) {
-            double lo = 0.05, hi = 500.0;
-            for (int i = 0; i < 50; ++i) {
-                const double mid = 0.5 * (lo + hi);
-                (reaches(mid) ? lo : hi) = mid;
-            }
-            m_max_overlap_altitude = lo;
-            checks::Limits l = checks::CheckSet().check("altitude").limits();
-            l.alarm = lo;
-            l.warn = std::max(0.0, lo - 0.5);
+        const double heading = plan_sec->number("survey_heading_deg", 0.0, 360.0, 0.0) * kDegToRad;
+        std::optional<double> lowest;
+        for (double h : {heading, heading + kPi}) {
+            const auto plan = detect::planClass(m_models[m_coverage_model], sensorCross(), 3.0, h,
+                                                planningThreshold_nT(), spacing);
+            const double alt = plan.max_altitude_for_spacing_m.value_or(0.0);
+            lowest = std::min(lowest.value_or(alt), alt);
+        }
+        m_max_overlap_altitude = lowest;
+        if (*lowest > 0.0) {
+            checks::Limits l = m_checks.check("altitude").limits();
+            l.alarm = *lowest;
+            l.warn = std::max(0.0, *lowest - 0.5);
             derived["altitude"] = l;
-        } else {
-            m_max_overlap_altitude = 0.0;
         }
     }
     m_checks = checks::CheckSet::fromConfig(root, derived);
@@ -107,7 +93,7 @@ SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_
     if (m_cfg.survey.epsg) {
         m_crs = std::make_unique<nav::SurveyCrs>(*m_cfg.survey.epsg);
         m_positioner = std::make_unique<nav::Positioner>(m_cfg.nav, m_crs.get());
-        loadPlanAndLines();
+        loadPlan();
     }
 }
 
@@ -117,31 +103,17 @@ void SurveyEngine::ensureCrs(double lon_deg, double lat_deg) {
     if (m_crs) return;
     m_crs = std::make_unique<nav::SurveyCrs>(nav::SurveyCrs::utmForLonLat(lon_deg, lat_deg));
     m_positioner = std::make_unique<nav::Positioner>(m_cfg.nav, m_crs.get());
-    loadPlanAndLines();
-    if (!m_plan) {
-        const auto p = m_crs->forward(lon_deg, lat_deg);
-        m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m,
-                                            {std::floor(p.easting_m), std::floor(p.northing_m)});
-        m_painter = std::make_unique<coverage::SwathPainter>(m_raster, m_cov_opts.max_sample_step_m);
-    }
+    loadPlan();
 }
 
-void SurveyEngine::loadPlanAndLines() {
+void SurveyEngine::loadPlan() {
     const auto root = m_cfg.root();
-    if (auto plan_sec = root.optionalTable("plan")) {
-        m_plan = std::make_unique<coverage::SurveyPlan>(
-            coverage::loadPlan(*plan_sec, coverage::toGridWith(*m_crs)));
-        const auto box = coverage::bounds(m_plan->area);
-        coverage::Point origin{std::floor(box.min_e), std::floor(box.min_n)};
-        if (box.empty()) origin = {};
-        m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m, origin);
-        if (!m_plan->lines.empty()) {
-            coverage::LineTrackerOptions opt;
-            opt.line_spacing_m = m_plan->line_spacing_m > 0 ? m_plan->line_spacing_m : 10.0;
-            m_tracker = std::make_unique<coverage::LineTracker>(m_plan->lines, opt);
-        }
-    }
-    m_painter = std::make_unique<coverage::SwathPainter>(m_raster, m_cov_opts.max_sample_step_m);
+    const auto plan_sec = root.optionalTable("plan");
+    if (!plan_sec) return;
+    auto plan = coverage::loadPlan(*plan_sec, coverage::toGridWith(*m_crs));
+    const auto cov = coverage::loadCoverageOptions(sectionOr(root, "coverage"));
+    const auto gaps = coverage::loadGapOptions(sectionOr(root, "gaps"), plan.surveyHeadingDeg());
+    m_cov = std::make_unique<coverage::SurveyCoverage>(std::move(plan), cov, gaps);
 }
 
 void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int quality) {
@@ -152,8 +124,9 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
     }
     ensureCrs(lon_deg, lat_deg);
     m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);
-    m_last_fix_ns = t_ns;
-    m_checks.update("gnss_silence", t_ns, 0.0);
+    // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
+    m_last_fix_ns = m_clock_ns;
+    m_checks.update("gnss_silence", m_clock_ns, 0.0);
     drainEpisodes();
 }
 
@@ -212,8 +185,8 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     s.quality = quality;
     ++s.samples;
     if (field_nT) {
-        m_last_mag_ns = t_ns;
-        m_checks.update("mag_silence", t_ns, 0.0);
+        m_last_mag_ns = m_clock_ns;
+        m_checks.update("mag_silence", m_clock_ns, 0.0);
     }
     s.noise_nT = noise.sigma_nT();
     processSample(s, t_ns);
@@ -244,8 +217,8 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         valid = false;
         ++m_invalid.no_altitude;
     } else {
-        m_last_altitude_ns = t_ns;
-        m_checks.update("altitude_lost", t_ns, 0.0);
+        m_last_altitude_ns = m_clock_ns;
+        m_checks.update("altitude_lost", m_clock_ns, 0.0);
     }
     const int needed = std::min(kNoiseWarmupDifferences, m_noise[slot].window());
     if (s.field_nT && m_noise[slot].differences() < needed) {
@@ -293,10 +266,11 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
             const double dir_n = std::cos(s.pose.heading_grid_rad);
             std::optional<double> alt;
             if (s.pose.altitude_source != nav::AltitudeSource::None) alt = s.pose.altitude_m;
-            if (m_tracker) {
-                m_run_of_last_sample = m_tracker->update(t_ns, ref, dir_e, dir_n, alt);
-                const int line = m_tracker->activeLine();
-                if (line >= 0) m_deviation = m_tracker->crossTrack(line, ref, dir_e, dir_n);
+            if (m_cov) {
+                m_run_of_last_sample = m_cov->updatePosition(t_ns, ref, dir_e, dir_n, alt);
+                const auto& lines = m_cov->lines();
+                const int line = lines.activeLine();
+                if (line >= 0) m_deviation = lines.crossTrack(line, ref, dir_e, dir_n);
                 else m_deviation.reset();
             }
             if (m_last_ref_pos) {
@@ -309,43 +283,44 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         m_last_ref_pos.reset();
     }
 
-    if (m_painter) {
-        coverage::SwathSample sw;
-        sw.t_ns = t_ns;
-        sw.e_m = s.pose.easting_m;
-        sw.n_m = s.pose.northing_m;
-        sw.dir_e = std::sin(s.pose.heading_grid_rad);
-        sw.dir_n = std::cos(s.pose.heading_grid_rad);
-        sw.left_m = s.half_widths.port_m;
-        sw.right_m = s.half_widths.starboard_m;
-        sw.centre_margin = static_cast<float>(s.centre_margin);
-        sw.valid = valid && s.pose.ok();
-        sw.sensor = s.index;
-        sw.run = m_run_of_last_sample;
-        m_painter->add(sw);
-    }
+    if (m_cov) m_cov->addSample(swathSample(s));
+}
+
+coverage::SwathSample SurveyEngine::swathSample(const SensorState& s) const {
+    coverage::SwathSample sw;
+    sw.t_ns = s.t_ns;
+    sw.e_m = s.pose.easting_m;
+    sw.n_m = s.pose.northing_m;
+    sw.dir_e = std::sin(s.pose.heading_grid_rad);
+    sw.dir_n = std::cos(s.pose.heading_grid_rad);
+    sw.left_m = s.half_widths.port_m;
+    sw.right_m = s.half_widths.starboard_m;
+    sw.centre_margin = static_cast<float>(s.centre_margin);
+    sw.valid = s.valid && s.pose.ok();
+    sw.sensor = s.index;
+    sw.run = m_run_of_last_sample;
+    return sw;
 }
 
 std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
-    if (!outer.valid || !m_plan) return std::nullopt;
-    const double dir_e = std::sin(outer.pose.heading_grid_rad);
-    const double dir_n = std::cos(outer.pose.heading_grid_rad);
-    // Starboard of a direction (e, n) is (n, -e).
+    if (!outer.valid || !m_cov) return std::nullopt;
+    const auto sw = swathSample(outer);
+    const double spacing = m_cov->plan().line_spacing_m;
+    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, spacing > 0 ? spacing : 20.0);
+    if (probe.found) return probe.gap_m;
+    // Nothing covered within a spacing: the area edge, if it is that close, is the neighbour.
+    const double dir_e = sw.dir_e, dir_n = sw.dir_n;
     const double side_e = starboard ? dir_n : -dir_n;
     const double side_n = starboard ? -dir_e : dir_e;
-    const double hw = starboard ? outer.half_widths.starboard_m : outer.half_widths.port_m;
-    const double cell = m_raster.cellSize();
-    const double reach = m_plan->line_spacing_m > 0 ? m_plan->line_spacing_m : 20.0;
-    const int steps = static_cast<int>(reach / cell) + 1;
+    const double hw = starboard ? sw.right_m : sw.left_m;
+    const double cell = m_cov->raster().cellSize();
+    const int steps = static_cast<int>((spacing > 0 ? spacing : 20.0) / cell) + 1;
     for (int k = 1; k <= steps; ++k) {
         const double d = k * cell;
-        const coverage::Point q{outer.pose.easting_m + side_e * (hw + d),
-                                outer.pose.northing_m + side_n * (hw + d)};
-        if (!coverage::contains(m_plan->area, q)) return d - cell;  // the area edge is the neighbour
-        const auto c = m_raster.cellAt(q);
-        if (c.covered() && c.run != m_run_of_last_sample) return d - cell;
+        const coverage::Point q{sw.e_m + side_e * (hw + d), sw.n_m + side_n * (hw + d)};
+        if (!coverage::contains(m_cov->plan().area, q)) return d - cell;
     }
-    return std::nullopt;  // no neighbouring coverage within one spacing: nothing to meet yet
+    return std::nullopt;
 }
 
 void SurveyEngine::updateChecks(TimeNs t_ns) {
@@ -371,7 +346,7 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
                     m_deviation ? std::optional<double>(std::abs(*m_deviation)) : std::nullopt);
     // Forming gap: only while on a planned line; off line it reads 0 so an episode can end.
     double gap = 0.0;
-    if (m_tracker && m_tracker->activeRun() >= 0 && port_most && stbd_most) {
+    if (m_cov && m_cov->lines().activeRun() >= 0 && port_most && stbd_most) {
         const auto p = probeFormingGap(*port_most, false);
         const auto s = probeFormingGap(*stbd_most, true);
         gap = std::max(p.value_or(0.0), s.value_or(0.0));
@@ -414,9 +389,9 @@ int SurveyEngine::acknowledgeAll(TimeNs t_ns) {
 }
 
 void SurveyEngine::chooseLine(int index) {
-    if (!m_tracker) return;
-    if (index < 0) m_tracker->automatic();
-    else m_tracker->choose(index);
+    if (!m_cov) return;
+    if (index < 0) m_cov->lines().automatic();
+    else m_cov->lines().choose(index);
 }
 
 void SurveyEngine::drainEpisodes() {
@@ -433,7 +408,7 @@ void SurveyEngine::drainEpisodes() {
             row.detail = checks::levelName(ep.peak_level);
             m_episode_event[ep.id] = row.id;
             m_rows.events.push_back(std::move(row));
-            if (m_tracker) m_tracker->addAlarm(m_tracker->activeRun());
+            if (m_cov) m_cov->lines().addAlarm(m_cov->lines().activeRun());
             break;
         }
         case Kind::kEscalated: {
@@ -467,43 +442,52 @@ void SurveyEngine::takeRows(log::Batch& batch) {
 }
 
 void SurveyEngine::flushCoverage() {
-    if (m_tracker) m_tracker->refreshCoverage(m_raster);
+    if (!m_cov) return;
+    m_cov->flush();
+    m_cov->lines().refreshCoverage(m_cov->raster());
+}
+
+std::vector<double> SurveyEngine::sensorCross() const {
+    std::vector<double> cross;
+    for (const auto& s : m_cfg.nav.sensors) cross.push_back(s.cross_m);
+    return cross;
+}
+
+double SurveyEngine::planningThreshold_nT() const {
+    // Planning assumes the noise at its warn limit: the swath the crew can count on while no
+    // noise warning is raised.
+    const auto& det = m_cfg.detection.detection;
+    return detect::detectionThreshold_nT(det.min_anomaly_nT, det.k, m_checks.check("noise").limits().warn);
 }
 
 double SurveyEngine::plannedHalfWidth_m() const {
-    const checks::CheckSet defaults;
-    const auto& det = m_cfg.detection.detection;
-    const double threshold = detect::detectionThreshold_nT(det.min_anomaly_nT, det.k,
-                                                           m_checks.check("noise").limits().warn);
-    const auto& model = m_models[m_coverage_model];
-    const double altitude = m_plan && m_plan->planned_altitude_m > 0 ? m_plan->planned_altitude_m : 3.0;
-    double half_extent = 0.0;
-    for (const auto& s : m_cfg.nav.sensors) half_extent = std::max(half_extent, std::abs(s.cross_m));
-    const double heading = (m_plan ? m_plan->surveyHeadingDeg() : 0.0) * kDegToRad;
+    const auto* p = plan();
+    const double altitude = p && p->planned_altitude_m > 0 ? p->planned_altitude_m : 3.0;
+    const double heading = (p ? p->surveyHeadingDeg() : 0.0) * kDegToRad;
     double worst = std::numeric_limits<double>::infinity();
+    const auto cross = sensorCross();
     for (double h : {heading, heading + kPi}) {
-        const auto hw = model.halfWidths(altitude + model.targetClass().burial_m, h, threshold);
-        worst = std::min({worst, hw.port_m, hw.starboard_m});
+        const auto sw = detect::arraySwathAt(m_models[m_coverage_model], cross, altitude, h,
+                                             planningThreshold_nT());
+        worst = std::min({worst, sw.port_m, sw.starboard_m});
     }
-    return worst + half_extent;
+    return std::max(0.0, worst);
 }
 
-coverage::GapOptions SurveyEngine::gapOptions() const {
-    const double heading = m_plan ? m_plan->surveyHeadingDeg() : 0.0;
-    return coverage::loadGapOptions(sectionOr(m_cfg.root(), "gaps"), heading);
+coverage::InfillOptions SurveyEngine::infillOptions() const {
+    const double heading = plan() ? plan()->surveyHeadingDeg() : 0.0;
+    return coverage::loadInfillOptions(sectionOr(m_cfg.root(), "infill"), heading,
+                                       std::max(0.1, plannedHalfWidth_m()));
 }
 
 coverage::GapReport SurveyEngine::gapReport() {
-    flushCoverage();
-    if (!m_plan) return {};
-    return coverage::findGaps(m_raster, m_plan->area, gapOptions());
+    if (!m_cov) return {};
+    return m_cov->gaps();
 }
 
-coverage::InfillPlan SurveyEngine::infillPlan(const coverage::GapReport& report) const {
-    const double heading = m_plan ? m_plan->surveyHeadingDeg() : 0.0;
-    const auto opts = coverage::loadInfillOptions(sectionOr(m_cfg.root(), "infill"), heading,
-                                                  std::max(0.1, plannedHalfWidth_m()));
-    return coverage::planInfill(report, opts);
+coverage::SurveyCoverage::Infill SurveyEngine::infillPlan(const coverage::GapReport& report) const {
+    if (!m_cov) return {};
+    return m_cov->infill(report, infillOptions());
 }
 
 }  // namespace sg::engine

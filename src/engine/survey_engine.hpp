@@ -22,6 +22,7 @@
 #include "coverage/infill.hpp"
 #include "coverage/line_runs.hpp"
 #include "coverage/survey_plan.hpp"
+#include "coverage/survey_coverage.hpp"
 #include "coverage/swath_painter.hpp"
 #include "detect/fourth_difference_noise.hpp"
 #include "detect/target_model.hpp"
@@ -80,7 +81,9 @@ public:
                      std::optional<double> quality, std::optional<double> depth_m,
                      std::optional<double> altitude_m);
     // Receive-clock time has reached t_ns: evaluates the silence checks at every whole second up
-    // to it (so live ticks and a replay of the same lines give the same alarm times).
+    // to it (so live ticks and a replay of the same lines give the same alarm times). The
+    // Pipeline calls it with each line's UTC receive time before the line is processed; silence
+    // checks work on this clock, every other check on the aligned (instrument) times.
     void advanceTo(TimeNs t_ns);
 
     // Operator actions (logged as events).
@@ -95,11 +98,13 @@ public:
     const SurveyConfig& config() const { return m_cfg; }
     bool hasCrs() const { return m_crs != nullptr; }
     const nav::SurveyCrs* crs() const { return m_crs.get(); }
-    const coverage::SurveyPlan* plan() const { return m_plan.get(); }
-    const coverage::CoverageRaster& raster() const { return m_raster; }
+    // Coverage needs a [plan]; without one these are null / an empty raster.
+    const coverage::SurveyPlan* plan() const { return m_cov ? &m_cov->plan() : nullptr; }
+    const coverage::CoverageRaster& raster() const { return m_cov ? m_cov->raster() : m_no_raster; }
+    coverage::SurveyCoverage* coverage() { return m_cov.get(); }
     // Paints pending swath stretches (call before reading the raster for gaps or a snapshot).
     void flushCoverage();
-    const coverage::LineTracker* lines() const { return m_tracker.get(); }
+    const coverage::LineTracker* lines() const { return m_cov ? &m_cov->lines() : nullptr; }
     const checks::CheckSet& checks() const { return m_checks; }
     const std::vector<SensorState>& sensors() const { return m_sensors; }
     const InvalidCounts& invalidCounts() const { return m_invalid; }
@@ -116,16 +121,21 @@ public:
     double plannedHalfWidth_m() const;
 
     // Gaps in the area now, and the infill lines that close them.
+    // (Both need a plan: without one the report is empty.)
     coverage::GapReport gapReport();
-    coverage::InfillPlan infillPlan(const coverage::GapReport& report) const;
-    coverage::GapOptions gapOptions() const;
+    // Plans the infill and proves it by flying it over a copy of the raster.
+    coverage::SurveyCoverage::Infill infillPlan(const coverage::GapReport& report) const;
+    coverage::InfillOptions infillOptions() const;
 
 private:
     void ensureCrs(double lon_deg, double lat_deg);
-    void loadPlanAndLines();
+    void loadPlan();
     void updateChecks(TimeNs t_ns);
     void processSample(SensorState& s, TimeNs t_ns);
     std::optional<double> probeFormingGap(const SensorState& outer, bool starboard) const;
+    coverage::SwathSample swathSample(const SensorState& s) const;
+    std::vector<double> sensorCross() const;
+    double planningThreshold_nT() const;
     void drainEpisodes();
 
     SurveyConfig m_cfg;
@@ -137,11 +147,8 @@ private:
     std::vector<detect::FourthDifferenceNoise> m_noise;
     std::vector<SensorState> m_sensors;
     std::map<int, std::size_t> m_sensor_slot;  // sensor index -> slot in m_sensors
-    coverage::CoverageOptions m_cov_opts;
-    coverage::CoverageRaster m_raster;
-    std::unique_ptr<coverage::SwathPainter> m_painter;
-    std::unique_ptr<coverage::SurveyPlan> m_plan;
-    std::unique_ptr<coverage::LineTracker> m_tracker;
+    std::unique_ptr<coverage::SurveyCoverage> m_cov;
+    coverage::CoverageRaster m_no_raster;
     checks::CheckSet m_checks;
     InvalidCounts m_invalid;
 
@@ -150,7 +157,7 @@ private:
     std::optional<double> m_forming_gap;
     std::optional<double> m_max_overlap_altitude;
     std::optional<coverage::Point> m_last_ref_pos;
-    TimeNs m_clock_ns = 0;           // receive clock, for silence
+    TimeNs m_clock_ns = 0;           // receive clock (UTC receive time of the line being fed)
     std::optional<TimeNs> m_last_fix_ns;
     std::optional<TimeNs> m_last_mag_ns;
     std::optional<TimeNs> m_last_altitude_ns;
