@@ -3,6 +3,7 @@
 // file that has been read to its end.
 #include <csignal>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -38,7 +39,14 @@ int runRecord(const RecordOptions& o) {
     if (inputs.empty()) root.fail("input", "at least one [[input]] table");
     const auto log_cfg = config::parseLog(root);
     auto maps = decode::parseFieldMaps(root);
-    const std::string log_path = o.log.empty() ? log_cfg.path : o.log;
+    // Relative paths in the config start at the config file's folder (as in engine::SurveyConfig);
+    // paths on the command line start at the working directory.
+    const auto dir = std::filesystem::absolute(o.config).parent_path();
+    auto fromConfig = [&dir](const std::string& p) {
+        return p.empty() || std::filesystem::path(p).is_absolute() ? p : (dir / p).string();
+    };
+    for (auto& i : inputs) i.path = fromConfig(i.path);
+    const std::string log_path = o.log.empty() ? fromConfig(log_cfg.path) : o.log;
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
     io::LogWriter writer(log_path, {log_cfg.commit_interval_ms, true},
