@@ -7,6 +7,7 @@
 namespace {
 
 using namespace sg::io;
+using sg::engine::SourceCounters;
 
 TEST(StatusLine, RatesErrorsFixFieldAndLog) {
     std::map<std::string, SourceCounters> c;
