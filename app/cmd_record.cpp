@@ -31,10 +31,18 @@ struct RecordOptions {
 };
 
 int runRecord(const RecordOptions& o) {
-    const auto cfg = engine::loadSurveyConfig(o.config);
+    auto cfg = engine::loadSurveyConfig(o.config);
     const auto root = cfg.root();
     if (cfg.inputs.empty()) root.fail("input", "at least one [[input]] table");
-    const std::string log_path = o.log.empty() ? cfg.log.path : o.log;
+    // Relative paths in the config start at the config file's folder (cfg.dir); paths on the
+    // command line start at the working directory.
+    auto fromConfig = [&cfg](const std::string& p) {
+        return p.empty() || std::filesystem::path(p).is_absolute()
+                   ? p
+                   : (std::filesystem::path(cfg.dir) / p).string();
+    };
+    for (auto& i : cfg.inputs) i.path = fromConfig(i.path);
+    const std::string log_path = o.log.empty() ? fromConfig(cfg.log.path) : o.log;
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
     // The config's own path is stored absolute so replay finds the plan files it names.
