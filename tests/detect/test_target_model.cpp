@@ -105,6 +105,22 @@ TEST(HalfWidth, InducedDipoleEastboundNorthernHemisphereAsymmetry) {
     EXPECT_GT(s.starboard_m, 2.0 * s.port_m);
 }
 
+TEST(HalfWidth, DipoleZeroAboveItsDetectionRange) {
+    // Definition check: the detection range is where the peak straight below the line falls to
+    // the threshold; above it both half-widths are 0, below it the centre is detectable.
+    const auto models = makeModels(survey(65.0, Orientation::Induced));
+    const TargetModel& m = models.front();
+    for (double hd : {0.0, 60.0, 90.0, 225.0}) {
+        const double heading = hd * kDeg;
+        const double range = m.detectionRange_m(heading, 1.0);
+        EXPECT_NEAR(m.peakAnomalyDirect_nT(range, 0.0, heading), 1.0, 0.02) << hd;
+        const HalfWidths above = m.halfWidths(range * 1.03, heading, 1.0);
+        EXPECT_EQ(above.port_m, 0.0) << hd;
+        EXPECT_EQ(above.starboard_m, 0.0) << hd;
+        EXPECT_GT(m.peakAnomalyDirect_nT(range * 0.97, 0.0, heading), 1.0) << hd;
+    }
+}
+
 TEST(HalfWidth, InducedDipoleAtThePoleIsIsotropic) {
     // Vertical field: the geometry is symmetric about the vertical, so left = right and the
     // heading does not matter; directly below the peak is on the axis, 2 (mu0/4pi) m / h^3.
