@@ -165,7 +165,12 @@ RunResult runSimulation(const Scenario& scenario, const RunOptions& options, std
     for (int c = 0; c < kChannelCount; ++c) {
         const auto& n = result.counts[static_cast<std::size_t>(c)];
         auto& ch = j["channels"][channelName(static_cast<Channel>(c))];
-        ch["endpoint"] = result.endpoints[static_cast<std::size_t>(c)];
+        // Files by name only, so that two runs into different directories compare equal.
+        ch["endpoint"] = options.output == OutputKind::File
+                             ? std::filesystem::path(result.endpoints[static_cast<std::size_t>(c)])
+                                   .filename()
+                                   .string()
+                             : result.endpoints[static_cast<std::size_t>(c)];
         ch["produced"] = n.produced;
         ch["sent"] = n.sent;
         ch["dropped"] = n.dropped;

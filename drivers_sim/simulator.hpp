@@ -98,7 +98,8 @@ public:
 
     TimeNs now_utc_ns() const { return m_start_ns + m_tick * kTickNs; }
     TimeNs start_utc_ns() const { return m_start_ns; }
-    double elapsed_s() const { return static_cast<double>(m_tick) * 1e-9 * static_cast<double>(kTickNs); }
+    // Exact for whole ticks: integer nanoseconds divided once.
+    double elapsed_s() const { return static_cast<double>(m_tick * kTickNs) / 1e9; }
     const Scenario& scenario() const { return m_sc; }
     const Route& route() const { return *m_route; }
     const Seabed& seabed() const { return m_seabed; }
