@@ -75,8 +75,9 @@ struct FieldRecord {
 // Reads one [fieldmap.NAME] table. Keys: start, delimiter, checksum, time, time_format, field_nT,
 // quality, depth_m, altitude_m, sensor, cable_out_m (see docs/formats.md). Throws ConfigError.
 FieldMap parseFieldMap(const config::Section& table);
-// Reads every [fieldmap.*] table under `root` (the config's root table), in file order.
-// An absent [fieldmap] table gives an empty vector.
+// Reads every [fieldmap.*] table under `root` (the config's root table), in NAME order (toml++
+// keeps a table's keys sorted, so file order is not available). An absent [fieldmap] table gives
+// an empty vector.
 std::vector<FieldMap> parseFieldMaps(const config::Section& root);
 
 // Decodes one line with `map`. Never throws.
