@@ -7,6 +7,7 @@
 #include <fcntl.h>
 #include <netinet/in.h>
 #include <stdexcept>
+#include <sys/ioctl.h>
 #include <sys/socket.h>
 #include <termios.h>
 #include <unistd.h>
@@ -204,6 +205,7 @@ class PtyOutput final : public Output {
 public:
     explicit PtyOutput(std::string dir) : m_dir(std::move(dir)) {
         m_fd.fill(-1);
+        m_slave.fill(-1);
         for (int c = 0; c < kChannelCount; ++c) open(static_cast<Channel>(c));
     }
     ~PtyOutput() override { close(); }
@@ -218,6 +220,19 @@ public:
         }
     }
     void close() override {
+        // Closing the master discards what the reader has not read yet (it sees a hangup), so
+        // give readers up to a second to take the last lines first. The kernel moves written
+        // bytes to the slave asynchronously, so look only after a short pause.
+        ::usleep(30000);
+        for (int i = 0; i < 100; ++i) {
+            bool pending = false;
+            for (int fd : m_slave) {
+                int queued = 0;  // unread bytes, seen from the slave side
+                if (fd >= 0 && ::ioctl(fd, FIONREAD, &queued) == 0 && queued > 0) pending = true;
+            }
+            if (!pending) break;
+            ::usleep(10000);
+        }
         for (int c = 0; c < kChannelCount; ++c) shut(static_cast<Channel>(c));
     }
     std::string endpoint(Channel c) const override { return m_path[static_cast<std::size_t>(c)]; }
@@ -246,6 +261,9 @@ private:
         if (::ptsname_r(fd, name, sizeof name) != 0) throw sysError("ptsname");
         m_fd[i] = fd;
         m_path[i] = name;
+        // Hold the slave side open too: the master's writes then never fail for want of a
+        // reader, and close() can see how much the reader has not taken yet.
+        m_slave[i] = ::open(name, O_RDWR | O_NOCTTY | O_NONBLOCK);
         if (!m_dir.empty()) {
             const std::string link = m_dir + "/" + channelName(c) + ".pty";
             ::unlink(link.c_str());
@@ -255,11 +273,14 @@ private:
     void shut(Channel c) {
         const auto i = static_cast<std::size_t>(c);
         if (m_fd[i] >= 0) ::close(m_fd[i]);
+        if (m_slave[i] >= 0) ::close(m_slave[i]);
         m_fd[i] = -1;
+        m_slave[i] = -1;
     }
 
     std::string m_dir;
     std::array<int, kChannelCount> m_fd{};
+    std::array<int, kChannelCount> m_slave{};
     std::array<std::string, kChannelCount> m_path;
 };
 

@@ -4,6 +4,8 @@
 #include <gtest/gtest.h>
 
 #include <arpa/inet.h>
+#include <fcntl.h>
+#include <termios.h>
 #include <netinet/in.h>
 #include <poll.h>
 #include <sys/socket.h>
@@ -13,6 +15,7 @@
 #include <atomic>
 #include <filesystem>
 #include <thread>
+#include <tuple>
 
 #include <nlohmann/json.hpp>
 
@@ -191,6 +194,94 @@ TEST(Run, TcpLoopbackCountsMatch) {
         EXPECT_EQ(got[static_cast<std::size_t>(c)], n.sent) << channelName(static_cast<Channel>(c));
     }
     fs::remove_all(o.dir);
+}
+
+TEST(Run, PtyLinesArriveOnTheSlaveSide) {
+    std::array<std::uint64_t, kChannelCount> got{};
+    std::vector<std::thread> readers;
+    RunOptions o;
+    o.output = OutputKind::Pty;
+    o.dir = tempDir("pty");
+    o.speed = 10.0;
+    o.sim.seed = 3;
+    o.sim.duration_s = 4.0;
+    o.on_ready = [&](const Output& out) {
+        for (int c = 0; c < kChannelCount; ++c) {
+            const std::string path = out.endpoint(static_cast<Channel>(c));
+            // The symlink in --dir points at the same terminal.
+            EXPECT_EQ(fs::read_symlink(o.dir + "/" + channelName(static_cast<Channel>(c)) + ".pty"), path);
+            const int fd = ::open(path.c_str(), O_RDONLY | O_NOCTTY);
+            ASSERT_GE(fd, 0) << path;
+            termios t{};
+            ::tcgetattr(fd, &t);
+            ::cfmakeraw(&t);
+            ::tcsetattr(fd, TCSANOW, &t);
+            readers.emplace_back([fd, &got, c] {
+                char buf[4096];
+                for (;;) {
+                    const ssize_t len = ::read(fd, buf, sizeof buf);
+                    if (len <= 0) break;  // EIO once the simulator closes the master side
+                    got[static_cast<std::size_t>(c)] +=
+                        static_cast<std::uint64_t>(std::count(buf, buf + len, '\n'));
+                }
+                ::close(fd);
+            });
+        }
+    };
+    const RunResult r = runSimulation(loadScenario(dataPath("short.toml")), o, nullptr);
+    for (auto& t : readers) t.join();
+    for (int c = 0; c < kChannelCount; ++c) {
+        const auto& n = r.counts[static_cast<std::size_t>(c)];
+        EXPECT_GT(n.sent, 0u);
+        EXPECT_EQ(got[static_cast<std::size_t>(c)], n.sent) << channelName(static_cast<Channel>(c));
+    }
+    fs::remove_all(o.dir);
+}
+
+TEST(Run, UdpPortCloseDropsTheLinesOfItsWindow) {
+    // port_close mag 110..115 s of short.toml: on UDP the mag lines of those 5 s are not sent.
+    Scenario sc = loadScenario(dataPath("short.toml"));
+    RunOptions o;
+    o.output = OutputKind::Udp;
+    o.dir = tempDir("udpclose");
+    o.base_port = basePort() + 6;  // nothing listens: datagrams are simply lost
+    o.sim.seed = 3;
+    o.sim.duration_s = 120.0;
+    const RunResult r = runSimulation(sc, o, nullptr);
+    const auto& mag = r.counts[static_cast<std::size_t>(Channel::Mag)];
+    EXPECT_EQ(mag.dropped, 5u * 10u * 4u);  // 5 s, 10 Hz, 4 sensors
+    EXPECT_EQ(mag.sent + mag.dropped, mag.produced);
+    EXPECT_EQ(r.counts[static_cast<std::size_t>(Channel::Gyro)].dropped, 0u);
+    fs::remove_all(o.dir);
+}
+
+TEST(Run, RandomFaultsAreReproducible) {
+    Scenario sc = loadScenario(dataPath("short.toml"));
+    sc.faults.clear();
+    sc.random_faults.per_hour = 360.0;  // one every 10 s on average
+    sc.random_faults.mean_duration_s = 5.0;
+    sc.random_faults.kinds = {FaultKind::MagDropout, FaultKind::GnssLoss, FaultKind::BadChecksum};
+    auto faults = [&](std::uint64_t seed) {
+        SimOptions o;
+        o.seed = seed;
+        o.duration_s = 200.0;
+        Simulator sim(sc, o);
+        std::vector<std::tuple<int, double, double, std::string>> out;
+        while (!sim.done()) sim.step();
+        for (const FaultSpec& f : sim.faults())
+            out.emplace_back(static_cast<int>(f.kind), f.start_s, f.duration_s, f.channel);
+        return out;
+    };
+    const auto a = faults(21);
+    EXPECT_EQ(a, faults(21));
+    EXPECT_NE(a, faults(22));
+    EXPECT_GT(a.size(), 5u);   // Poisson mean 20 over 200 s
+    EXPECT_LT(a.size(), 45u);
+    for (const auto& f : a) {
+        const auto k = static_cast<FaultKind>(std::get<0>(f));
+        EXPECT_TRUE(k == FaultKind::MagDropout || k == FaultKind::GnssLoss || k == FaultKind::BadChecksum);
+        EXPECT_GE(std::get<2>(f), 1.0);
+    }
 }
 
 }  // namespace
