@@ -27,6 +27,13 @@ std::string angle(double deg, int deg_digits, char pos, char neg) {
                        rem % 10'000'000LL, hemi);
 }
 
+// Course in [0, 360) that never prints as 360.00 with two decimals.
+double course2(double deg) {
+    double d = std::fmod(deg, 360.0);
+    if (d < 0.0) d += 360.0;
+    return d >= 359.995 ? 0.0 : d;
+}
+
 std::tm utcTm(TimeNs t) {
     const std::time_t s = static_cast<std::time_t>(t / kNsPerSecond);
     std::tm tm{};
@@ -66,7 +73,7 @@ std::string rmcSentence(const std::string& talker, const RmcFields& f) {
     std::string body = talker + "RMC," + timeOfDay(f.utc_ns, 2) + (f.valid ? ",A," : ",V,");
     if (f.valid) {
         body += angle(f.lat_deg, 2, 'N', 'S') + "," + angle(f.lon_deg, 3, 'E', 'W');
-        body += fmt::format(",{:.2f},{:.2f},", f.sog_kn, f.cog_true_deg);
+        body += fmt::format(",{:.2f},{:.2f},", f.sog_kn, course2(f.cog_true_deg));
     } else {
         body += ",,,,,,";
     }
@@ -79,9 +86,9 @@ std::string rmcSentence(const std::string& talker, const RmcFields& f) {
 std::string vtgSentence(const std::string& talker, bool valid, double cog_true_deg,
                         double variation_deg, double sog_kn, char mode) {
     if (!valid) return decode::nmeaWithChecksum(talker + "VTG,,T,,M,,N,,K,N");
-    double mag = std::fmod(cog_true_deg - variation_deg + 360.0, 360.0);
     return decode::nmeaWithChecksum(fmt::format("{}VTG,{:.2f},T,{:.2f},M,{:.2f},N,{:.2f},K,{}",
-                                                talker, cog_true_deg, mag, sog_kn,
+                                                talker, course2(cog_true_deg),
+                                                course2(cog_true_deg - variation_deg), sog_kn,
                                                 sog_kn * 1.852, mode));
 }
 
@@ -101,10 +108,7 @@ std::string gstSentence(const std::string& talker, TimeNs utc_ns, double rms, do
 }
 
 std::string hdtSentence(const std::string& talker, double heading_true_deg) {
-    double h = std::fmod(heading_true_deg, 360.0);
-    if (h < 0.0) h += 360.0;
-    if (h >= 359.995) h = 0.0;  // would print as 360.00
-    return decode::nmeaWithChecksum(fmt::format("{}HDT,{:.2f},T", talker, h));
+    return decode::nmeaWithChecksum(fmt::format("{}HDT,{:.2f},T", talker, course2(heading_true_deg)));
 }
 
 std::string dptSentence(const std::string& talker, double depth_m, double offset_m,

@@ -168,6 +168,11 @@ void Simulator::emitGnss(TimeNs t, double t_s, bool gga, bool gst, bool zda) {
 
     const VesselState& v = m_model->vessel();
     const double sigma = degraded ? deg->sigma_m : g.position_std_m;
+    if (degraded != m_was_degraded) {
+        // The solution changes type at once: a new error of the new size, not a slow drift.
+        m_gnss_err_m = {sigma * m_rng_gnss.normal(), sigma * m_rng_gnss.normal()};
+        m_was_degraded = degraded;
+    }
     if (gga) {
         // Position error: first-order Gauss-Markov, 20 s correlation (a wandering fix).
         const double a = std::exp(-1.0 / (g.rate_hz * 20.0));

@@ -148,7 +148,8 @@ private:
     SimRandom m_rng_gnss, m_rng_gyro, m_rng_sounder, m_rng_mag, m_rng_alt, m_rng_faults,
         m_rng_random;
     Schedule m_gga, m_gst, m_zda, m_hdt, m_dpt, m_mag, m_sga, m_sgc;
-    Vec2 m_gnss_err_m;          // slowly wandering position error (degraded fix)
+    Vec2 m_gnss_err_m;          // slowly wandering position error
+    bool m_was_degraded = false;
     double m_diurnal_phase = 0.0;
 };
 

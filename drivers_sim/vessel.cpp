@@ -64,8 +64,16 @@ void VesselModel::step(double t_s, double dt_s, double altitude_offset_m, double
     const Vec2 dir = m_route.direction(v.route_s_m);
     const Vec2 stbd{dir.n, -dir.e};
     v.cross_track_m = dot(v.antenna_m - on_route, stbd);
-    const bool on_line = m_route.lineAt(v.route_s_m) >= 0 ||
-                         m_route.lineAt(v.route_s_m + m_spec.lookahead_m) >= 0;
+    const int ahead_line = m_route.lineAt(v.route_s_m + m_spec.lookahead_m);
+    const bool on_line = m_route.lineAt(v.route_s_m) >= 0 || ahead_line >= 0;
+    if (ahead_line >= 0 && ahead_line != m_last_line) {
+        // A new line run the other way: the crab the current needs has the opposite sign
+        // relative to the route, so start from the mirrored value (as a helmsman would).
+        if (m_last_line >= 0 && dot(m_route.direction(v.route_s_m + m_spec.lookahead_m), m_last_dir) < 0.0)
+            m_integral_m_s = -m_integral_m_s;
+        m_last_line = ahead_line;
+        m_last_dir = m_route.direction(v.route_s_m + m_spec.lookahead_m);
+    }
     if (on_line) {
         m_integral_m_s = std::clamp(m_integral_m_s + v.cross_track_m * dt_s, -1000.0, 1000.0);
     }

@@ -69,6 +69,8 @@ private:
     double m_speed_dev_mps = 0.0;
     double m_integral_m_s = 0.0;
     double m_cable_m = 0.0;
+    int m_last_line = -1;          // plan line of the last run, for the crab carried over
+    Vec2 m_last_dir;
     std::deque<Vec2> m_path;       // tow point positions
     std::deque<double> m_path_s;   // cumulative distance of each
 };
