@@ -189,10 +189,12 @@ private:
     }
     void shut(Channel c) {
         const auto i = static_cast<std::size_t>(c);
-        for (int fd : m_clients[i]) ::close(fd);
-        m_clients[i].clear();
+        // The listening socket first: a client that sees its connection end and reconnects at
+        // once must be refused, not parked in a backlog that is about to vanish.
         if (m_listen[i] >= 0) ::close(m_listen[i]);
         m_listen[i] = -1;
+        for (int fd : m_clients[i]) ::close(fd);
+        m_clients[i].clear();
     }
 
     int m_base;

@@ -13,6 +13,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <chrono>
 #include <filesystem>
 #include <thread>
 #include <tuple>
@@ -252,6 +253,78 @@ TEST(Run, UdpPortCloseDropsTheLinesOfItsWindow) {
     EXPECT_EQ(mag.dropped, 5u * 10u * 4u);  // 5 s, 10 Hz, 4 sensors
     EXPECT_EQ(mag.sent + mag.dropped, mag.produced);
     EXPECT_EQ(r.counts[static_cast<std::size_t>(Channel::Gyro)].dropped, 0u);
+    fs::remove_all(o.dir);
+}
+
+TEST(Run, TcpPortCloseDropsClientsAndListensAgain) {
+    // port_close on mag from 2 s to 3 s: the client is disconnected, reconnects once the port
+    // listens again, and every line is either received or counted as dropped.
+    Scenario sc = loadScenario(dataPath("short.toml"));
+    sc.faults.clear();
+    FaultSpec close;
+    close.kind = FaultKind::PortClose;
+    close.channel = "mag";
+    close.start_s = 2.0;
+    close.duration_s = 1.0;
+    sc.faults.push_back(close);
+    const int base = basePort() + 12;
+    const int mag_port = base + static_cast<int>(Channel::Mag);
+    auto connectMag = [mag_port] {
+        const int fd = ::socket(AF_INET, SOCK_STREAM, 0);
+        sockaddr_in a{};
+        a.sin_family = AF_INET;
+        a.sin_port = htons(static_cast<std::uint16_t>(mag_port));
+        a.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+        if (::connect(fd, reinterpret_cast<sockaddr*>(&a), sizeof a) == 0) return fd;
+        ::close(fd);
+        return -1;
+    };
+    auto countUntilEof = [](int fd) {
+        std::uint64_t n = 0;
+        char buf[4096];
+        for (;;) {
+            const ssize_t len = ::recv(fd, buf, sizeof buf, 0);
+            if (len <= 0) break;
+            n += static_cast<std::uint64_t>(std::count(buf, buf + len, '\n'));
+        }
+        ::close(fd);
+        return n;
+    };
+    std::uint64_t first = 0, second = 0;
+    int refused_while_closed = 0;
+    std::thread client;
+    RunOptions o;
+    o.output = OutputKind::Tcp;
+    o.dir = tempDir("tcpclose");
+    o.base_port = base;
+    o.speed = 10.0;
+    o.sim.seed = 3;
+    o.sim.duration_s = 6.0;
+    o.on_ready = [&](const Output&) {
+        const int fd = connectMag();
+        ASSERT_GE(fd, 0);
+        client = std::thread([&, fd] {
+            first = countUntilEof(fd);  // ends when the port closes at 2 s (0.2 s wall)
+            for (int i = 0; i < 400; ++i) {
+                const int again = connectMag();
+                if (again >= 0) {
+                    second = countUntilEof(again);
+                    return;
+                }
+                ++refused_while_closed;
+                std::this_thread::sleep_for(std::chrono::milliseconds(5));
+            }
+        });
+    };
+    const RunResult r = runSimulation(sc, o, nullptr);
+    client.join();
+    const auto& mag = r.counts[static_cast<std::size_t>(Channel::Mag)];
+    EXPECT_GT(refused_while_closed, 0);       // nobody listened during the window
+    EXPECT_NEAR(static_cast<double>(first), 2.0 * 10 * 4, 4.0);  // about 2 s of 4 sensors at 10 Hz
+    EXPECT_GT(second, 0u);
+    EXPECT_EQ(first + second, mag.sent);
+    EXPECT_EQ(mag.sent + mag.dropped, mag.produced);
+    EXPECT_GE(mag.dropped, 1u * 10u * 4u);     // the closed second at least
     fs::remove_all(o.dir);
 }
 
