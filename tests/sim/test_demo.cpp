@@ -1,0 +1,120 @@
+// The demo survey (replay_logs/demo): its survey configs are read by the core's own parsers and
+// agree with the scenario the simulator runs (inputs per channel, field maps that decode the
+// simulator's strings, sensor offsets, geomagnetic field, plan), and the demo stays small.
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <set>
+
+#include "common/config_section.hpp"
+#include "common/input_config.hpp"
+#include "decode/field_map.hpp"
+#include "detect/target_model.hpp"
+#include "nav/nav_config.hpp"
+#include "sim_test_util.hpp"
+
+namespace sg::sim::test {
+namespace {
+
+void checkSurveyConfig(const std::string& file, bool udp) {
+    SCOPED_TRACE(file);
+    const Scenario sc = loadScenario(demoPath("scenario.toml"));
+    const toml::table tbl = config::parseFile(demoPath(file));
+    const config::Section root(tbl, demoPath(file));
+
+    const auto inputs = config::parseInputs(root);
+    ASSERT_EQ(inputs.size(), static_cast<std::size_t>(kChannelCount));
+    for (int c = 0; c < kChannelCount; ++c) {
+        const auto& in = inputs[static_cast<std::size_t>(c)];
+        EXPECT_EQ(in.name, channelName(static_cast<Channel>(c)));
+        if (udp) {
+            EXPECT_EQ(in.transport, config::Transport::Udp);
+            EXPECT_EQ(in.listen_host, "127.0.0.1");
+            EXPECT_EQ(in.listen_port, 47000 + c);  // swathguard-sim --base-port 47000
+        } else {
+            EXPECT_EQ(in.transport, config::Transport::File);
+            EXPECT_EQ(in.path, std::string("sim_out/") + channelName(static_cast<Channel>(c)) + ".log");
+        }
+    }
+
+    // The configured field maps decode what the simulator sends, to the same values.
+    const auto maps = decode::parseFieldMaps(root);
+    ASSERT_EQ(maps.size(), 3u);
+    Scenario clean = sc;
+    clean.faults.clear();
+    const Recorded rec = runInMemory(clean, 1, 5.0);
+    int decoded = 0;
+    for (const SimLine& l : rec.lines) {
+        if (l.channel != Channel::Mag && l.channel != Channel::Altimeter && l.channel != Channel::Cable)
+            continue;
+        const auto m = decode::decodeWithMaps(maps, l.bytes);
+        ASSERT_EQ(m.record.reason, decode::Reason::Ok) << l.bytes << ": " << m.record.detail;
+        const auto b = body(l.bytes);
+        if (l.channel == Channel::Mag) {
+            EXPECT_EQ(m.record.sensor, std::stoi(b[1]));
+            EXPECT_DOUBLE_EQ(*m.record.field_nT, std::stod(b[3]));
+            EXPECT_DOUBLE_EQ(*m.record.altitude_m, std::stod(b[6]));
+        } else if (l.channel == Channel::Cable) {
+            EXPECT_DOUBLE_EQ(*m.record.cable_out_m, std::stod(b[2]));
+        } else {
+            EXPECT_DOUBLE_EQ(*m.record.altitude_m, std::stod(b[2]));
+        }
+        ++decoded;
+    }
+    EXPECT_EQ(decoded, 5 * (10 * 4 + 5 + 1));
+
+    const auto nav = nav::parseVesselConfig(root);
+    ASSERT_EQ(nav.sensors.size(), sc.mag.sensors.size());
+    for (std::size_t i = 0; i < nav.sensors.size(); ++i) {
+        EXPECT_EQ(nav.sensors[i].index, static_cast<int>(i));
+        EXPECT_DOUBLE_EQ(nav.sensors[i].cross_m, sc.mag.sensors[i].cross_m);
+        EXPECT_DOUBLE_EQ(nav.sensors[i].along_m, sc.mag.sensors[i].along_m);
+    }
+    // Tow point relative to the antenna, as the scenario gives it; heights above the water.
+    EXPECT_DOUBLE_EQ(nav.vessel.tow_point_m[0] - nav.vessel.antenna_m[0], sc.vessel.tow_point_m[0]);
+    EXPECT_DOUBLE_EQ(nav.vessel.tow_point_m[1] - nav.vessel.antenna_m[1], sc.vessel.tow_point_m[1]);
+    EXPECT_DOUBLE_EQ(nav.vessel.tow_point_m[2], sc.tow.tow_point_height_m);
+    EXPECT_DOUBLE_EQ(nav.vessel.antenna_m[2], sc.vessel.antenna_height_m);
+
+    const auto det = detect::parseDetectionConfig(root);
+    EXPECT_DOUBLE_EQ(det.field.inclination_deg, sc.geomag.inclination_deg);
+    EXPECT_DOUBLE_EQ(det.field.declination_deg, sc.geomag.declination_deg);
+    EXPECT_DOUBLE_EQ(det.field.intensity_nT, sc.geomag.intensity_nT);
+
+    const config::Section plan = root.table("plan");
+    EXPECT_EQ(plan.string("area"), sc.plan.area_file);
+    EXPECT_EQ(plan.string("lines"), sc.plan.lines_file);
+    EXPECT_DOUBLE_EQ(plan.number("line_spacing_m"), sc.plan.line_spacing_m);
+    EXPECT_DOUBLE_EQ(plan.number("planned_altitude_m"), sc.tow.altitude_m);
+}
+
+TEST(Demo, UdpSurveyConfigMatchesTheScenario) { checkSurveyConfig("survey.toml", true); }
+TEST(Demo, FileSurveyConfigMatchesTheScenario) { checkSurveyConfig("survey_files.toml", false); }
+
+TEST(Demo, IsSmallAndShowsItsFaults) {
+    const Scenario sc = loadScenario(demoPath("scenario.toml"));
+    EXPECT_GE(sc.plan.lines.size(), 6u);
+    EXPECT_LE(sc.plan.lines.size(), 8u);
+    for (const auto& l : sc.plan.lines) {
+        EXPECT_GE(length(l.end_m - l.start_m), 550.0);
+        EXPECT_LE(length(l.end_m - l.start_m), 800.0);
+    }
+    SimOptions o;
+    Simulator sim(sc, o);
+    while (!sim.done()) sim.step();
+    // About 25-35 minutes simulated.
+    EXPECT_GT(sim.elapsed_s(), 25.0 * 60.0);
+    EXPECT_LT(sim.elapsed_s(), 36.0 * 60.0);
+    // Every scheduled fault starts before the end of the run.
+    std::set<FaultKind> kinds;
+    for (const FaultSpec& f : sim.faults()) {
+        EXPECT_LT(f.start_s + f.duration_s, sim.elapsed_s());
+        kinds.insert(f.kind);
+    }
+    EXPECT_TRUE(kinds.count(FaultKind::GnssLoss));
+    EXPECT_TRUE(kinds.count(FaultKind::MagDropout));
+    EXPECT_TRUE(kinds.count(FaultKind::AltitudeExcursion));
+}
+
+}  // namespace
+}  // namespace sg::sim::test
