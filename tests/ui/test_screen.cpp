@@ -15,6 +15,8 @@
 #include <thread>
 
 #include <stb_image.h>
+#include <fcntl.h>
+#include <sys/prctl.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
@@ -39,6 +41,11 @@ public:
         ASSERT_GE(m_pid, 0);
         if (m_pid == 0) {
             close(fds[0]);
+            // Die with the test process, and keep the test's stdout/stderr free.
+            prctl(PR_SET_PDEATHSIG, SIGTERM);
+            const int devnull = open("/dev/null", O_RDWR);
+            dup2(devnull, 1);
+            dup2(devnull, 2);
             const std::string fd = std::to_string(fds[1]);
             execlp("Xvfb", "Xvfb", "-displayfd", fd.c_str(), "-screen", "0", "1600x1000x24", "-nolisten", "tcp",
                    static_cast<char*>(nullptr));
