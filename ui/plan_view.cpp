@@ -59,30 +59,42 @@ PlanTransform fitTransform(const BoundsEN& b, const Rect& rect) {
 
 namespace {
 
-// Screen-space thinning of a long polyline: points closer than min_px to the last kept point are
-// dropped, segments entirely off one side of the view are skipped.
+// Screen-space thinning of a long polyline: points closer than 1.5 px to the last kept point are
+// dropped, segments entirely off one side of the view are skipped, and short segments whose both
+// ends fall in screen cells this track already passed through are skipped too (a re-run line or
+// a whole day of lines seen from afar would otherwise be drawn over itself many times).
 class TrackDrawer {
 public:
-    TrackDrawer(ImDrawList* dl, const PlanTransform& t, const Rect& clip, ImU32 colour, float thickness)
-        : m_dl(dl), m_t(t), m_colour(colour), m_thickness(thickness) {
+    TrackDrawer() = default;
+    TrackDrawer(const PlanTransform& t, const Rect& clip) : m_t(t), m_clip(clip) {
         const float pad = 8.0f;
         m_lo = {clip.min.x - pad, clip.min.y - pad};
         m_hi = {clip.max.x + pad, clip.max.y + pad};
+        m_cols = static_cast<int>(clip.width() / kCellPx) + 1;
+        m_rows = static_cast<int>(clip.height() / kCellPx) + 1;
+        m_occ.assign(static_cast<std::size_t>(m_cols) * static_cast<std::size_t>(m_rows), 0);
     }
+    // Finished pieces go to `out` (screen points, each piece a polyline of >= 2 points).
+    void setOutput(std::vector<std::vector<ImVec2>>* out) { m_out = out; }
+
     void add(engine::PointEN w) {
         const ImVec2 p = m_t.toScreen(w);
         const int code = outCode(p);
         if (m_has_prev) {
             if ((code & m_prev_code) != 0) {
                 flush();  // the segment lies entirely beyond one edge of the view
+            } else if (!m_pts.empty() && dist2(m_pts.back(), p) < kMinPx2) {
+                m_pending_last = p;  // too close to the last kept point
+                m_has_pending = true;
             } else {
-                if (m_pts.empty()) m_pts.push_back(m_prev);
-                if (dist2(m_pts.back(), p) >= kMinPx2) {
-                    m_pts.push_back(p);
-                    m_has_pending = false;
+                const ImVec2 from = m_pts.empty() ? m_prev : m_pts.back();
+                const bool seen = dist2(from, p) < kShortPx2 && occupied(from) && occupied(p);
+                if (seen) {
+                    flush();
                 } else {
-                    m_pending_last = p;
-                    m_has_pending = true;
+                    if (m_pts.empty()) push(m_prev);
+                    push(p);
+                    m_has_pending = false;
                 }
             }
         }
@@ -93,22 +105,48 @@ public:
     void flush() {
         if (m_has_pending && !m_pts.empty()) m_pts.push_back(m_pending_last);
         m_has_pending = false;
-        if (m_pts.size() >= 2) drawPolylineChunked(m_dl, m_pts, m_colour, m_thickness);
+        // Mark cells only now: a piece never hides itself, only later passes over it.
+        for (const ImVec2& q : m_pts) mark(q);
+        if (m_pts.size() >= 2 && m_out) m_out->push_back(m_pts);
         m_pts.clear();
     }
 
 private:
     static constexpr float kMinPx2 = 1.5f * 1.5f;
+    static constexpr float kCellPx = 3.0f;
+    static constexpr float kShortPx2 = 2.0f * kCellPx * 2.0f * kCellPx;
     static float dist2(ImVec2 a, ImVec2 b) { return (a.x - b.x) * (a.x - b.x) + (a.y - b.y) * (a.y - b.y); }
     int outCode(ImVec2 p) const {
         return (p.x < m_lo.x ? 1 : 0) | (p.x > m_hi.x ? 2 : 0) | (p.y < m_lo.y ? 4 : 0) | (p.y > m_hi.y ? 8 : 0);
     }
-    ImDrawList* m_dl;
-    const PlanTransform& m_t;
-    ImU32 m_colour;
-    float m_thickness;
-    ImVec2 m_lo, m_hi;
+    std::uint8_t* cell(ImVec2 p) {
+        const float fx = (p.x - m_clip.min.x) / kCellPx, fy = (p.y - m_clip.min.y) / kCellPx;
+        if (fx < 0 || fy < 0 || fx >= static_cast<float>(m_cols) || fy >= static_cast<float>(m_rows)) return nullptr;
+        return &m_occ[static_cast<std::size_t>(fy) * static_cast<std::size_t>(m_cols) + static_cast<std::size_t>(fx)];
+    }
+    bool occupied(ImVec2 p) {
+        const std::uint8_t* c = cell(p);
+        return c && *c;
+    }
+    void mark(ImVec2 p) {
+        if (std::uint8_t* c = cell(p)) *c = 1;
+    }
+    void push(ImVec2 p) {
+        m_pts.push_back(p);
+        // Long pieces are finished in parts so that their cells count for the rest of the track.
+        if (m_pts.size() >= 512) {
+            const ImVec2 last = m_pts.back();
+            flush();
+            m_pts.push_back(last);
+        }
+    }
+    PlanTransform m_t;
+    Rect m_clip{};
+    std::vector<std::uint8_t> m_occ;
+    int m_cols = 0, m_rows = 0;
+    ImVec2 m_lo{0, 0}, m_hi{0, 0};
     std::vector<ImVec2> m_pts;
+    std::vector<std::vector<ImVec2>>* m_out = nullptr;
     ImVec2 m_prev{0, 0};
     int m_prev_code = 0;
     bool m_has_prev = false;
@@ -116,11 +154,51 @@ private:
     bool m_has_pending = false;
 };
 
+// What one track looked like after all its chunks but the last, for an unchanged view: the full
+// chunks never change, so while the view stands still only the last chunk is processed per frame.
+struct TrackCache {
+    bool valid = false;
+    PlanTransform t;
+    Rect clip{};
+    std::vector<const void*> prefix;  // chunk addresses
+    std::vector<std::vector<ImVec2>> pieces;
+    TrackDrawer state;
+};
+
+bool sameView(const PlanTransform& a, const PlanTransform& b, const Rect& ra, const Rect& rb) {
+    return a.center_e == b.center_e && a.center_n == b.center_n && a.px_per_m == b.px_per_m &&
+           a.rect_center.x == b.rect_center.x && a.rect_center.y == b.rect_center.y && ra.min.x == rb.min.x &&
+           ra.min.y == rb.min.y && ra.max.x == rb.max.x && ra.max.y == rb.max.y;
+}
+
 void drawTrack(ImDrawList* dl, const engine::Chunked<engine::PointEN>& track, const PlanTransform& t,
-               const Rect& clip, ImU32 colour, float thickness) {
-    TrackDrawer d(dl, t, clip, colour, thickness);
-    track.forEach([&](const engine::PointEN& p) { d.add(p); });
+               const Rect& clip, ImU32 colour, float thickness, TrackCache& cache) {
+    const auto& chunks = track.chunks;
+    const std::size_t nprefix = chunks.empty() ? 0 : chunks.size() - 1;
+    bool valid = cache.valid && sameView(cache.t, t, cache.clip, clip) && cache.prefix.size() == nprefix;
+    for (std::size_t i = 0; valid && i < nprefix; ++i) valid = cache.prefix[i] == chunks[i].get();
+    if (!valid) {
+        cache.t = t;
+        cache.clip = clip;
+        cache.prefix.clear();
+        cache.pieces.clear();
+        cache.state = TrackDrawer(t, clip);
+        cache.state.setOutput(&cache.pieces);
+        for (std::size_t i = 0; i < nprefix; ++i) {
+            cache.prefix.push_back(chunks[i].get());
+            if (chunks[i])
+                for (const auto& p : *chunks[i]) cache.state.add(p);
+        }
+        cache.valid = true;
+    }
+    TrackDrawer d = cache.state;  // continue from the end of the prefix
+    std::vector<std::vector<ImVec2>> tail;
+    d.setOutput(&tail);
+    if (!chunks.empty() && chunks.back())
+        for (const auto& p : *chunks.back()) d.add(p);
     d.flush();
+    for (const auto& piece : cache.pieces) drawPolylineChunked(dl, piece, colour, thickness);
+    for (const auto& piece : tail) drawPolylineChunked(dl, piece, colour, thickness);
 }
 
 void drawWorldPolyline(ImDrawList* dl, const std::vector<engine::PointEN>& pts, const PlanTransform& t,
@@ -201,8 +279,18 @@ public:
             }
         }
         if (ctx.settings->follow_vessel) {
-            m_t.center_e = s->vessel.e_m;
-            m_t.center_n = s->vessel.n_m;
+            // Recentre when the vessel leaves the middle 60 % of the view (or on the first frame):
+            // the map then stands still most of the time, which is calmer to watch and lets the
+            // track drawing reuse its work.
+            const ImVec2 v = m_t.toScreen(s->vessel);
+            const float mx = rect.width() * 0.2f, my = rect.height() * 0.2f;
+            if (!m_followed || v.x < amin.x + mx || v.x > amax.x - mx || v.y < amin.y + my || v.y > amax.y - my) {
+                m_t.center_e = s->vessel.e_m;
+                m_t.center_n = s->vessel.n_m;
+            }
+            m_followed = true;
+        } else {
+            m_followed = false;
         }
 
         dl->PushClipRect(amin, amax, true);
@@ -235,9 +323,10 @@ public:
         }
 
         // ---- tracks ----
-        drawTrack(dl, s->tow_track, m_t, rect, pal.tow_track, 1.5f * sc);
+        m_track_cache.resize(s->sensors.size() + 1);
+        drawTrack(dl, s->tow_track, m_t, rect, pal.tow_track, 1.5f * sc, m_track_cache[0]);
         for (std::size_t i = 0; i < s->sensors.size(); ++i)
-            drawTrack(dl, s->sensors[i].track, m_t, rect, withAlpha(pal.seriesColour(i), 200), 1.0f * sc);
+            drawTrack(dl, s->sensors[i].track, m_t, rect, withAlpha(pal.seriesColour(i), 200), 1.0f * sc, m_track_cache[i + 1]);
 
         // ---- labels (after the tracks so they stay readable) ----
         const ImU32 label_bg = withAlpha(pal.background, 190);
@@ -376,7 +465,9 @@ private:
     }
 
     PlanTransform m_t;
+    std::vector<TrackCache> m_track_cache;  // [0] tow point, [1..] sensors
     bool m_fitted = false;
+    bool m_followed = false;
     Rect m_last_rect{};
 };
 

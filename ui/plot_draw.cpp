@@ -7,40 +7,101 @@
 
 namespace sg::ui {
 
+namespace {
+
+void addSample(Column& c, const engine::SeriesPoint& p) {
+    if (c.count == 0) {
+        c.lo = c.hi = c.first = p.value;
+        c.t_first = p.t_s;
+    } else {
+        c.lo = std::min(c.lo, p.value);
+        c.hi = std::max(c.hi, p.value);
+    }
+    c.last = p.value;
+    c.t_last = p.t_s;
+    ++c.count;
+}
+
+void addBlock(Column& c, const Column& b) {
+    if (c.count == 0) {
+        c = b;
+        return;
+    }
+    c.lo = std::min(c.lo, b.lo);
+    c.hi = std::max(c.hi, b.hi);
+    c.last = b.last;
+    c.t_last = b.t_last;
+    c.count += b.count;
+}
+
+}  // namespace
+
+const std::vector<Column>& SeriesSummaryCache::blocks(
+    const std::shared_ptr<const std::vector<engine::SeriesPoint>>& chunk) {
+    Entry& e = m_entries[chunk.get()];
+    if (e.chunk.lock() != chunk) {  // new, or an old chunk's address reused
+        e.chunk = chunk;
+        e.blocks.clear();
+        const auto& v = *chunk;
+        for (std::size_t i = 0; i + kSummaryBlock <= v.size(); i += kSummaryBlock) {
+            Column c;
+            for (std::size_t k = i; k < i + kSummaryBlock; ++k) addSample(c, v[k]);
+            e.blocks.push_back(c);
+        }
+    }
+    return e.blocks;
+}
+
+void SeriesSummaryCache::endFrame() {
+    if (++m_frames % 64 != 0) return;  // expiry is cheap but need not run every frame
+    for (auto it = m_entries.begin(); it != m_entries.end();)
+        it = it->second.chunk.expired() ? m_entries.erase(it) : std::next(it);
+}
+
 std::size_t decimateSeries(const engine::Series& series, double t0, double t1, int columns,
-                           std::vector<Column>& out) {
+                           std::vector<Column>& out, SeriesSummaryCache* cache) {
     out.assign(static_cast<std::size_t>(std::max(columns, 1)), Column{});
     const double per_col = static_cast<double>(out.size()) / (t1 - t0);
+    auto columnOf = [&](double t) {
+        auto ci = static_cast<std::size_t>((t - t0) * per_col);
+        return ci >= out.size() ? out.size() - 1 : ci;
+    };
     const auto& chunks = series.points.chunks;
     // First chunk that may hold t >= t0 (chunks are in time order).
     auto it = std::partition_point(chunks.begin(), chunks.end(), [t0](const auto& c) {
         return !c || c->empty() || c->back().t_s < t0;
     });
-    std::size_t visited = 0;
+    std::size_t covered = 0;
     for (; it != chunks.end(); ++it) {
         if (!*it) continue;
         const auto& v = **it;
-        auto p = std::lower_bound(v.begin(), v.end(), t0,
-                                  [](const engine::SeriesPoint& s, double t) { return s.t_s < t; });
-        for (; p != v.end(); ++p) {
-            if (p->t_s > t1) return visited;
-            ++visited;
-            auto ci = static_cast<std::size_t>((p->t_s - t0) * per_col);
-            if (ci >= out.size()) ci = out.size() - 1;
-            Column& c = out[ci];
-            if (c.count == 0) {
-                c.lo = c.hi = c.first = p->value;
-                c.t_first = p->t_s;
-            } else {
-                c.lo = std::min(c.lo, p->value);
-                c.hi = std::max(c.hi, p->value);
+        if (v.empty()) continue;
+        if (v.front().t_s > t1) break;
+        // Blocks pay off only when a column spans several of them.
+        const double span = v.back().t_s - v.front().t_s;
+        const bool use_blocks = cache && v.size() >= 2 * kSummaryBlock && span > 0.0 &&
+                                static_cast<double>(v.size()) / span / per_col >= 2.0 * kSummaryBlock;
+        const std::vector<Column>* blocks = use_blocks ? &cache->blocks(*it) : nullptr;
+        std::size_t i = static_cast<std::size_t>(
+            std::lower_bound(v.begin(), v.end(), t0, [](const engine::SeriesPoint& s, double t) { return s.t_s < t; }) -
+            v.begin());
+        while (i < v.size()) {
+            if (v[i].t_s > t1) return covered;
+            if (blocks && i % kSummaryBlock == 0 && i / kSummaryBlock < blocks->size()) {
+                const Column& b = (*blocks)[i / kSummaryBlock];
+                if (b.t_last <= t1 && columnOf(b.t_first) == columnOf(b.t_last)) {
+                    addBlock(out[columnOf(b.t_first)], b);
+                    covered += kSummaryBlock;
+                    i += kSummaryBlock;
+                    continue;
+                }
             }
-            c.last = p->value;
-            c.t_last = p->t_s;
-            ++c.count;
+            addSample(out[columnOf(v[i].t_s)], v[i]);
+            ++covered;
+            ++i;
         }
     }
-    return visited;
+    return covered;
 }
 
 bool columnsRange(const std::vector<Column>& cols, float& lo, float& hi) {

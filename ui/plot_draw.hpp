@@ -5,7 +5,9 @@
 #pragma once
 
 #include <cstddef>
+#include <memory>
 #include <string>
+#include <unordered_map>
 #include <vector>
 
 #include <imgui.h>
@@ -22,10 +24,33 @@ struct Column {
     int count = 0;
 };
 
+// Summaries of consecutive blocks of kSummaryBlock samples of immutable series chunks, kept per
+// chunk for as long as the chunk lives, so a wide time window merges blocks instead of samples.
+constexpr std::size_t kSummaryBlock = 16;
+
+class SeriesSummaryCache {
+public:
+    // The block summaries of `chunk` (computed on first use); block k covers samples
+    // [k*kSummaryBlock, (k+1)*kSummaryBlock), only whole blocks are listed.
+    const std::vector<Column>& blocks(const std::shared_ptr<const std::vector<engine::SeriesPoint>>& chunk);
+    // Forgets chunks that no snapshot holds any more. Call once per frame.
+    void endFrame();
+    std::size_t size() const { return m_entries.size(); }
+
+private:
+    struct Entry {
+        std::weak_ptr<const std::vector<engine::SeriesPoint>> chunk;
+        std::vector<Column> blocks;
+    };
+    std::unordered_map<const void*, Entry> m_entries;
+    std::size_t m_frames = 0;
+};
+
 // Decimates the samples of `series` with t in [t0, t1] into `columns` equal time columns.
-// Returns the number of samples visited. columns >= 1, t1 > t0.
+// Returns the number of samples covered. columns >= 1, t1 > t0. With a cache, whole blocks that
+// fall inside one column are merged from their summaries (same result, fewer samples read).
 std::size_t decimateSeries(const engine::Series& series, double t0, double t1, int columns,
-                           std::vector<Column>& out);
+                           std::vector<Column>& out, SeriesSummaryCache* cache = nullptr);
 
 // Value range over decimated columns; returns false when no column has data.
 bool columnsRange(const std::vector<Column>& cols, float& lo, float& hi);

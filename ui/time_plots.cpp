@@ -70,6 +70,7 @@ public:
             ImGui::Dummy({w, plot_h + 4.0f});
         }
         ImGui::EndChild();
+        m_summaries.endFrame();
     }
 
 private:
@@ -87,7 +88,7 @@ private:
         bool any = false;
         for (std::size_t i = 0; i < g.series.size(); ++i) {
             if (!g.series[i]) continue;
-            decimateSeries(*g.series[i], t0, t1, cols, m_cols[i]);
+            decimateSeries(*g.series[i], t0, t1, cols, m_cols[i], &m_summaries);
             float a = 0, b = 0;
             if (columnsRange(m_cols[i], a, b)) {
                 lo = any ? std::min(lo, a) : a;
@@ -172,6 +173,7 @@ private:
     }
 
     std::vector<std::vector<Column>> m_cols;
+    SeriesSummaryCache m_summaries;
 };
 
 }  // namespace

@@ -128,6 +128,32 @@ TEST(Decimation, MatchesABruteForcePassOverEveryColumn) {
     EXPECT_EQ(b, *std::max_element(hi.begin(), hi.end()));
 }
 
+TEST(Decimation, BlockSummariesGiveTheSameColumnsAsSamples) {
+    // 10 Hz for an hour in 4096-sample chunks, 100 columns: about 360 samples per column, so most
+    // of the window is merged from block summaries.
+    sg::engine::Series s;
+    std::mt19937 rng(3);
+    std::normal_distribution<float> val(0.0f, 5.0f);
+    for (int i = 0; i < 36000; ++i) s.points.append({i * 0.1, val(rng)}, 4096);
+    std::vector<sg::ui::Column> plain, merged;
+    sg::ui::SeriesSummaryCache cache;
+    const double t0 = 123.45, t1 = 3333.3;
+    const auto n1 = sg::ui::decimateSeries(s, t0, t1, 100, plain);
+    const auto n2 = sg::ui::decimateSeries(s, t0, t1, 100, merged, &cache);
+    EXPECT_EQ(n1, n2);
+    EXPECT_GT(cache.size(), 0u);
+    ASSERT_EQ(plain.size(), merged.size());
+    for (std::size_t c = 0; c < plain.size(); ++c) {
+        EXPECT_EQ(plain[c].count, merged[c].count) << c;
+        EXPECT_EQ(plain[c].lo, merged[c].lo) << c;
+        EXPECT_EQ(plain[c].hi, merged[c].hi) << c;
+        EXPECT_EQ(plain[c].first, merged[c].first) << c;
+        EXPECT_EQ(plain[c].last, merged[c].last) << c;
+        EXPECT_EQ(plain[c].t_first, merged[c].t_first) << c;
+        EXPECT_EQ(plain[c].t_last, merged[c].t_last) << c;
+    }
+}
+
 TEST(Decimation, EmptyWindowVisitsNothing) {
     sg::engine::Series s;
     for (int i = 0; i < 100; ++i) s.points.append({static_cast<double>(i), 1.0f}, 16);
