@@ -1,0 +1,475 @@
+// Target models, their peak-factor tables and the config parser; see target_model.hpp.
+#include "detect/target_model.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <utility>
+
+#include "common/config_section.hpp"
+
+namespace sg::detect {
+
+namespace {
+
+constexpr double kTwoPi = 2.0 * kPi;
+constexpr double kHalfPi = 0.5 * kPi;
+constexpr double kDegToRad = kPi / 180.0;
+// (mu0/4pi) in nT m^3 per A m^2: anomaly (nT) = kDipoleScale * m * G / r^3.
+constexpr double kDipoleScale = kMu0Over4Pi * kTeslaToNanoTesla;
+// |3 (f.r^)(m^.r^) - f.m^| <= 2 for unit vectors: no geometry gives a larger peak factor.
+constexpr double kMaxPeakFactor = 2.0;
+
+double wrapTwoPi(double a) {
+    a = std::fmod(a, kTwoPi);
+    return a < 0 ? a + kTwoPi : a;
+}
+
+// Sensor positions (relative to the target, north-east-down in the MAGNETIC frame, rho = 1) along
+// a straight pass, parametrised by the angle alpha seen from the closest point of approach:
+// along-track s = tan(alpha). Target to starboard of the pass.
+struct PassGeometry {
+    Vec3 u;       // along-track unit vector
+    Vec3 c;       // closest point of approach (|c| = 1)
+    Vec3 f;       // ambient field unit vector
+
+    PassGeometry(double inclination_rad, double depression_rad, double heading_mag_rad) {
+        u = {std::cos(heading_mag_rad), std::sin(heading_mag_rad), 0.0};
+        const Vec3 starboard{-std::sin(heading_mag_rad), std::cos(heading_mag_rad), 0.0};
+        // The target is to starboard, so the sensor is to port of the target, and above it.
+        c = (-std::cos(depression_rad)) * starboard + Vec3{0.0, 0.0, -std::sin(depression_rad)};
+        f = ambientFieldUnit(inclination_rad, 0.0);
+    }
+    Vec3 at(double alpha) const { return c + std::tan(alpha) * u; }
+    // a(s) such that the anomaly per unit K is m^ . a(s) (Blakely 1995: B = (3(m.r^)r^ - m)/r^3,
+    // dT = f . B = m . (3 (f.r^) r^ - f) / r^3).
+    Vec3 sensitivity(double alpha) const {
+        const Vec3 r = at(alpha);
+        const double r2 = dot(r, r);
+        const double inv_r3 = 1.0 / (r2 * std::sqrt(r2));
+        return inv_r3 * (3.0 * dot(f, r) / r2 * r - f);
+    }
+};
+
+constexpr int kAlphaSamples = 89;  // alpha in [-88, 88] degrees, 2-degree steps
+constexpr double kAlphaMax = 88.0 * kDegToRad;
+
+double alphaAt(int i) { return -kAlphaMax + 2.0 * kAlphaMax * i / (kAlphaSamples - 1); }
+
+double inducedPeak(const PassGeometry& g) {
+    auto value = [&](double alpha) { return std::fabs(dot(g.f, g.sensitivity(alpha))); };
+    int best = 0;
+    double best_v = -1.0;
+    for (int i = 0; i < kAlphaSamples; ++i) {
+        const double v = value(alphaAt(i));
+        if (v > best_v) {
+            best_v = v;
+            best = i;
+        }
+    }
+    // Golden-section refinement on the bracket around the best sample.
+    double a = alphaAt(std::max(best - 1, 0));
+    double b = alphaAt(std::min(best + 1, kAlphaSamples - 1));
+    constexpr double kInvPhi = 0.6180339887498949;
+    double x1 = b - kInvPhi * (b - a);
+    double x2 = a + kInvPhi * (b - a);
+    double f1 = value(x1);
+    double f2 = value(x2);
+    for (int it = 0; it < 40; ++it) {
+        if (f1 > f2) {
+            b = x2;
+            x2 = x1;
+            f2 = f1;
+            x1 = b - kInvPhi * (b - a);
+            f1 = value(x1);
+        } else {
+            a = x1;
+            x1 = x2;
+            f1 = f2;
+            x2 = a + kInvPhi * (b - a);
+            f2 = value(x2);
+        }
+    }
+    return std::max({best_v, f1, f2});
+}
+
+// min over unit moment directions m of max over the pass of |m . a(s)|: the orientation that
+// hides the target best on this pass. The pass is sampled densely (the sampled maximum can only
+// be lower than the true one, which errs on the safe side); the direction is searched on a
+// Fibonacci hemisphere and refined by a shrinking pattern search.
+double worstPeak(const PassGeometry& g) {
+    constexpr int kPass = 121;
+    std::array<Vec3, kPass> a{};
+    for (int i = 0; i < kPass; ++i) {
+        a[static_cast<std::size_t>(i)] = g.sensitivity(-kAlphaMax + 2.0 * kAlphaMax * i / (kPass - 1));
+    }
+    auto peak = [&](Vec3 m) {
+        double v = 0.0;
+        for (const Vec3& ai : a) v = std::max(v, std::fabs(dot(m, ai)));
+        return v;
+    };
+    constexpr int kStarts = 300;
+    constexpr double kGolden = 2.399963229728653;  // pi (3 - sqrt 5)
+    Vec3 best{};
+    double best_v = 1e300;
+    for (int i = 0; i < kStarts; ++i) {
+        const double z = 1.0 - (i + 0.5) / kStarts;  // upper hemisphere: m and -m are alike
+        const double rr = std::sqrt(1.0 - z * z);
+        const double th = kGolden * i;
+        const Vec3 m{rr * std::cos(th), rr * std::sin(th), z};
+        const double v = peak(m);
+        if (v < best_v) {
+            best_v = v;
+            best = m;
+        }
+    }
+    double step = 0.1;
+    while (step > 1e-5) {
+        bool improved = false;
+        // Two tangent directions at `best`.
+        Vec3 t1 = std::fabs(best.z) < 0.9 ? Vec3{-best.y, best.x, 0.0} : Vec3{0.0, -best.z, best.y};
+        t1 = (1.0 / norm(t1)) * t1;
+        const Vec3 t2{best.y * t1.z - best.z * t1.y, best.z * t1.x - best.x * t1.z,
+                      best.x * t1.y - best.y * t1.x};
+        const std::array<Vec3, 4> dirs{t1, -1.0 * t1, t2, -1.0 * t2};
+        for (const Vec3& d : dirs) {
+            Vec3 m = best + step * d;
+            m = (1.0 / norm(m)) * m;
+            const double v = peak(m);
+            if (v < best_v) {
+                best_v = v;
+                best = m;
+                improved = true;
+            }
+        }
+        if (!improved) step *= 0.5;
+    }
+    return best_v;
+}
+
+}  // namespace
+
+double peakFactorDirect(Orientation orientation, double inclination_rad, double depression_rad,
+                        double heading_mag_rad) {
+    const PassGeometry g(inclination_rad, depression_rad, heading_mag_rad);
+    return orientation == Orientation::Induced ? inducedPeak(g) : worstPeak(g);
+}
+
+// ---------------------------------------------------------------------------------------------
+// PeakTable
+
+PeakTable::PeakTable(Orientation orientation, double inclination_rad)
+    : m_orientation(orientation), m_inclination_rad(inclination_rad) {
+    m_g.resize(static_cast<std::size_t>((kDeprSteps + 1) * kHeadingSteps));
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        const double heading = kTwoPi * j / kHeadingSteps;
+        for (int i = 0; i <= kDeprSteps; ++i) {
+            const double depr = kHalfPi * i / kDeprSteps;
+            m_g[static_cast<std::size_t>(j * (kDeprSteps + 1) + i)] =
+                peakFactorDirect(orientation, inclination_rad, depr, heading);
+        }
+    }
+    m_width2.resize(static_cast<std::size_t>((kHeightSteps + 1) * kHeadingSteps));
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        for (int i = 0; i <= kHeightSteps; ++i) {
+            const double h = kMaxHeightNorm * i / kHeightSteps;
+            m_width2[static_cast<std::size_t>(j * (kHeightSteps + 1) + i)] =
+                halfWidthSquaredFromG(h, j);
+        }
+    }
+}
+
+double PeakTable::peakFactor(double depression_rad, double heading_mag_rad, bool starboard) const {
+    double hp = wrapTwoPi(starboard ? heading_mag_rad : heading_mag_rad + kPi) / kTwoPi *
+                kHeadingSteps;
+    int j0 = static_cast<int>(hp);
+    const double wj = hp - j0;
+    j0 %= kHeadingSteps;
+    const int j1 = (j0 + 1) % kHeadingSteps;
+    double dp = std::clamp(depression_rad, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
+    int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
+    const double wi = dp - i0;
+    const double* r0 = &m_g[static_cast<std::size_t>(j0 * (kDeprSteps + 1) + i0)];
+    const double* r1 = &m_g[static_cast<std::size_t>(j1 * (kDeprSteps + 1) + i0)];
+    return (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) + wj * ((1 - wi) * r1[0] + wi * r1[1]);
+}
+
+// The largest normalised offset d such that every offset in [0, d] is detectable (peak factor /
+// rho^3 >= 1), squared. When even the track centre is not detectable, a negative value
+// g(centre)^(2/3) - h^2 is stored instead, so interpolation crosses zero where the swath closes.
+double PeakTable::halfWidthSquaredFromG(double h, int heading_index) const {
+    const double heading = kTwoPi * heading_index / kHeadingSteps;
+    auto detectable = [&](double d) {
+        const double rho2 = h * h + d * d;
+        if (rho2 <= 1e-12) return true;
+        const double g = peakFactor(std::atan2(h, d), heading, true);
+        return g >= rho2 * std::sqrt(rho2);
+    };
+    if (!detectable(0.0)) {
+        const double g0 = peakFactor(kHalfPi, heading, true);
+        return std::min(std::cbrt(g0 * g0) - h * h, 0.0);
+    }
+    const double d_max = std::sqrt(std::max(0.0, std::cbrt(kMaxPeakFactor * kMaxPeakFactor)));
+    constexpr double kStep = 0.004;
+    double lo = 0.0;
+    double hi = -1.0;
+    for (double d = kStep; d <= d_max + kStep; d += kStep) {
+        if (!detectable(d)) {
+            hi = d;
+            break;
+        }
+        lo = d;
+    }
+    if (hi < 0) return lo * lo;
+    for (int it = 0; it < 30; ++it) {
+        const double mid = 0.5 * (lo + hi);
+        (detectable(mid) ? lo : hi) = mid;
+    }
+    return lo * lo;
+}
+
+double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, bool starboard) const {
+    if (!(h_norm >= 0.0) || h_norm >= kMaxHeightNorm) return 0.0;
+    double hp = wrapTwoPi(starboard ? heading_mag_rad : heading_mag_rad + kPi) / kTwoPi *
+                kHeadingSteps;
+    int j0 = static_cast<int>(hp);
+    const double wj = hp - j0;
+    j0 %= kHeadingSteps;
+    const int j1 = (j0 + 1) % kHeadingSteps;
+    const double ip = h_norm / kMaxHeightNorm * kHeightSteps;
+    const int i0 = std::min(static_cast<int>(ip), kHeightSteps - 1);
+    const double wi = ip - i0;
+    const double* r0 = &m_width2[static_cast<std::size_t>(j0 * (kHeightSteps + 1) + i0)];
+    const double* r1 = &m_width2[static_cast<std::size_t>(j1 * (kHeightSteps + 1) + i0)];
+    const double lo = std::min({r0[0], r0[1], r1[0], r1[1]});
+    const double hi = std::max({r0[0], r0[1], r1[0], r1[1]});
+    // A cell whose corners differ a lot straddles a jump of the half-width (a dip of the peak
+    // along the offset crossing the threshold): interpolating across it would overstate the
+    // swath, so take the smallest corner (the safe side).
+    const double w2 = hi - lo > kJumpWidth2
+                          ? lo
+                          : (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) +
+                                wj * ((1 - wi) * r1[0] + wi * r1[1]);
+    return w2 > 0.0 ? std::sqrt(w2) : 0.0;
+}
+
+double PeakTable::maxNormalisedHeight(double heading_mag_rad) const {
+    // Swaths are contiguous from the track: the target must be detectable directly below.
+    return std::cbrt(peakFactor(kHalfPi, heading_mag_rad, true));
+}
+
+double PeakTable::normalisedHalfWidthDirect(double h, double heading_mag_rad,
+                                            bool starboard) const {
+    const double heading = starboard ? heading_mag_rad : heading_mag_rad + kPi;
+    auto detectable = [&](double d) {
+        const double rho2 = h * h + d * d;
+        if (rho2 <= 1e-12) return true;
+        const double g = peakFactorDirect(m_orientation, m_inclination_rad, std::atan2(h, d),
+                                          heading);
+        return g >= rho2 * std::sqrt(rho2);
+    };
+    if (!detectable(0.0)) return 0.0;
+    constexpr double kStep = 0.01;
+    double lo = 0.0;
+    double hi = -1.0;
+    for (double d = kStep; d <= 1.6; d += kStep) {
+        if (!detectable(d)) {
+            hi = d;
+            break;
+        }
+        lo = d;
+    }
+    if (hi < 0) return lo;
+    for (int it = 0; it < 25; ++it) {
+        const double mid = 0.5 * (lo + hi);
+        (detectable(mid) ? lo : hi) = mid;
+    }
+    return lo;
+}
+
+// ---------------------------------------------------------------------------------------------
+// TargetModel
+
+TargetModel::TargetModel(TargetClass cls, const GeomagneticField& field, double mass_rule_C,
+                         std::shared_ptr<const PeakTable> table)
+    : m_class(std::move(cls)), m_declination_rad(field.declination_deg * kDegToRad),
+      m_inclination_rad(field.inclination_deg * kDegToRad), m_table(std::move(table)) {
+    switch (m_class.model) {
+    case ModelKind::MassRule:
+        m_strength = mass_rule_C * m_class.mass_kg;
+        m_table.reset();
+        break;
+    case ModelKind::Dipole:
+        m_moment_Am2 = m_class.moment_Am2;
+        m_strength = kDipoleScale * m_moment_Am2;
+        break;
+    case ModelKind::Sphere:
+        m_moment_Am2 =
+            sphereInducedMoment_Am2(m_class.radius_m, m_class.susceptibility, field.intensity_nT);
+        m_strength = kDipoleScale * m_moment_Am2;
+        break;
+    }
+    m_cbrt_strength = std::cbrt(m_strength);
+}
+
+double TargetModel::magHeading(double heading_true_rad) const {
+    return heading_true_rad - m_declination_rad;
+}
+
+HalfWidths TargetModel::halfWidths(double vertical_m, double heading_true_rad,
+                                   double threshold_nT) const {
+    if (!(vertical_m > 0.0) || !(threshold_nT > 0.0)) return {};
+    const double range = m_cbrt_strength / std::cbrt(threshold_nT);  // R_T
+    const double h = vertical_m / range;
+    if (!m_table) {
+        // Mass rule: isotropic, A = K / rho^3, so the half-width is sqrt(R_T^2 - h^2).
+        const double w = h < 1.0 ? range * std::sqrt(1.0 - h * h) : 0.0;
+        return {w, w};
+    }
+    const double psi = magHeading(heading_true_rad);
+    return {range * m_table->normalisedHalfWidth(h, psi, false),
+            range * m_table->normalisedHalfWidth(h, psi, true)};
+}
+
+HalfWidths TargetModel::halfWidthsDirect(double vertical_m, double heading_true_rad,
+                                         double threshold_nT) const {
+    if (!(vertical_m > 0.0) || !(threshold_nT > 0.0)) return {};
+    const double range = std::cbrt(m_strength / threshold_nT);
+    const double h = vertical_m / range;
+    if (!m_table) {
+        const double w = h < 1.0 ? range * std::sqrt(1.0 - h * h) : 0.0;
+        return {w, w};
+    }
+    const double psi = magHeading(heading_true_rad);
+    return {range * m_table->normalisedHalfWidthDirect(h, psi, false),
+            range * m_table->normalisedHalfWidthDirect(h, psi, true)};
+}
+
+double TargetModel::peakAnomaly_nT(double vertical_m, double offset_m,
+                                   double heading_true_rad) const {
+    const double rho2 = vertical_m * vertical_m + offset_m * offset_m;
+    if (!(rho2 > 0.0)) return 0.0;
+    const double inv_rho3 = 1.0 / (rho2 * std::sqrt(rho2));
+    if (!m_table) return m_strength * inv_rho3;
+    const double g = m_table->peakFactor(std::atan2(vertical_m, std::fabs(offset_m)),
+                                         magHeading(heading_true_rad), offset_m >= 0.0);
+    return m_strength * g * inv_rho3;
+}
+
+double TargetModel::peakAnomalyDirect_nT(double vertical_m, double offset_m,
+                                         double heading_true_rad) const {
+    const double rho2 = vertical_m * vertical_m + offset_m * offset_m;
+    if (!(rho2 > 0.0)) return 0.0;
+    const double inv_rho3 = 1.0 / (rho2 * std::sqrt(rho2));
+    if (!m_table) return m_strength * inv_rho3;
+    const double psi = magHeading(heading_true_rad) + (offset_m >= 0.0 ? 0.0 : kPi);
+    const double g = peakFactorDirect(m_table->orientation(), m_inclination_rad,
+                                      std::atan2(vertical_m, std::fabs(offset_m)), psi);
+    return m_strength * g * inv_rho3;
+}
+
+double TargetModel::detectionRange_m(double heading_true_rad, double threshold_nT) const {
+    if (!(threshold_nT > 0.0)) return 0.0;
+    const double range = m_cbrt_strength / std::cbrt(threshold_nT);
+    if (!m_table) return range;
+    return range * m_table->maxNormalisedHeight(magHeading(heading_true_rad));
+}
+
+std::vector<TargetModel> makeModels(const DetectionConfig& cfg) {
+    const double incl = cfg.field.inclination_deg * kDegToRad;
+    std::shared_ptr<const PeakTable> induced;
+    std::shared_ptr<const PeakTable> worst;
+    std::vector<TargetModel> out;
+    out.reserve(cfg.targets.size());
+    for (const TargetClass& t : cfg.targets) {
+        std::shared_ptr<const PeakTable> table;
+        if (t.model != ModelKind::MassRule) {
+            auto& slot = t.orientation == Orientation::Induced ? induced : worst;
+            if (!slot) slot = std::make_shared<const PeakTable>(t.orientation, incl);
+            table = slot;
+        }
+        out.emplace_back(t, cfg.field, cfg.detection.mass_rule_C, table);
+    }
+    return out;
+}
+
+const char* modelName(ModelKind kind) {
+    switch (kind) {
+    case ModelKind::MassRule: return "mass_rule";
+    case ModelKind::Dipole: return "dipole";
+    case ModelKind::Sphere: return "sphere";
+    }
+    return "?";
+}
+
+const char* orientationName(Orientation o) {
+    return o == Orientation::Induced ? "induced" : "worst";
+}
+
+// ---------------------------------------------------------------------------------------------
+// Config
+
+DetectionConfig parseDetectionConfig(const config::Section& root) {
+    DetectionConfig cfg;
+    if (auto g = root.optionalTable("geomagnetic")) {
+        g->allowOnly({"inclination_deg", "declination_deg", "intensity_nT"});
+        cfg.field.inclination_deg = g->number("inclination_deg", -90.0, 90.0);
+        cfg.field.declination_deg = g->number("declination_deg", -180.0, 180.0, 0.0);
+        cfg.field.intensity_nT = g->number("intensity_nT", 1000.0, 100000.0);
+    } else {
+        root.fail("geomagnetic", "a [geomagnetic] table (inclination_deg, intensity_nT)");
+    }
+    if (auto d = root.optionalTable("detection")) {
+        d->allowOnly({"k", "min_anomaly_nT", "noise_window", "mass_rule_C"});
+        cfg.detection.k = d->number("k", 0.0, 100.0, cfg.detection.k);
+        cfg.detection.min_anomaly_nT =
+            d->number("min_anomaly_nT", 0.0, 1e6, cfg.detection.min_anomaly_nT);
+        cfg.detection.noise_window =
+            static_cast<int>(d->integer("noise_window", 8, 1000000, cfg.detection.noise_window));
+        cfg.detection.mass_rule_C = d->number("mass_rule_C", 1e-6, 1e6, cfg.detection.mass_rule_C);
+        if (cfg.detection.min_anomaly_nT <= 0.0 && cfg.detection.k <= 0.0) {
+            d->fail("min_anomaly_nT", "a positive minimum anomaly when k is 0");
+        }
+    }
+    const auto targets = root.tables("target");
+    if (targets.empty()) root.fail("target", "at least one [[target]] table");
+    for (const config::Section& t : targets) {
+        t.allowOnly({"name", "model", "mass_kg", "moment_Am2", "radius_m", "susceptibility",
+                     "burial_m", "orientation"});
+        TargetClass c;
+        c.name = t.string("name");
+        const std::string model = t.choice("model", {"mass_rule", "dipole", "sphere"});
+        c.burial_m = t.number("burial_m", 0.0, 100.0, 0.0);
+        auto reject = [&](std::initializer_list<std::string_view> keys, const char* why) {
+            for (std::string_view k : keys) {
+                if (t.has(k)) t.fail(k, why);
+            }
+        };
+        if (model == "mass_rule") {
+            c.model = ModelKind::MassRule;
+            c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
+            reject({"moment_Am2", "radius_m", "susceptibility", "orientation"},
+                   "no such key for model \"mass_rule\" (it uses mass_kg)");
+        } else {
+            c.orientation = t.choice("orientation", {"induced", "worst"}, "worst") == "induced"
+                                ? Orientation::Induced
+                                : Orientation::Worst;
+            if (model == "dipole") {
+                c.model = ModelKind::Dipole;
+                c.moment_Am2 = t.number("moment_Am2", 1e-6, 1e9);
+                reject({"mass_kg", "radius_m", "susceptibility"},
+                       "no such key for model \"dipole\" (it uses moment_Am2)");
+            } else {
+                c.model = ModelKind::Sphere;
+                c.radius_m = t.number("radius_m", 1e-3, 100.0);
+                c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
+                reject({"mass_kg", "moment_Am2"},
+                       "no such key for model \"sphere\" (it uses radius_m and susceptibility)");
+            }
+        }
+        cfg.targets.push_back(std::move(c));
+    }
+    return cfg;
+}
+
+}  // namespace sg::detect

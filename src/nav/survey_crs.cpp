@@ -1,0 +1,135 @@
+// PROJ-backed survey CRS; see survey_crs.hpp.
+#include "nav/survey_crs.hpp"
+
+#include <proj.h>
+
+#include <cmath>
+#include <limits>
+#include <stdexcept>
+#include <string>
+#include <utility>
+
+namespace sg::nav {
+
+namespace {
+
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+constexpr double kDegToRad = 3.14159265358979323846 / 180.0;
+constexpr double kRadToDeg = 180.0 / 3.14159265358979323846;
+
+}  // namespace
+
+SurveyCrs::SurveyCrs(int epsg) : m_epsg(epsg) {
+    m_ctx = proj_context_create();
+    if (m_ctx == nullptr) throw std::runtime_error("PROJ: cannot create a context");
+    // Errors are reported through exceptions below; keep PROJ quiet on stderr.
+    proj_log_level(m_ctx, PJ_LOG_NONE);
+    const std::string target = "EPSG:" + std::to_string(epsg);
+    m_projected = proj_create(m_ctx, target.c_str());
+    if (m_projected == nullptr) {
+        release();
+        throw std::invalid_argument("survey CRS: EPSG code " + std::to_string(epsg) +
+                                    " is unknown to PROJ");
+    }
+    if (proj_get_type(m_projected) != PJ_TYPE_PROJECTED_CRS) {
+        release();
+        throw std::invalid_argument("survey CRS: EPSG:" + std::to_string(epsg) +
+                                    " is not a projected CRS (eastings/northings in metres)");
+    }
+    if (const char* n = proj_get_name(m_projected)) m_name = n;
+    PJ* raw = proj_create_crs_to_crs(m_ctx, "EPSG:4326", target.c_str(), nullptr);
+    if (raw == nullptr) {
+        release();
+        throw std::invalid_argument("survey CRS: no transformation from WGS 84 to " + target);
+    }
+    // EPSG:4326 is latitude, longitude and some projected CRSs are northing, easting: normalise
+    // both ends to longitude/latitude and easting/northing (BUILD-NOTES pitfall 10).
+    m_transform = proj_normalize_for_visualization(m_ctx, raw);
+    proj_destroy(raw);
+    if (m_transform == nullptr) {
+        release();
+        throw std::runtime_error("survey CRS: PROJ could not normalise the axis order");
+    }
+}
+
+SurveyCrs::~SurveyCrs() { release(); }
+
+SurveyCrs::SurveyCrs(SurveyCrs&& other) noexcept
+    : m_epsg(other.m_epsg), m_name(std::move(other.m_name)),
+      m_ctx(std::exchange(other.m_ctx, nullptr)),
+      m_transform(std::exchange(other.m_transform, nullptr)),
+      m_projected(std::exchange(other.m_projected, nullptr)) {}
+
+SurveyCrs& SurveyCrs::operator=(SurveyCrs&& other) noexcept {
+    if (this != &other) {
+        release();
+        m_epsg = other.m_epsg;
+        m_name = std::move(other.m_name);
+        m_ctx = std::exchange(other.m_ctx, nullptr);
+        m_transform = std::exchange(other.m_transform, nullptr);
+        m_projected = std::exchange(other.m_projected, nullptr);
+    }
+    return *this;
+}
+
+void SurveyCrs::release() noexcept {
+    if (m_transform != nullptr) proj_destroy(m_transform);
+    if (m_projected != nullptr) proj_destroy(m_projected);
+    if (m_ctx != nullptr) proj_context_destroy(m_ctx);
+    m_transform = nullptr;
+    m_projected = nullptr;
+    m_ctx = nullptr;
+}
+
+int SurveyCrs::utmEpsgForLonLat(double lon_deg, double lat_deg) {
+    double lon = std::fmod(lon_deg + 180.0, 360.0);
+    if (lon < 0) lon += 360.0;
+    int zone = static_cast<int>(std::floor(lon / 6.0)) + 1;
+    if (zone > 60) zone = 60;
+    // The standard grid's exceptions (UTM grid zone designations 32V and 31X-37X).
+    if (lat_deg >= 56.0 && lat_deg < 64.0 && lon_deg >= 3.0 && lon_deg < 12.0) zone = 32;
+    if (lat_deg >= 72.0 && lat_deg <= 84.0 && lon_deg >= 0.0 && lon_deg < 42.0) {
+        if (lon_deg < 9.0) zone = 31;
+        else if (lon_deg < 21.0) zone = 33;
+        else if (lon_deg < 33.0) zone = 35;
+        else zone = 37;
+    }
+    return (lat_deg >= 0.0 ? 32600 : 32700) + zone;
+}
+
+SurveyCrs SurveyCrs::utmForLonLat(double lon_deg, double lat_deg) {
+    return SurveyCrs(utmEpsgForLonLat(lon_deg, lat_deg));
+}
+
+EastNorth SurveyCrs::forward(double lon_deg, double lat_deg) const {
+    PJ_COORD in = proj_coord(lon_deg, lat_deg, 0.0, 0.0);
+    PJ_COORD out = proj_trans(m_transform, PJ_FWD, in);
+    if (!std::isfinite(out.xy.x) || !std::isfinite(out.xy.y) || out.xy.x == HUGE_VAL) {
+        proj_errno_reset(m_transform);
+        return {kNaN, kNaN};
+    }
+    return {out.xy.x, out.xy.y};
+}
+
+LonLat SurveyCrs::inverse(double easting_m, double northing_m) const {
+    PJ_COORD in = proj_coord(easting_m, northing_m, 0.0, 0.0);
+    PJ_COORD out = proj_trans(m_transform, PJ_INV, in);
+    if (!std::isfinite(out.xy.x) || !std::isfinite(out.xy.y) || out.xy.x == HUGE_VAL) {
+        proj_errno_reset(m_transform);
+        return {kNaN, kNaN};
+    }
+    return {out.xy.x, out.xy.y};
+}
+
+double SurveyCrs::convergence_deg(double lon_deg, double lat_deg) const {
+    // proj_factors takes geodetic longitude, latitude in radians and accepts a projected CRS.
+    PJ_COORD in = proj_coord(lon_deg * kDegToRad, lat_deg * kDegToRad, 0.0, 0.0);
+    PJ_FACTORS f = proj_factors(m_projected, in);
+    if (proj_errno(m_projected) != 0) {
+        proj_errno_reset(m_projected);
+        return kNaN;
+    }
+    return f.meridian_convergence * kRadToDeg;
+}
+
+}  // namespace sg::nav
