@@ -100,6 +100,7 @@ private:
     bool m_style_night = false;
     bool m_settings_changed = false;
     bool m_banner_shown = false;
+    int m_tab_frames = 0;
     int m_last_unacked = 0;
     std::optional<engine::PointEN> m_focus;
 };

@@ -97,8 +97,14 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
             if (p->slot() != Slot::kTab) continue;
             // A new unacknowledged alarm brings the alarm list to the front.
             const bool is_alarms = std::string_view(p->name()) == "Alarms";
-            const ImGuiTabItemFlags f = (is_alarms && unacked > m_last_unacked) ? ImGuiTabItemFlags_SetSelected : 0;
+            const bool restore = m_tab_frames < 2 && m_settings.tab == p->name();
+            const ImGuiTabItemFlags f =
+                ((is_alarms && unacked > m_last_unacked) || restore) ? ImGuiTabItemFlags_SetSelected : 0;
             if (ImGui::BeginTabItem(p->name(), nullptr, f)) {
+                if (m_tab_frames >= 3 && m_settings.tab != p->name()) {
+                    m_settings.tab = p->name();  // the operator (or a new alarm) chose this tab
+                    m_settings_changed = true;
+                }
                 const ImVec2 a = ImGui::GetCursorScreenPos();
                 const ImVec2 avail = ImGui::GetContentRegionAvail();
                 p->draw(ctx, a, {a.x + avail.x, a.y + avail.y});
@@ -106,6 +112,7 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
             }
         }
         ImGui::EndTabBar();
+        ++m_tab_frames;  // the saved tab is applied over the first frames, then choices are recorded
     }
     ImGui::End();
     m_last_unacked = unacked;

@@ -88,6 +88,8 @@ ScreenSettings loadSettings(const std::string& path, std::vector<std::string>& w
         } else if (key == "follow_vessel") {
             if (value == "true" || value == "false") s.follow_vessel = value == "true";
             else warn(key, "must be 'true' or 'false', got '" + value + "'");
+        } else if (key == "tab") {
+            s.tab = value;  // an unknown name simply selects no saved tab
         } else if (key == "hidden_plots") {
             s.hidden_plots = splitList(value);
         } else {
@@ -119,6 +121,7 @@ bool saveSettings(const std::string& path, const ScreenSettings& s, std::string&
             << "ui_scale = " << s.ui_scale << "\n"
             << "plot_minutes = " << s.plot_minutes << "\n"
             << "follow_vessel = " << (s.follow_vessel ? "true" : "false") << "\n"
+            << "tab = " << s.tab << "\n"
             << "hidden_plots = ";
         for (std::size_t i = 0; i < s.hidden_plots.size(); ++i) out << (i ? ", " : "") << s.hidden_plots[i];
         out << "\n";

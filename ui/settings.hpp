@@ -17,6 +17,7 @@ struct ScreenSettings {
     int plot_minutes = 10;       // time window of the time plots, 1 .. 720 minutes
     bool follow_vessel = true;   // plan view keeps the vessel in view
     std::vector<std::string> hidden_plots;  // titles of time plots the operator switched off
+    std::string tab = "Alarms";  // the tab shown under the plots: Alarms, Runs & infill, Profiles
 };
 
 // Default path as described above; empty when neither XDG_CONFIG_HOME nor HOME is set.

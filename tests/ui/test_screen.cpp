@@ -235,6 +235,41 @@ TEST_F(ScreenTest, NightPaletteIsMuchDimmerThanDay) {
     EXPECT_LT(n, 0.25 * d);
 }
 
+// The saved tab is the one shown: the Profiles tab fills the tab area with the sensors' traces
+// (series colours), the Runs tab does not; the replay strip is on screen in both
+// (build/test_ui_out/tab_*.png are also for a person to look at).
+int seriesPixels(const Image& img, const sg::ui::Rect& r) {
+    const auto& pal = sg::ui::dayPalette();
+    int n = 0;
+    for (int y = static_cast<int>(r.min.y); y < static_cast<int>(r.max.y); ++y)
+        for (int x = static_cast<int>(r.min.x); x < static_cast<int>(r.max.x); ++x)
+            for (int k = 0; k < 4; ++k)
+                if (near(img.at(x, y), pal.seriesColour(static_cast<std::size_t>(k)), 10)) {
+                    ++n;
+                    break;
+                }
+    return n;
+}
+
+TEST_F(ScreenTest, SavedTabIsShownAndReplayStripRenders) {
+    sg::testdata::SyntheticOptions o;
+    o.acknowledge_alarm = true;
+    o.replay = true;
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, /*replay=*/true, /*banner=*/false);
+    int counts[2] = {0, 0};
+    int i = 0;
+    for (const char* tab : {"Profiles", "Runs & infill"}) {
+        std::ofstream(m_ini, std::ios::trunc) << "[screen]\nfollow_vessel = false\ntab = " << tab << "\n";
+        const Image img = render(sg::testdata::makeSyntheticSnapshot(o), std::string("tab_") + (i == 0 ? "profiles" : "runs"));
+        ASSERT_EQ(img.w, 1600);
+        counts[i++] = seriesPixels(img, layout.tabs);
+        std::vector<std::string> warnings;
+        EXPECT_EQ(sg::ui::loadSettings(m_ini, warnings).tab, tab);  // not overwritten by the screen
+    }
+    EXPECT_GT(counts[0], 1500) << "profile traces not drawn";
+    EXPECT_LT(counts[1], counts[0] / 5);
+}
+
 TEST_F(ScreenTest, PausedScreenNeverBlocksTheProducer) {
     sg::ui::SnapshotBox box;
     sg::ui::CommandQueue commands;
