@@ -215,6 +215,18 @@ TEST_F(ScreenTest, AlarmBannerWhileUnacknowledgedAndGoneAfterAcknowledgement) {
     EXPECT_LT(bannerFraction(off, layout, pal.banner), 0.01);
 }
 
+TEST_F(ScreenTest, LargeUiScaleRebuildsFontsAndGrowsTheBanner) {
+    std::ofstream(m_ini, std::ios::trunc) << "[screen]\nui_scale = 1.5\nfollow_vessel = false\n";
+    const Image img = render(sg::testdata::makeSyntheticSnapshot({}), "scale_1_5");
+    const auto big = sg::ui::computeLayout({1600, 1000}, 1.5f, false, true);
+    EXPECT_GT(bannerFraction(img, big, sg::ui::dayPalette().banner), 0.4);
+    // Row 110: below the banner body's smallest extent at scale 1 (toolbar 30 + 70 % of 86 - 12
+    // stripe px = 78), inside it at scale 1.5 (45 + 70 % of 129 - 18 = 117).
+    int hit = 0, all = 0;
+    for (int x = 0; x < img.w; x += 3, ++all) hit += near(img.at(x, 110), sg::ui::dayPalette().banner, 2) ? 1 : 0;
+    EXPECT_GT(static_cast<double>(hit) / all, 0.3);
+}
+
 double meanLuminance(const Image& img) {
     // Rec. 709 luma weights.
     double sum = 0;
