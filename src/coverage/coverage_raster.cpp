@@ -133,12 +133,17 @@ void CoverageRaster::paintQuad(const std::array<Point, 4>& corners, const QuadPr
     if (!(ymax > ymin)) return;
     // Edges with their end points in a canonical order (lower y first, then lower x), so that
     // two quads sharing an edge compute bit-identical crossings.
-    std::array<std::pair<XY, XY>, 4> edges{};
+    struct Edge {
+        double x0, y0, y1, slope;  // x at y: x0 + (y - y0) * slope, for y0 <= y < y1
+    };
+    std::array<Edge, 4> edges{};
+    int nedges = 0;
     for (std::size_t k = 0; k < 4; ++k) {
         XY a = c[k];
         XY b = c[(k + 1) % 4];
         if (a.y > b.y || (a.y == b.y && a.x > b.x)) std::swap(a, b);
-        edges[k] = {a, b};
+        if (a.y == b.y) continue;  // horizontal edges never cross a row centre line
+        edges[static_cast<std::size_t>(nedges++)] = {a.x, a.y, b.y, (b.x - a.x) / (b.y - a.y)};
     }
 
     // Margin profile: signed starboard offset d (cells) of a cell centre from the line through
@@ -163,10 +168,9 @@ void CoverageRaster::paintQuad(const std::array<Point, 4>& corners, const QuadPr
         if (yc >= ymax) break;
         if (yc < ymin) continue;
         int nxs = 0;
-        for (const auto& [a, b] : edges) {
-            if (a.y <= yc && yc < b.y) {
-                xs[static_cast<std::size_t>(nxs++)] = a.x + (yc - a.y) * (b.x - a.x) / (b.y - a.y);
-            }
+        for (int ei = 0; ei < nedges; ++ei) {
+            const Edge& e = edges[static_cast<std::size_t>(ei)];
+            if (e.y0 <= yc && yc < e.y1) xs[static_cast<std::size_t>(nxs++)] = e.x0 + (yc - e.y0) * e.slope;
         }
         // Insertion sort of at most 4 crossings (std::sort trips a GCC -Warray-bounds false alarm).
         for (int a = 1; a < nxs; ++a) {

@@ -449,6 +449,12 @@ std::int64_t LogStore::rawCount() {
     return s.columnInt(0);
 }
 
+std::optional<TimeNs> LogStore::lastRawUtc() {
+    Statement s(m_db, "SELECT utc_ns FROM raw_lines ORDER BY id DESC LIMIT 1", m_path);
+    if (!s.step()) return std::nullopt;
+    return s.columnInt(0);
+}
+
 std::int64_t LogStore::forEachRaw(const std::function<bool(std::int64_t, const RawRow&)>& f,
                                   std::int64_t after_id) {
     Statement s(m_db,

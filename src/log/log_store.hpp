@@ -103,6 +103,8 @@ public:
 
     // --- reading ---
     std::int64_t rawCount();
+    // UTC receive time of the last raw line (nullopt for an empty log).
+    std::optional<TimeNs> lastRawUtc();
     // Calls `f` for every raw line with id > after_id in id order, until f returns false.
     // Returns the last id delivered. The id of each line is passed alongside.
     std::int64_t forEachRaw(const std::function<bool(std::int64_t id, const RawRow&)>& f,

@@ -82,6 +82,7 @@ TEST(LineRuns, RunStatisticsAndCorridorCoverage) {
         s.run = run;
         painter.add(s);
     }
+    painter.flush();
     t.addAlarm(0);
     t.addAlarm(0);
     t.addAlarm(kRunNone);

@@ -119,6 +119,44 @@ TEST(CoverageRaster, MultiPassUnionInsideAreaMatchesGeos) {
     EXPECT_NEAR(rep.areaM2(), exact_area, tolerance(g.length(g.polygon(area).get())));
 }
 
+TEST(CoverageRaster, MergingDenseSamplesKeepsTheCoverage) {
+    // 0.2 m samples (10 Hz at 2 m/s) on an S-curve and a straight leg, with and without merging.
+    // Merging moves swath edges by at most a quarter cell, so only boundary cells may differ and
+    // at most about a quarter of them: bound = 0.25 * perimeter / cell.
+    auto path = test::arc(at(60.37, 0.11), 60.0, std::numbers::pi, std::numbers::pi / 2, 400);
+    auto second = test::arc(at(60.37, 120.11), 60.0, -std::numbers::pi / 2, 0.0, 400);
+    path.insert(path.end(), second.begin() + 1, second.end());
+    path.push_back(at(120.37, 300.11));
+    const auto samples = test::samplesAlong(path, 0.2, 9.0, 12.0, 3.0F);
+    CoverageRaster plain(kCell, kOrigin), merged(kCell, kOrigin);
+    {
+        SwathPainter p(plain, 20.0, 0.0);
+        for (const auto& s : samples) p.add(s);
+    }
+    std::uint64_t merged_samples = 0;
+    {
+        SwathPainter p(merged);
+        for (const auto& s : samples) p.add(s);
+        p.flush();
+        merged_samples = p.counters().merged;
+    }
+    EXPECT_GT(merged_samples, samples.size() / 2);
+    std::uint64_t differ = 0;
+    plain.forEachTile([&](TileKey key, const CoverageTile& t) {
+        for (int c = 0; c < kCellsPerTile; ++c) {
+            const std::int64_t ix = static_cast<std::int64_t>(tileX(key)) * kTileCells + (c & (kTileCells - 1));
+            const std::int64_t iy = static_cast<std::int64_t>(tileY(key)) * kTileCells + (c >> kTileShift);
+            const bool a = t.margin[static_cast<std::size_t>(c)] >= kCoveredCode;
+            const bool b = merged.code(ix, iy) >= kCoveredCode;
+            differ += a != b ? 1U : 0U;
+        }
+    });
+    const double perimeter = 2.0 * (60.0 * std::numbers::pi + 120.0) + 2.0 * 21.0;
+    EXPECT_LE(static_cast<double>(differ), 0.25 * perimeter / kCell);
+    EXPECT_NEAR(static_cast<double>(merged.coveredCells()), static_cast<double>(plain.coveredCells()),
+                0.25 * perimeter / kCell);
+}
+
 TEST(CoverageRaster, FastPassLeavesNoHoles) {
     // Samples 5 m apart, half-width 10 m: every cell within 9.5 m of the track must be covered.
     const std::vector<Point> path{at(3.3, 7.7), at(403.3, 307.7)};
@@ -194,6 +232,7 @@ TEST(CoverageRaster, InvalidSampleBreaksTheChain) {
     ASSERT_EQ(s.size(), 5U);  // N = 0, 10, 20, 30, 40
     s[2].valid = false;       // no quad 10-20 nor 20-30
     for (const auto& x : s) p.add(x);
+    p.flush();
     EXPECT_TRUE(r.cellAt(at(0.25, 5)).covered());
     EXPECT_FALSE(r.cellAt(at(0.25, 15)).covered());
     EXPECT_FALSE(r.cellAt(at(0.25, 25)).covered());

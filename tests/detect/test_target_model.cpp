@@ -105,6 +105,22 @@ TEST(HalfWidth, InducedDipoleEastboundNorthernHemisphereAsymmetry) {
     EXPECT_GT(s.starboard_m, 2.0 * s.port_m);
 }
 
+TEST(HalfWidth, DipoleZeroAboveItsDetectionRange) {
+    // Definition check: the detection range is where the peak straight below the line falls to
+    // the threshold; above it both half-widths are 0, below it the centre is detectable.
+    const auto models = makeModels(survey(65.0, Orientation::Induced));
+    const TargetModel& m = models.front();
+    for (double hd : {0.0, 60.0, 90.0, 225.0}) {
+        const double heading = hd * kDeg;
+        const double range = m.detectionRange_m(heading, 1.0);
+        EXPECT_NEAR(m.peakAnomalyDirect_nT(range, 0.0, heading), 1.0, 0.02) << hd;
+        const HalfWidths above = m.halfWidths(range * 1.03, heading, 1.0);
+        EXPECT_EQ(above.port_m, 0.0) << hd;
+        EXPECT_EQ(above.starboard_m, 0.0) << hd;
+        EXPECT_GT(m.peakAnomalyDirect_nT(range * 0.97, 0.0, heading), 1.0) << hd;
+    }
+}
+
 TEST(HalfWidth, InducedDipoleAtThePoleIsIsotropic) {
     // Vertical field: the geometry is symmetric about the vertical, so left = right and the
     // heading does not matter; directly below the peak is on the axis, 2 (mu0/4pi) m / h^3.
@@ -131,6 +147,20 @@ TEST(HalfWidth, WorstOrientationNeverBeatsInduced) {
     // total-field anomaly at all (its field there is along -m, perpendicular to the ambient
     // field): the worst case is blind straight below such a line.
     EXPECT_NEAR(peakFactorDirect(Orientation::Worst, 60.0 * kDeg, 90.0 * kDeg, 0.0), 0.0, 1e-3);
+}
+
+TEST(PeakFactor, EastWestMirrorSymmetry) {
+    // Mirroring east <-> west leaves a field in the magnetic meridian plane unchanged and turns a
+    // target to starboard of heading psi into one to port of heading -psi, i.e. to starboard of
+    // heading 180 - psi (geometry). The table build relies on this; check it on the direct values.
+    for (Orientation o : {Orientation::Induced, Orientation::Worst}) {
+        for (double hd : {10.0, 35.0, 80.0}) {
+            for (double depr : {15.0, 50.0, 85.0}) {
+                EXPECT_NEAR(peakFactorDirect(o, 0.9, depr * kDeg, hd * kDeg),
+                            peakFactorDirect(o, 0.9, depr * kDeg, (180.0 - hd) * kDeg), 2e-3);
+            }
+        }
+    }
 }
 
 TEST(HalfWidth, SphereEqualsInducedDipoleOfItsMoment) {
@@ -180,7 +210,7 @@ TEST(PeakTable, InducedInterpolationErrorIsSmallAndSafe) {
     std::sort(err.begin(), err.end());
     EXPECT_LT(err[err.size() / 2], 0.005);          // median
     EXPECT_LT(err[err.size() * 95 / 100], 0.035);   // 95th percentile
-    EXPECT_LT(worst_over, 0.015);                   // never wider than the truth by > 1.5 % R_T
+    EXPECT_LT(worst_over, 0.02);                    // never wider than the truth by > 2 % R_T
     // The peak factor itself: bilinear in 1-degree depression and 5-degree heading steps.
     double g_err = 0.0;
     for (int i = 0; i < 200; ++i) {

@@ -30,7 +30,10 @@ TEST(RecordKill, KilledRecorderLeavesAnIntactLogWithEverythingCommitted) {
     {
         std::ofstream c(cfg);
         c << "[[input]]\nname = \"gnss\"\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"file\"\n"
-          << "path = \"" << data << "\"\nfollow = true\n\n[log]\ncommit_interval_ms = 1000\n";
+          << "path = \"" << data << "\"\nfollow = true\n\n[log]\ncommit_interval_ms = 1000\n"
+          // record runs the whole core, which needs a field and a target class.
+          << "[geomagnetic]\ninclination_deg = 66.0\nintensity_nT = 50000.0\n"
+          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n";
     }
     std::ofstream out(data, std::ios::binary);
     const std::string bin = std::string(SG_BINARY_DIR) + "/app/swathguard";

@@ -224,6 +224,52 @@ TEST(Sources, SerialPtyCarriesTenThousandMixedLinesInOrder) {
     EXPECT_EQ(c.rejected, 4000u);
 }
 
+// Writes `text` to the pty end `path` from the calling thread.
+void writePty(const std::string& path, const std::string& text) {
+    const int fd = ::open(path.c_str(), O_WRONLY | O_NOCTTY);
+    ASSERT_GE(fd, 0) << path;
+    std::size_t off = 0;
+    while (off < text.size()) {
+        const ssize_t n = ::write(fd, text.data() + off, text.size() - off);
+        if (n <= 0) break;
+        off += static_cast<std::size_t>(n);
+    }
+    ::tcdrain(fd);
+    ::close(fd);
+}
+
+TEST(Sources, SerialDeviceThatDisappearsIsReopened) {
+    TempDir dir;
+    auto socat = std::make_unique<Socat>(dir);
+    ASSERT_TRUE(socat->ok());
+    auto in = nmeaInput("gnss", config::Transport::Serial);
+    in.serial.device = socat->a();
+    const auto logp = dir.file("gone.sqlite");
+    asio::io_context io;
+    io::LogWriter w(logp, {100, false});
+    io::Recorder rec(io, {in}, {}, w);
+    rec.start();
+    auto& c = rec.dispatcher().counters().at("gnss");
+    ASSERT_TRUE(test::runUntil(io, [&] { return rec.source("gnss")->connected(); }));
+    writePty(socat->b(), test::gga(1) + "\r\n");
+    ASSERT_TRUE(test::runUntil(io, [&] { return c.lines == 1; }));
+    socat.reset();  // the device goes away
+    ASSERT_TRUE(test::runUntil(io, [&] { return c.in_outage; }));
+    socat = std::make_unique<Socat>(dir);  // and comes back under the same name
+    ASSERT_TRUE(socat->ok());
+    ASSERT_TRUE(test::runUntil(io, [&] { return rec.source("gnss")->connected(); }));
+    writePty(socat->b(), test::gga(2) + "\r\n");
+    ASSERT_TRUE(test::runUntil(io, [&] { return c.lines == 2; }));
+    rec.stop();
+    w.stop();
+    EXPECT_EQ(rawBytes(logp), (std::vector<std::string>{test::gga(1), test::gga(2)}));
+    log::LogReader r(logp);
+    const auto ev = r.events();
+    ASSERT_EQ(ev.size(), 1u);
+    EXPECT_EQ(ev[0].kind, "outage");
+    EXPECT_TRUE(ev[0].end_utc_ns.has_value());
+}
+
 TEST(Sources, TcpPeerThatClosesAndReturnsIsAnOutageWithStartAndEnd) {
     TempDir dir;
     asio::io_context io;

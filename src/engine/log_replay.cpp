@@ -1,0 +1,65 @@
+// Log replay stepping; see log_replay.hpp.
+#include "engine/log_replay.hpp"
+
+#include <filesystem>
+
+namespace sg::engine {
+
+SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::string>& override_path) {
+    if (override_path) return loadSurveyConfig(*override_path);
+    const auto text = reader.configText();
+    if (!text) throw config::ConfigError("the log holds no survey config: pass --config FILE");
+    std::string file = reader.meta("config_file").value_or("log");
+    const auto dir = std::filesystem::path(file).parent_path().string();
+    return parseSurveyConfig(*text, file, dir);
+}
+
+LogReplay::LogReplay(const std::string& log_path, const std::optional<std::string>& config_override)
+    : m_reader(log_path), m_config(configForLog(m_reader, config_override)) {
+    m_total = m_reader.rawCount();
+    // First and last receive times, for the seek bar.
+    {
+        log::LogReader probe(log_path);
+        ReceivedLine l;
+        if (probe.next(l)) m_first_ns = l.utc_ns;
+        m_last_ns = m_first_ns;
+        if (auto last = probe.store().lastRawUtc()) m_last_ns = *last;
+    }
+    restart();
+}
+
+void LogReplay::restart() {
+    m_reader.seek(0);
+    m_next_event_id = 1;
+    m_pipeline = std::make_unique<Pipeline>(m_config, [this] { return m_next_event_id++; });
+    m_fed = 0;
+    prime();
+}
+
+void LogReplay::prime() { m_has_next = m_reader.next(m_next); }
+
+bool LogReplay::step() {
+    if (!m_has_next) return false;
+    m_pipeline->feed(m_next);
+    ++m_fed;
+    prime();
+    return true;
+}
+
+std::uint64_t LogReplay::runUntil(TimeNs utc_ns) {
+    std::uint64_t n = 0;
+    while (m_has_next && m_next.utc_ns <= utc_ns) {
+        step();
+        ++n;
+    }
+    m_pipeline->tick(utc_ns);
+    return n;
+}
+
+std::uint64_t LogReplay::runToEnd() {
+    std::uint64_t n = 0;
+    while (step()) ++n;
+    return n;
+}
+
+}  // namespace sg::engine

@@ -1,0 +1,161 @@
+// Survey summary: one computation for every report; see survey_summary.hpp.
+#include "engine/survey_summary.hpp"
+
+#include <filesystem>
+
+#include <fmt/format.h>
+
+#include "coverage/exports.hpp"
+
+namespace sg::engine {
+
+SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed) {
+    SurveySummary s;
+    const auto& cfg = engine.config();
+    s.survey_name = cfg.survey.name;
+    if (engine.crs()) {
+        s.epsg = engine.crs()->epsg();
+        s.crs_name = engine.crs()->name();
+    }
+    s.coverage_class = engine.coverageModel().targetClass().name;
+    s.lines_processed = lines_processed;
+    s.invalid = engine.invalidCounts();
+    engine.flushCoverage();
+    s.cell_size_m = engine.raster().cellSize();
+    s.raster_hash = engine.raster().contentHash();
+    if (engine.coverage() != nullptr) {
+        s.gaps = engine.gapReport();
+        s.area_m2 = s.gaps.areaM2();
+        s.covered_m2 = static_cast<double>(s.gaps.covered_cells) * s.cell_size_m * s.cell_size_m;
+        s.coverage_pct = s.gaps.coveragePercent();
+        s.significant_gaps = s.gaps.significantCount();
+        s.small_gaps = s.gaps.smallCount();
+        s.infill = engine.infillPlan(s.gaps);
+        s.runs = engine.lines()->runs();
+        for (const auto& l : engine.lines()->lines()) s.line_names.push_back(l.name);
+    }
+    for (const auto& ep : engine.checks().episodes()) {
+        const auto& c = engine.checks().check(ep.check);
+        s.alarms.push_back({ep.check, c.unit(), ep.start_ns, ep.end_ns,
+                            checks::levelName(ep.peak_level), ep.peak_value, ep.ack_ns});
+    }
+    return s;
+}
+
+nlohmann::json toJson(const SurveySummary& s) {
+    using nlohmann::json;
+    json j;
+    j["survey"] = s.survey_name;
+    j["crs"] = {{"epsg", s.epsg}, {"name", s.crs_name}};
+    j["coverage_class"] = s.coverage_class;
+    j["cell_size_m"] = s.cell_size_m;
+    j["area_m2"] = s.area_m2;
+    j["covered_m2"] = s.covered_m2;
+    j["coverage_pct"] = s.coverage_pct;
+    j["gap_count"] = s.significant_gaps;
+    j["small_gap_count"] = s.small_gaps;
+    j["raster_hash"] = fmt::format("{:016x}", s.raster_hash);
+    j["lines_processed"] = s.lines_processed;
+    json gaps = json::array();
+    for (const auto& g : s.gaps.gaps)
+        gaps.push_back({{"id", g.id},
+                        {"area_m2", g.area_m2},
+                        {"centroid_e", g.centroid.e_m},
+                        {"centroid_n", g.centroid.n_m},
+                        {"bbox", {g.bbox.min_e, g.bbox.min_n, g.bbox.max_e, g.bbox.max_n}},
+                        {"along_length_m", g.along_length_m},
+                        {"across_width_m", g.across_width_m},
+                        {"width_m", g.width_m},
+                        {"small", g.small}});
+    j["gaps"] = gaps;
+    json infill = json::array();
+    for (const auto& l : s.infill.plan.lines)
+        infill.push_back({{"name", l.name},
+                          {"rank", l.rank},
+                          {"start", {l.start.e_m, l.start.n_m}},
+                          {"end", {l.end.e_m, l.end.n_m}},
+                          {"length_m", l.length_m},
+                          {"gap_ids", l.gap_ids},
+                          {"area_closed_m2", l.area_closed_m2}});
+    j["infill"] = {{"lines", infill},
+                   {"total_length_m", s.infill.plan.totalLength_m()},
+                   {"half_width_m", s.infill.plan.options.half_width_m},
+                   {"gaps_left_after_flying", s.infill.after.significantCount()}};
+    json runs = json::array();
+    for (const auto& r : s.runs) {
+        const std::string name = r.line >= 0 && static_cast<std::size_t>(r.line) < s.line_names.size()
+                                     ? s.line_names[static_cast<std::size_t>(r.line)]
+                                     : std::string();
+        runs.push_back({{"id", r.id},
+                        {"line", name},
+                        {"reversed", r.reversed},
+                        {"start_ns", r.start_t_ns},
+                        {"end_ns", r.end_t_ns},
+                        {"corridor_covered_pct", r.corridor_covered_pct},
+                        {"mean_altitude_m", r.meanAltitude_m()},
+                        {"worst_altitude_m", r.worst_altitude_m},
+                        {"worst_deviation_m", r.worst_deviation_m},
+                        {"alarms", r.alarms}});
+    }
+    j["runs"] = runs;
+    json alarms = json::array();
+    for (const auto& a : s.alarms) {
+        json x{{"check", a.check}, {"unit", a.unit}, {"start_ns", a.start_ns},
+               {"peak_level", a.peak_level}, {"peak_value", a.peak_value}};
+        x["end_ns"] = a.end_ns ? json(*a.end_ns) : json(nullptr);
+        x["ack_ns"] = a.ack_ns ? json(*a.ack_ns) : json(nullptr);
+        alarms.push_back(std::move(x));
+    }
+    j["alarms"] = alarms;
+    j["invalid_samples"] = {{"no_field", s.invalid.no_field},       {"pose", s.invalid.pose},
+                            {"no_altitude", s.invalid.no_altitude}, {"noise_warmup", s.invalid.noise_warmup},
+                            {"noisy", s.invalid.noisy},             {"low_quality", s.invalid.low_quality}};
+    return j;
+}
+
+std::string toText(const SurveySummary& s) {
+    std::string out;
+    out += fmt::format("survey: {} ({}), coverage class '{}', cell {} m\n",
+                       s.survey_name.empty() ? "(unnamed)" : s.survey_name, s.crs_name,
+                       s.coverage_class, s.cell_size_m);
+    out += fmt::format("coverage: {:.2f} % of {:.0f} m2 ({:.0f} m2 covered)\n", s.coverage_pct,
+                       s.area_m2, s.covered_m2);
+    out += fmt::format("gaps: {} (plus {} narrower than {} m)\n", s.significant_gaps, s.small_gaps,
+                       s.gaps.min_width_m);
+    for (const auto& g : s.gaps.gaps)
+        out += fmt::format("  gap {:3}{} {:9.1f} m2 at E {:.1f} N {:.1f}, {:.1f} m along x {:.1f} m across\n",
+                           g.id, g.small ? " (small)" : "", g.area_m2, g.centroid.e_m, g.centroid.n_m,
+                           g.along_length_m, g.across_width_m);
+    out += fmt::format("infill: {} line(s), {:.0f} m in all, half-width {:.1f} m; gaps left after flying them: {}\n",
+                       s.infill.plan.lines.size(), s.infill.plan.totalLength_m(),
+                       s.infill.plan.options.half_width_m, s.infill.after.significantCount());
+    for (const auto& l : s.infill.plan.lines)
+        out += fmt::format("  {} (rank {}): E {:.1f} N {:.1f} -> E {:.1f} N {:.1f}, {:.0f} m\n", l.name,
+                           l.rank, l.start.e_m, l.start.n_m, l.end.e_m, l.end.n_m, l.length_m);
+    int open = 0;
+    for (const auto& a : s.alarms) open += a.end_ns ? 0 : 1;
+    out += fmt::format("alarms: {} episode(s), {} still active\n", s.alarms.size(), open);
+    return out;
+}
+
+std::vector<std::string> writeExports(const SurveySummary& s, const SurveyEngine& engine,
+                                      const std::string& dir) {
+    std::filesystem::create_directories(dir);
+    std::vector<std::string> written;
+    const auto put = [&](const std::string& name, const std::string& text) {
+        const auto path = (std::filesystem::path(dir) / name).string();
+        coverage::writeTextFile(path, text);
+        written.push_back(path);
+    };
+    put("gaps.csv", coverage::gapsCsv(s.gaps));
+    put("infill.csv", coverage::infillCsv(s.infill.plan));
+    if (engine.crs() != nullptr) {
+        const auto to_lonlat = coverage::toLonLatWith(*engine.crs());
+        put("gaps.geojson", coverage::gapsGeoJson(s.gaps, to_lonlat));
+        put("infill.geojson", coverage::infillGeoJson(s.infill.plan, to_lonlat));
+        put("infill.gpx", coverage::infillGpx(s.infill.plan, to_lonlat));
+    }
+    return written;
+}
+
+}  // namespace sg::engine
