@@ -1,0 +1,281 @@
+// The plain-data contract between the processing core and the screen: an immutable picture of the
+// survey state (Snapshot) that the engine side fills and publishes, and the small commands
+// (UiCommand) the screen sends back. Only the standard library and checks/check.hpp are used, so
+// the core can build it without knowing anything about ImGui or OpenGL.
+//
+// Conventions:
+// - Positions are (easting, northing) in metres in the survey's projected CRS.
+// - Times (t_s) are seconds since the Unix epoch, UTC, as a double (sub-microsecond resolution
+//   for the coming centuries); alarm episodes keep their TimeNs fields from checks::Episode, which
+//   count the same epoch in nanoseconds (t_s = toSeconds(t_ns)).
+// - Angles are radians, clockwise from grid north (the screen converts to degrees at its edge).
+// - Long, growing data (12-hour tracks and time series) is held in immutable shared chunks
+//   (Chunked<T>): a new snapshot reuses every full chunk of the previous one and only copies or
+//   appends the last, so publishing stays cheap however long the survey runs. Snapshots are never
+//   modified after publication; the screen keeps a shared_ptr while it draws.
+#pragma once
+
+#include <algorithm>
+#include <cstddef>
+#include <cstdint>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "checks/check.hpp"
+
+namespace sg::engine {
+
+struct PointEN {
+    double e_m = 0.0;  // easting, metres
+    double n_m = 0.0;  // northing, metres
+};
+
+// An append-only sequence stored as immutable chunks. Chunks are shared between successive
+// snapshots; the producer starts a new chunk when the last one reaches its chosen size
+// (a few thousand elements is a good size).
+template <class T>
+struct Chunked {
+    std::vector<std::shared_ptr<const std::vector<T>>> chunks;
+
+    std::size_t size() const {
+        std::size_t n = 0;
+        for (const auto& c : chunks) n += c ? c->size() : 0;
+        return n;
+    }
+    bool empty() const { return size() == 0; }
+    template <class F>
+    void forEach(F&& f) const {
+        for (const auto& c : chunks)
+            if (c)
+                for (const T& v : *c) f(v);
+    }
+    // Appends one element, copying only the last chunk (producer helper; chunk_size >= 1).
+    void append(const T& value, std::size_t chunk_size = 4096) {
+        if (chunks.empty() || !chunks.back() || chunks.back()->size() >= chunk_size) {
+            auto fresh = std::make_shared<std::vector<T>>();
+            fresh->reserve(chunk_size);
+            fresh->push_back(value);
+            chunks.push_back(std::move(fresh));
+        } else {
+            auto copy = std::make_shared<std::vector<T>>(*chunks.back());
+            copy->push_back(value);
+            chunks.back() = std::move(copy);
+        }
+    }
+};
+
+// ---- plan view ------------------------------------------------------------------------------
+
+// One square tile of the coverage raster. Cells are row-major from the south-west corner:
+// cell (col, row) covers e in [origin_e + col*cell_m, +cell_m), n in [origin_n + row*cell_m, +cell_m).
+struct CoverageTileView {
+    int tx = 0, ty = 0;          // tile index in the raster's tile grid
+    int size_cells = 0;          // cells per side (the tile is size_cells x size_cells)
+    double cell_m = 1.0;         // cell side, metres, > 0
+    double origin_e = 0.0;       // south-west corner of the tile, metres
+    double origin_n = 0.0;
+    std::uint64_t generation = 0;  // changes whenever any cell of this tile changes
+    // Quantised detection margin per cell (size_cells^2 values): 0 = not covered, 1..255 = covered,
+    // mapped to a margin with MarginScale.
+    std::shared_ptr<const std::vector<std::uint8_t>> margin_q;
+    // Optional: which run covered the cell best (0 = none, k = runs[k-1]); empty when unknown.
+    std::shared_ptr<const std::vector<std::uint16_t>> run_of_cell;
+};
+
+// Maps a quantised margin q in 1..255 to the margin value: lo + (q - 1) * (hi - lo) / 254.
+struct MarginScale {
+    double lo = 0.0;
+    double hi = 20.0;
+    std::string unit = "dB";  // e.g. dB of peak anomaly over the detection threshold
+    double value(std::uint8_t q) const { return lo + (static_cast<double>(q) - 1.0) * (hi - lo) / 254.0; }
+};
+
+struct PlannedLineView {
+    std::string name;
+    std::vector<PointEN> points;  // the planned polyline, in survey direction
+};
+
+struct SensorView {
+    std::string name;        // "mag1", "port", ...
+    PointEN position;        // sensor (fish) position now
+    std::optional<double> altitude_m;  // above the seabed now; empty when unknown
+    // The live detectable swath: its left and right edge points now (perpendicular to the track;
+    // equal to position when the swath is empty).
+    PointEN swath_left;
+    PointEN swath_right;
+    Chunked<PointEN> track;  // the sensor's track, already thinned by the core (e.g. 0.5 m)
+};
+
+struct GapView {
+    std::uint64_t id = 0;
+    std::vector<std::vector<PointEN>> rings;  // outline rings (first = outer), closed implicitly
+    double area_m2 = 0.0;
+    PointEN centroid;
+};
+
+struct InfillView {
+    std::uint64_t id = 0;
+    std::string name;             // e.g. "IF-03"
+    std::vector<PointEN> points;  // including run-in and run-out
+    double length_m = 0.0;
+    std::vector<std::uint64_t> gap_ids;  // gaps it closes
+};
+
+// ---- time plots and profiles ----------------------------------------------------------------
+
+struct SeriesPoint {
+    double t_s = 0.0;  // UTC seconds since the epoch, non-decreasing along a series
+    float value = 0.0f;
+};
+
+struct Series {
+    std::string name;  // "mag1", "mag1-mag2", ...
+    Chunked<SeriesPoint> points;
+    double break_after_s = 5.0;  // the line is broken where samples are further apart than this
+};
+
+struct PlotLimit {
+    double value = 0.0;               // in the group's unit
+    checks::Level level = checks::Level::kWarn;
+    std::string label;                // "limit", "tolerance", "min speed"
+};
+
+// One time plot: several series sharing a unit and limits. The engine sends, in this order:
+// "Altitude" (m, per sensor, max altitude limit), "Deviation" (m, cross-track, +/- tolerance),
+// "Total field" (nT, per sensor), "Gradient" (nT/m, per transverse pair), "Noise" (nT, per sensor,
+// limit), "Speed" (m/s, band). The screen draws whatever groups it gets.
+struct PlotGroup {
+    std::string title;
+    std::string unit;
+    std::vector<std::shared_ptr<const Series>> series;
+    std::vector<PlotLimit> limits;
+};
+
+struct ProfileTrace {
+    std::string sensor;
+    std::vector<float> along_m;     // along-track distance from the start of the run, increasing
+    std::vector<float> residual_nT; // total field with the ambient trend removed, same length
+};
+
+struct ProfileSet {
+    int run_index = -1;  // index into Snapshot::runs, -1 when no run
+    std::string run_name;
+    std::vector<ProfileTrace> traces;  // one per sensor, in array order (port to starboard)
+};
+
+// ---- alarms, runs, replay -------------------------------------------------------------------
+
+struct AlarmView {
+    checks::Episode episode;   // start/end/peak/ack/id as the check set keeps them
+    std::string unit;          // of peak_value
+    std::string text;          // one line for the operator, e.g. "mag2 altitude 7.9 m > 6.0 m"
+};
+
+struct RunView {
+    std::string name;           // "L012 run 2"
+    int line_index = -1;        // into Snapshot::lines
+    double start_s = 0.0, end_s = 0.0;  // UTC seconds; end_s == start_s while running
+    double percent_covered = 0.0;       // 0..100 of the line's corridor
+    double mean_altitude_m = 0.0;
+    double worst_altitude_m = 0.0;
+    double worst_deviation_m = 0.0;
+    int alarm_count = 0;
+    bool active = false;        // being recorded now
+};
+
+struct ReplayView {
+    bool is_replay = false;
+    double t_s = 0.0, t_start_s = 0.0, t_end_s = 0.0;  // UTC seconds
+    double speed = 1.0;  // 0 = as fast as possible
+    bool paused = false;
+};
+
+struct Snapshot {
+    std::uint64_t seq = 0;  // increases with every published snapshot
+    double now_s = 0.0;     // survey time (UTC seconds) the state refers to
+
+    // Vessel and tow.
+    PointEN vessel;
+    double heading_rad = 0.0;  // clockwise from grid north
+    double speed_mps = 0.0;
+    PointEN tow_point;
+    Chunked<PointEN> tow_track;
+    std::vector<SensorView> sensors;
+
+    // Plan.
+    std::vector<std::vector<PointEN>> area;  // area of interest polygon(s), outer rings
+    std::vector<PlannedLineView> lines;
+    int active_line = -1;                    // index into lines, -1 = none
+    std::vector<CoverageTileView> tiles;
+    MarginScale margin;
+    std::vector<GapView> gaps;
+    std::vector<InfillView> infill;
+
+    // Time plots and profiles.
+    std::vector<PlotGroup> plots;
+    ProfileSet profiles;
+
+    // Alarms: active ones first, then past ones newest first.
+    std::vector<AlarmView> alarms;
+
+    std::vector<RunView> runs;
+    ReplayView replay;
+
+    // CRS for the cursor read-out. to_lonlat returns (longitude, latitude) in degrees; it is called
+    // on the screen thread, so it must not share a non-thread-safe PROJ context with the core.
+    std::string crs_name;  // "EPSG:32631"
+    std::function<std::pair<double, double>(double e_m, double n_m)> to_lonlat;
+
+    std::string cautions;             // safety text shown in the status bar
+    std::vector<std::string> status;  // short health items ("gnss ok", "mag 10 Hz")
+
+    // True while an alarm-level episode (active or already ended) waits for acknowledgement.
+    bool hasUnacknowledgedAlarm() const {
+        return std::any_of(alarms.begin(), alarms.end(), [](const AlarmView& a) {
+            return !a.episode.ack_ns && a.episode.peak_level == checks::Level::kAlarm;
+        });
+    }
+};
+
+// ---- commands from the screen ---------------------------------------------------------------
+
+struct UiCommand {
+    enum class Kind : std::uint8_t {
+        kAcknowledgeAlarm,   // id = episode id
+        kAcknowledgeAll,
+        kSetActiveLine,      // id = index into Snapshot::lines
+        kChooseProfileRun,   // value = run index, -1 = the current run
+        kReplayPlay,
+        kReplayPause,
+        kReplaySpeed,        // value = speed factor, 0 = as fast as possible
+        kReplaySeek,         // value = UTC seconds
+        kReplayNextAlarm,
+        kExportInfill,       // text = "geojson" | "gpx" | "csv"; all current proposals
+    };
+    Kind kind = Kind::kAcknowledgeAll;
+    std::uint64_t id = 0;
+    double value = 0.0;
+    std::string text;
+};
+
+inline const char* toString(UiCommand::Kind kind) {
+    switch (kind) {
+        case UiCommand::Kind::kAcknowledgeAlarm: return "acknowledge-alarm";
+        case UiCommand::Kind::kAcknowledgeAll: return "acknowledge-all";
+        case UiCommand::Kind::kSetActiveLine: return "set-active-line";
+        case UiCommand::Kind::kChooseProfileRun: return "choose-profile-run";
+        case UiCommand::Kind::kReplayPlay: return "replay-play";
+        case UiCommand::Kind::kReplayPause: return "replay-pause";
+        case UiCommand::Kind::kReplaySpeed: return "replay-speed";
+        case UiCommand::Kind::kReplaySeek: return "replay-seek";
+        case UiCommand::Kind::kReplayNextAlarm: return "replay-next-alarm";
+        case UiCommand::Kind::kExportInfill: return "export-infill";
+    }
+    return "unknown";
+}
+
+}  // namespace sg::engine

@@ -1,0 +1,341 @@
+// Screen tests that need a display: render the synthetic (test-data) snapshot to a PNG through the
+// real window, OpenGL context and ImGui backends, and check pixels where the test data puts a
+// covered strip, the gap, and the alarm banner; and a stall test showing that a paused screen never
+// blocks a producer. Without DISPLAY the test starts its own Xvfb (it picks a free display number
+// itself with -displayfd) and stops it afterwards.
+#include <gtest/gtest.h>
+
+#include <atomic>
+#include <chrono>
+#include <csignal>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <string>
+#include <thread>
+
+#include <stb_image.h>
+#include <fcntl.h>
+#include <sys/prctl.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include "synthetic_snapshot.hpp"
+#include "ui/layout.hpp"
+#include "ui/plan_view.hpp"
+#include "ui/screen.hpp"
+
+namespace {
+
+namespace fs = std::filesystem;
+using sg::testdata::kOriginE;
+using sg::testdata::kOriginN;
+
+class XvfbEnvironment : public ::testing::Environment {
+public:
+    void SetUp() override {
+        if (const char* d = std::getenv("DISPLAY"); d && *d) return;
+        int fds[2];
+        ASSERT_EQ(pipe(fds), 0);
+        m_pid = fork();
+        ASSERT_GE(m_pid, 0);
+        if (m_pid == 0) {
+            close(fds[0]);
+            // Die with the test process, and keep the test's stdout/stderr free.
+            prctl(PR_SET_PDEATHSIG, SIGTERM);
+            const int devnull = open("/dev/null", O_RDWR);
+            dup2(devnull, 1);
+            dup2(devnull, 2);
+            const std::string fd = std::to_string(fds[1]);
+            execlp("Xvfb", "Xvfb", "-displayfd", fd.c_str(), "-screen", "0", "1600x1000x24", "-nolisten", "tcp",
+                   static_cast<char*>(nullptr));
+            _exit(127);
+        }
+        close(fds[1]);
+        // Xvfb writes the display number it chose once it accepts connections.
+        std::string number;
+        char c = 0;
+        while (read(fds[0], &c, 1) == 1 && c != '\n') number += c;
+        close(fds[0]);
+        ASSERT_FALSE(number.empty()) << "Xvfb did not start (is the xvfb package installed?)";
+        setenv("DISPLAY", (":" + number).c_str(), 1);
+    }
+    void TearDown() override {
+        if (m_pid > 0) {
+            kill(m_pid, SIGTERM);
+            waitpid(m_pid, nullptr, 0);
+            unsetenv("DISPLAY");
+        }
+    }
+
+private:
+    pid_t m_pid = -1;
+};
+
+[[maybe_unused]] auto* const g_xvfb = ::testing::AddGlobalTestEnvironment(new XvfbEnvironment);
+
+struct Image {
+    int w = 0, h = 0;
+    std::vector<unsigned char> rgb;
+    ImU32 at(int x, int y) const {
+        const auto i = (static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)) * 3;
+        return IM_COL32(rgb[i], rgb[i + 1], rgb[i + 2], 255);
+    }
+};
+
+Image loadPng(const std::string& path) {
+    Image img;
+    int n = 0;
+    unsigned char* data = stbi_load(path.c_str(), &img.w, &img.h, &n, 3);
+    if (!data) return img;
+    img.rgb.assign(data, data + static_cast<std::size_t>(img.w) * static_cast<std::size_t>(img.h) * 3);
+    stbi_image_free(data);
+    return img;
+}
+
+bool near(ImU32 a, ImU32 b, int tol) {
+    for (int shift : {0, 8, 16}) {
+        const int x = static_cast<int>((a >> shift) & 0xFF), y = static_cast<int>((b >> shift) & 0xFF);
+        if (std::abs(x - y) > tol) return false;
+    }
+    return true;
+}
+
+// Fraction of pixels in the (2r+1)^2 block around (cx, cy) within `tol` of `colour`.
+double fractionNear(const Image& img, ImVec2 c, int r, ImU32 colour, int tol) {
+    int hit = 0, all = 0;
+    for (int y = static_cast<int>(c.y) - r; y <= static_cast<int>(c.y) + r; ++y)
+        for (int x = static_cast<int>(c.x) - r; x <= static_cast<int>(c.x) + r; ++x) {
+            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
+            ++all;
+            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
+        }
+    return all ? static_cast<double>(hit) / all : 0.0;
+}
+
+class ScreenTest : public ::testing::Test {
+protected:
+    void SetUp() override {
+        m_dir = fs::path(SG_BINARY_DIR) / "test_ui_out";
+        fs::create_directories(m_dir);
+        const std::string name = ::testing::UnitTest::GetInstance()->current_test_info()->name();
+        m_ini = (m_dir / (name + ".ini")).string();
+        // Fixed view: no following, so the plan view fits the survey area (day palette, scale 1).
+        std::ofstream(m_ini) << "[screen]\npalette = day\nui_scale = 1.0\nfollow_vessel = false\n";
+    }
+    // Renders `snap` to <name>.png after a few frames and loads it.
+    Image render(std::shared_ptr<const sg::engine::Snapshot> snap, const std::string& name) {
+        sg::ui::SnapshotBox box;
+        sg::ui::CommandQueue commands;
+        box.publish(std::move(snap));
+        sg::ui::ScreenOptions o;
+        o.width = 1600;
+        o.height = 1000;
+        o.settings_path = m_ini;
+        o.screenshot_path = (m_dir / (name + ".png")).string();
+        o.after_frames = 4;  // the first frames settle ImGui's layout
+        o.max_fps = 200;
+        EXPECT_EQ(sg::ui::runScreen(box, commands, o), 0);
+        return loadPng(o.screenshot_path);
+    }
+    fs::path m_dir;
+    std::string m_ini;
+};
+
+TEST_F(ScreenTest, CoverageColourInsideCoveredStripAndNotInGap) {
+    const auto snap = sg::testdata::makeSyntheticSnapshot({});
+    const Image img = render(snap, "coverage");
+    ASSERT_EQ(img.w, 1600);
+    ASSERT_EQ(img.h, 1000);
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, false, /*banner=*/true);
+    const auto t = sg::ui::fitTransform(sg::ui::surveyBounds(*snap), layout.plan);
+    const auto& pal = sg::ui::dayPalette();
+    // Blocks centred 30 m north of lines L01, L02 and L05, away from the tracks (on the lines and
+    // up to 9 m off them) and the labels. Each pixel must show the colour of the cell under it,
+    // as the test data's own margin rule gives it.
+    for (auto [e, n] : {std::pair{250.0, 80.0}, {700.0, 180.0}, {500.0, 480.0}}) {
+        const ImVec2 c = t.toScreen({kOriginE + e, kOriginN + n});
+        ASSERT_TRUE(layout.plan.contains(c));
+        int hit = 0, all = 0;
+        for (int dy = -4; dy <= 4; ++dy)
+            for (int dx = -4; dx <= 4; ++dx) {
+                const ImVec2 px{std::floor(c.x) + static_cast<float>(dx) + 0.5f, std::floor(c.y) + static_cast<float>(dy) + 0.5f};
+                const auto w = t.toWorld(px);
+                const ImU32 expected = pal.marginColour(sg::testdata::expectedMargin(w.e_m - kOriginE, w.n_m - kOriginN));
+                ++all;
+                // Tolerance: a pixel straddling two cells may show either neighbour (q differs by ~4).
+                hit += near(img.at(static_cast<int>(px.x), static_cast<int>(px.y)), expected, 12) ? 1 : 0;
+            }
+        EXPECT_GT(static_cast<double>(hit) / all, 0.9) << "no coverage colour at E+" << e << " N+" << n;
+        // And it is not the background.
+        EXPECT_LT(fractionNear(img, c, 4, pal.background, 2), 0.05);
+    }
+    // Inside the gap (south half, away from the infill line): the background, no coverage colour.
+    const ImVec2 g = t.toScreen({kOriginE + 520.0, kOriginN + 322.0});
+    EXPECT_GT(fractionNear(img, g, 3, pal.background, 2), 0.8);
+    for (int q : {55, 128, 200, 255})
+        EXPECT_LT(fractionNear(img, g, 3, pal.marginColour(static_cast<std::uint8_t>(q)), 20), 0.05);
+}
+
+TEST_F(ScreenTest, GapOutlineDrawnAtTheKnownGap) {
+    const auto snap = sg::testdata::makeSyntheticSnapshot({});
+    const Image img = render(snap, "gap");
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, false, /*banner=*/true);
+    const auto t = sg::ui::fitTransform(sg::ui::surveyBounds(*snap), layout.plan);
+    const auto& pal = sg::ui::dayPalette();
+    // Midpoints of the gap's west and east edges and of its south edge.
+    for (auto [e, n] : {std::pair{sg::testdata::kGapE0, 330.0}, {sg::testdata::kGapE1, 330.0}, {450.0, sg::testdata::kGapN0}}) {
+        const ImVec2 p = t.toScreen({kOriginE + e, kOriginN + n});
+        EXPECT_GT(fractionNear(img, p, 2, pal.gap, 40), 0.1) << "no gap outline at E+" << e << " N+" << n;
+    }
+    // And not in a fully covered place far from the gap.
+    const ImVec2 far = t.toScreen({kOriginE + 150.0, kOriginN + 480.0});
+    EXPECT_EQ(fractionNear(img, far, 2, pal.gap, 40), 0.0);
+}
+
+// Fraction of the banner's always-covered band (the top part of its smallest pulse) in banner colour.
+double bannerFraction(const Image& img, const sg::ui::Layout& l, ImU32 banner) {
+    int hit = 0, all = 0;
+    for (int y = static_cast<int>(l.banner.min.y) + 4; y < static_cast<int>(l.banner.min.y) + 40; y += 2)
+        for (int x = 0; x < img.w; x += 3) {
+            ++all;
+            hit += near(img.at(x, y), banner, 2) ? 1 : 0;
+        }
+    return static_cast<double>(hit) / all;
+}
+
+TEST_F(ScreenTest, AlarmBannerWhileUnacknowledgedAndGoneAfterAcknowledgement) {
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, false, /*banner=*/true);
+    const auto& pal = sg::ui::dayPalette();
+    const Image on = render(sg::testdata::makeSyntheticSnapshot({}), "banner_on");
+    EXPECT_GT(bannerFraction(on, layout, pal.banner), 0.4);
+    sg::testdata::SyntheticOptions acked;
+    acked.acknowledge_alarm = true;
+    const Image off = render(sg::testdata::makeSyntheticSnapshot(acked), "banner_off");
+    EXPECT_LT(bannerFraction(off, layout, pal.banner), 0.01);
+}
+
+TEST_F(ScreenTest, LargeUiScaleRebuildsFontsAndGrowsTheBanner) {
+    std::ofstream(m_ini, std::ios::trunc) << "[screen]\nui_scale = 1.5\nfollow_vessel = false\n";
+    const Image img = render(sg::testdata::makeSyntheticSnapshot({}), "scale_1_5");
+    const auto big = sg::ui::computeLayout({1600, 1000}, 1.5f, false, true);
+    EXPECT_GT(bannerFraction(img, big, sg::ui::dayPalette().banner), 0.4);
+    // Row 110: below the banner body's smallest extent at scale 1 (toolbar 30 + 70 % of 86 - 12
+    // stripe px = 78), inside it at scale 1.5 (45 + 70 % of 129 - 18 = 117).
+    int hit = 0, all = 0;
+    for (int x = 0; x < img.w; x += 3, ++all) hit += near(img.at(x, 110), sg::ui::dayPalette().banner, 2) ? 1 : 0;
+    EXPECT_GT(static_cast<double>(hit) / all, 0.3);
+}
+
+double meanLuminance(const Image& img) {
+    // Rec. 709 luma weights.
+    double sum = 0;
+    for (std::size_t i = 0; i + 2 < img.rgb.size(); i += 3)
+        sum += 0.2126 * img.rgb[i] + 0.7152 * img.rgb[i + 1] + 0.0722 * img.rgb[i + 2];
+    return img.rgb.empty() ? 0.0 : sum / (static_cast<double>(img.rgb.size()) / 3);
+}
+
+TEST_F(ScreenTest, NightPaletteIsMuchDimmerThanDay) {
+    sg::testdata::SyntheticOptions o;
+    o.acknowledge_alarm = true;
+    const Image day = render(sg::testdata::makeSyntheticSnapshot(o), "day");
+    std::ofstream(m_ini, std::ios::trunc) << "[screen]\npalette = night\nfollow_vessel = false\n";
+    const Image night = render(sg::testdata::makeSyntheticSnapshot(o), "night");
+    const double d = meanLuminance(day), n = meanLuminance(night);
+    EXPECT_GT(d, 150.0);
+    EXPECT_LT(n, 40.0);
+    EXPECT_LT(n, 0.25 * d);
+}
+
+// The saved tab is the one shown: the Profiles tab fills the tab area with the sensors' traces
+// (series colours), the Runs tab does not; the replay strip is on screen in both
+// (build/test_ui_out/tab_*.png are also for a person to look at).
+int seriesPixels(const Image& img, const sg::ui::Rect& r) {
+    const auto& pal = sg::ui::dayPalette();
+    int n = 0;
+    for (int y = static_cast<int>(r.min.y); y < static_cast<int>(r.max.y); ++y)
+        for (int x = static_cast<int>(r.min.x); x < static_cast<int>(r.max.x); ++x)
+            for (int k = 0; k < 4; ++k)
+                if (near(img.at(x, y), pal.seriesColour(static_cast<std::size_t>(k)), 10)) {
+                    ++n;
+                    break;
+                }
+    return n;
+}
+
+TEST_F(ScreenTest, SavedTabIsShownAndReplayStripRenders) {
+    sg::testdata::SyntheticOptions o;
+    o.acknowledge_alarm = true;
+    o.replay = true;
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, /*replay=*/true, /*banner=*/false);
+    int counts[2] = {0, 0};
+    int i = 0;
+    for (const char* tab : {"Profiles", "Runs & infill"}) {
+        std::ofstream(m_ini, std::ios::trunc) << "[screen]\nfollow_vessel = false\ntab = " << tab << "\n";
+        const Image img = render(sg::testdata::makeSyntheticSnapshot(o), std::string("tab_") + (i == 0 ? "profiles" : "runs"));
+        ASSERT_EQ(img.w, 1600);
+        counts[i++] = seriesPixels(img, layout.tabs);
+        std::vector<std::string> warnings;
+        EXPECT_EQ(sg::ui::loadSettings(m_ini, warnings).tab, tab);  // not overwritten by the screen
+    }
+    EXPECT_GT(counts[0], 1500) << "profile traces not drawn";
+    EXPECT_LT(counts[1], counts[0] / 5);
+}
+
+TEST_F(ScreenTest, PausedScreenNeverBlocksTheProducer) {
+    sg::ui::SnapshotBox box;
+    sg::ui::CommandQueue commands;
+    const auto base = sg::testdata::makeSyntheticSnapshot({});
+    box.publish(base);
+    constexpr int kPublishes = 20000;
+    constexpr auto kPause = std::chrono::milliseconds(1500);
+    std::atomic<bool> paused{false}, producer_done{false}, stop{false};
+    std::atomic<int> published{0};
+    std::atomic<long long> worst_publish_ns{0};
+    std::uint64_t seen_after_pause = 0;
+    bool done_during_pause = false;
+    std::thread producer;
+
+    sg::ui::ScreenOptions o;
+    o.settings_path = m_ini;
+    o.max_fps = 200;
+    o.stop = &stop;
+    o.frame_hook = [&](std::uint64_t frame) {
+        if (frame == 2) {
+            // Pause the screen thread and let the producer publish at full speed meanwhile.
+            paused = true;
+            producer = std::thread([&] {
+                for (int i = 1; i <= kPublishes; ++i) {
+                    auto s = std::make_shared<sg::engine::Snapshot>(*base);  // shares the big chunks
+                    s->seq = static_cast<std::uint64_t>(i) + 1;
+                    const auto t0 = std::chrono::steady_clock::now();
+                    box.publish(std::move(s));
+                    const auto ns = std::chrono::duration_cast<std::chrono::nanoseconds>(
+                                        std::chrono::steady_clock::now() - t0).count();
+                    if (ns > worst_publish_ns) worst_publish_ns = ns;
+                    ++published;
+                }
+                producer_done = true;
+            });
+            std::this_thread::sleep_for(kPause);
+            done_during_pause = producer_done.load();
+            paused = false;
+        }
+        if (frame == 3) {
+            seen_after_pause = box.latest()->seq;
+            stop = true;
+        }
+    };
+    sg::ui::runScreen(box, commands, o);
+    producer.join();
+    // Every publish completed while the screen thread was asleep, none waited for the screen
+    // (a blocked publish would have taken about the whole pause), and the screen then got the
+    // newest state.
+    EXPECT_TRUE(done_during_pause);
+    EXPECT_EQ(published.load(), kPublishes);
+    EXPECT_EQ(box.publishedCount(), static_cast<std::uint64_t>(kPublishes) + 1);
+    EXPECT_LT(worst_publish_ns.load(), std::chrono::duration_cast<std::chrono::nanoseconds>(kPause).count() / 10);
+    EXPECT_EQ(seen_after_pause, static_cast<std::uint64_t>(kPublishes) + 1);
+}
+
+}  // namespace

@@ -1,0 +1,32 @@
+// Screen layout: toolbar on top, plan view on the left, time plots above tabbed panels on the
+// right, replay strip and status bar at the bottom.
+#include "ui/layout.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace sg::ui {
+
+Layout computeLayout(ImVec2 display, float scale, bool replay, bool banner) {
+    const float w = display.x, h = display.y;
+    const float toolbar_h = std::round(30.0f * scale);
+    const float status_h = std::round(26.0f * scale);
+    const float replay_h = replay ? std::round(36.0f * scale) : 0.0f;
+    const float banner_h = std::round(86.0f * scale);
+    const float body_top = toolbar_h + (banner ? banner_h : 0.0f);
+    const float body_bottom = std::max(body_top + 10.0f, h - status_h - replay_h);
+    const float plan_w = std::round(std::clamp(w * 0.56f, 200.0f, w));
+    const float plots_h = std::round((body_bottom - body_top) * 0.62f);
+
+    Layout l;
+    l.toolbar = {{0, 0}, {w, toolbar_h}};
+    l.plan = {{0, body_top}, {plan_w, body_bottom}};
+    l.plots = {{plan_w, body_top}, {w, body_top + plots_h}};
+    l.tabs = {{plan_w, body_top + plots_h}, {w, body_bottom}};
+    l.replay = {{0, body_bottom}, {w, body_bottom + replay_h}};
+    l.status = {{0, h - status_h}, {w, h}};
+    l.banner = {{0, toolbar_h}, {w, toolbar_h + banner_h}};
+    return l;
+}
+
+}  // namespace sg::ui

@@ -1,0 +1,129 @@
+// ScreenUi: builds one ImGui frame from a snapshot by placing the registered panels in the
+// layout's slots. No OpenGL here, so the benchmark and tests can run it without a GPU.
+#include <algorithm>
+#include <cmath>
+#include <string_view>
+#include <utility>
+
+#include "ui/screen.hpp"
+
+namespace sg::ui {
+
+ScreenUi::ScreenUi(ScreenSettings settings, CommandSink& commands, TileTextureSource& textures)
+    : m_settings(std::move(settings)), m_commands(commands), m_textures(textures), m_panels(makePanels()) {}
+
+ScreenUi::~ScreenUi() = default;
+
+bool ScreenUi::takeSettingsChanged() { return std::exchange(m_settings_changed, false); }
+
+bool ScreenUi::prepareFonts() {
+    const float scale = std::clamp(m_settings.ui_scale, 0.75f, 3.0f);
+    if (scale == m_font_scale) return false;
+    m_font_scale = scale;
+    ImGuiIO& io = ImGui::GetIO();
+    io.Fonts->Clear();
+    ImFontConfig cfg;
+    cfg.SizePixels = std::round(13.0f * scale);
+    io.Fonts->AddFontDefault(&cfg);
+    io.Fonts->Build();
+    return true;
+}
+
+void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
+    const float scale = std::clamp(m_settings.ui_scale, 0.75f, 3.0f);
+    if (scale != m_style_scale || m_settings.night != m_style_night) {
+        ImGuiStyle style;
+        applyPaletteToStyle(paletteFor(m_settings.night), style);
+        style.ScaleAllSizes(scale);
+        ImGui::GetStyle() = style;
+        m_style_scale = scale;
+        m_style_night = m_settings.night;
+    }
+    ImGui::NewFrame();
+    const ImVec2 display = ImGui::GetIO().DisplaySize;
+    m_layout = computeLayout(display, scale, s && s->replay.is_replay, s && s->hasUnacknowledgedAlarm());
+
+    FrameContext ctx;
+    ctx.snapshot = s;
+    ctx.palette = &paletteFor(m_settings.night);
+    ctx.settings = &m_settings;
+    ctx.commands = &m_commands;
+    ctx.textures = &m_textures;
+    ctx.wall_s = wall_s;
+    ctx.scale = scale;
+    ctx.focus_request = std::exchange(m_focus, std::nullopt);
+
+    const ImGuiWindowFlags fixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove |
+                                   ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoBringToFrontOnFocus;
+    auto slotRect = [&](Slot slot) -> const Rect* {
+        switch (slot) {
+            case Slot::kToolbar: return &m_layout.toolbar;
+            case Slot::kPlan: return &m_layout.plan;
+            case Slot::kPlots: return &m_layout.plots;
+            case Slot::kReplay: return m_layout.replay.height() > 0 ? &m_layout.replay : nullptr;
+            case Slot::kStatus: return &m_layout.status;
+            case Slot::kTab:
+            case Slot::kOverlay: return nullptr;
+        }
+        return nullptr;
+    };
+    // Fixed slots first, then the tabbed panels, then overlays.
+    for (auto& p : m_panels) {
+        const Rect* r = slotRect(p->slot());
+        if (!r) continue;
+        const bool plan = p->slot() == Slot::kPlan;
+        ImGui::SetNextWindowPos(r->min);
+        ImGui::SetNextWindowSize({r->width(), r->height()});
+        if (plan) ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, {0, 0});
+        ImGui::Begin(p->name(), nullptr, fixed | (plan ? ImGuiWindowFlags_NoScrollWithMouse : 0));
+        if (plan) {
+            p->draw(ctx, r->min, r->max);
+        } else {
+            const ImVec2 a = ImGui::GetCursorScreenPos();
+            const ImVec2 avail = ImGui::GetContentRegionAvail();
+            p->draw(ctx, a, {a.x + avail.x, a.y + avail.y});
+        }
+        ImGui::End();
+        if (plan) ImGui::PopStyleVar();
+    }
+    int unacked = 0;
+    if (s)
+        for (const auto& a : s->alarms) unacked += a.episode.ack_ns ? 0 : 1;
+    ImGui::SetNextWindowPos(m_layout.tabs.min);
+    ImGui::SetNextWindowSize({m_layout.tabs.width(), m_layout.tabs.height()});
+    ImGui::Begin("Panels", nullptr, fixed);
+    if (ImGui::BeginTabBar("panel_tabs")) {
+        for (auto& p : m_panels) {
+            if (p->slot() != Slot::kTab) continue;
+            // A new unacknowledged alarm brings the alarm list to the front.
+            const bool is_alarms = std::string_view(p->name()) == "Alarms";
+            const bool restore = m_tab_frames < 2 && m_settings.tab == p->name();
+            const ImGuiTabItemFlags f =
+                ((is_alarms && unacked > m_last_unacked) || restore) ? ImGuiTabItemFlags_SetSelected : 0;
+            if (ImGui::BeginTabItem(p->name(), nullptr, f)) {
+                if (m_tab_frames >= 3 && m_settings.tab != p->name()) {
+                    m_settings.tab = p->name();  // the operator (or a new alarm) chose this tab
+                    m_settings_changed = true;
+                }
+                const ImVec2 a = ImGui::GetCursorScreenPos();
+                const ImVec2 avail = ImGui::GetContentRegionAvail();
+                p->draw(ctx, a, {a.x + avail.x, a.y + avail.y});
+                ImGui::EndTabItem();
+            }
+        }
+        ImGui::EndTabBar();
+        ++m_tab_frames;  // the saved tab is applied over the first frames, then choices are recorded
+    }
+    ImGui::End();
+    m_last_unacked = unacked;
+    for (auto& p : m_panels)
+        if (p->slot() == Slot::kOverlay) p->draw(ctx, m_layout.banner.min, m_layout.banner.max);
+    m_banner_shown = s && s->hasUnacknowledgedAlarm();
+
+    ImGui::Render();
+    m_textures.endFrame();
+    if (ctx.settings_changed) m_settings_changed = true;
+    if (ctx.focus_request) m_focus = ctx.focus_request;  // asked for by a panel drawn after the plan
+}
+
+}  // namespace sg::ui
