@@ -16,6 +16,7 @@ int main(int argc, char** argv) {
 
     sg::app::addInspectCommand(app);
     sg::app::addReplayCommands(app);
+    sg::app::addDemoCommand(app);
 
     try {
         app.parse(argc, argv);

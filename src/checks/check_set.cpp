@@ -24,7 +24,7 @@ const std::vector<CheckSpec>& catalogue() {
         {"altitude", "m", "sensor altitude above the seabed",
          above(4.0, 5.0, 0.2, 1.0)},  // the engine derives these from the detection model
         {"deviation", "m", "cross-track distance from the active line", above(5.0, 10.0, 0.5, 2.0)},
-        {"speed_high", "m/s", "speed over ground above its band", above(2.6, 3.1, 0.1, 5.0)},
+        {"speed_high", "m/s", "speed over ground above its band", above(2.9, 3.4, 0.1, 5.0)},
         {"speed_low", "m/s", "speed over ground below its band", below(1.0, 0.5, 0.1, 5.0)},
         {"sample_spacing", "m", "along-track distance between magnetometer samples",
          above(0.5, 1.0, 0.05, 1.0)},

@@ -30,7 +30,11 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed) {
         s.coverage_pct = s.gaps.coveragePercent();
         s.significant_gaps = s.gaps.significantCount();
         s.small_gaps = s.gaps.smallCount();
-        s.infill = engine.infillPlan(s.gaps);
+        try {
+            s.infill = engine.infillPlan(s.gaps);
+        } catch (const std::exception& e) {
+            s.infill_error = e.what();
+        }
         s.runs = engine.lines()->runs();
         for (const auto& l : engine.lines()->lines()) s.line_names.push_back(l.name);
     }
@@ -80,7 +84,8 @@ nlohmann::json toJson(const SurveySummary& s) {
     j["infill"] = {{"lines", infill},
                    {"total_length_m", s.infill.plan.totalLength_m()},
                    {"half_width_m", s.infill.plan.options.half_width_m},
-                   {"gaps_left_after_flying", s.infill.after.significantCount()}};
+                   {"gaps_left_after_flying", s.infill.after.significantCount()},
+                   {"error", s.infill_error}};
     json runs = json::array();
     for (const auto& r : s.runs) {
         const std::string name = r.line >= 0 && static_cast<std::size_t>(r.line) < s.line_names.size()
@@ -126,7 +131,8 @@ std::string toText(const SurveySummary& s) {
         out += fmt::format("  gap {:3}{} {:9.1f} m2 at E {:.1f} N {:.1f}, {:.1f} m along x {:.1f} m across\n",
                            g.id, g.small ? " (small)" : "", g.area_m2, g.centroid.e_m, g.centroid.n_m,
                            g.along_length_m, g.across_width_m);
-    out += fmt::format("infill: {} line(s), {:.0f} m in all, half-width {:.1f} m; gaps left after flying them: {}\n",
+    if (!s.infill_error.empty()) out += "infill: not planned: " + s.infill_error + "\n";
+    else out += fmt::format("infill: {} line(s), {:.0f} m in all, half-width {:.1f} m; gaps left after flying them: {}\n",
                        s.infill.plan.lines.size(), s.infill.plan.totalLength_m(),
                        s.infill.plan.options.half_width_m, s.infill.after.significantCount());
     for (const auto& l : s.infill.plan.lines)

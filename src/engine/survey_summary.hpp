@@ -37,6 +37,7 @@ struct SurveySummary {
     std::size_t small_gaps = 0;
     coverage::GapReport gaps;
     coverage::SurveyCoverage::Infill infill;
+    std::string infill_error;  // why no infill could be planned (e.g. swath narrower than a cell)
     std::vector<coverage::LineRun> runs;
     std::vector<std::string> line_names;  // by plan line index
     std::vector<AlarmSummary> alarms;
