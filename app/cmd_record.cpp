@@ -3,6 +3,7 @@
 // file that has been read to its end.
 #include <csignal>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -14,6 +15,8 @@
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
 #include "io/recorder.hpp"
+#include "app/engine_status.hpp"
+#include "engine/survey_config.hpp"
 #include "io/status_line.hpp"
 
 namespace sg::app {
@@ -28,23 +31,18 @@ struct RecordOptions {
 };
 
 int runRecord(const RecordOptions& o) {
-    std::ifstream in(o.config, std::ios::binary);
-    if (!in) throw std::runtime_error(fmt::format("{}: cannot read the config file", o.config));
-    std::stringstream text;
-    text << in.rdbuf();
-    const auto table = config::parseText(text.str(), o.config);
-    const config::Section root(table, o.config);
-    auto inputs = config::parseInputs(root);
-    if (inputs.empty()) root.fail("input", "at least one [[input]] table");
-    const auto log_cfg = config::parseLog(root);
-    auto maps = decode::parseFieldMaps(root);
-    const std::string log_path = o.log.empty() ? log_cfg.path : o.log;
+    const auto cfg = engine::loadSurveyConfig(o.config);
+    const auto root = cfg.root();
+    if (cfg.inputs.empty()) root.fail("input", "at least one [[input]] table");
+    const std::string log_path = o.log.empty() ? cfg.log.path : o.log;
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
-    io::LogWriter writer(log_path, {log_cfg.commit_interval_ms, true},
-                         {{"config_text", text.str()}, {"config_file", o.config}});
+    // The config's own path is stored absolute so replay finds the plan files it names.
+    io::LogWriter writer(log_path, {cfg.log.commit_interval_ms, true},
+                         {{"config_text", cfg.text},
+                          {"config_file", std::filesystem::absolute(o.config).string()}});
     io::asio::io_context ctx;
-    io::Recorder rec(ctx, std::move(inputs), std::move(maps), writer);
+    io::Recorder rec(ctx, cfg, writer);
 
     int exit_code = 0;
     auto finish = [&] {
@@ -74,8 +72,9 @@ int runRecord(const RecordOptions& o) {
             const auto now = std::chrono::steady_clock::now();
             const double dt = std::chrono::duration<double>(now - last).count();
             last = now;
-            std::printf("%s\n",
-                        status.update(rec.dispatcher().counters(), writer.stats(), dt).c_str());
+            std::printf("%s | %s\n",
+                        status.update(rec.dispatcher().counters(), writer.stats(), dt).c_str(),
+                        engineStatus(rec.pipeline()->engine()).c_str());
             std::fflush(stdout);
             if (rec.allFinished()) return finish();
             schedule();

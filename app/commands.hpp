@@ -10,6 +10,8 @@ namespace sg::app {
 // Add a line here and a call in main.cpp when adding a command.
 void addRecordCommand(CLI::App& app);  // cmd_record.cpp
 void addImportCommand(CLI::App& app);  // cmd_import.cpp
+void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
+
 void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
 
 }  // namespace sg::app

@@ -12,6 +12,8 @@ int main(int argc, char** argv) {
     app.require_subcommand(1);
     sg::app::addRecordCommand(app);
     sg::app::addImportCommand(app);
+    sg::app::addSwathCommand(app);
+
     sg::app::addInspectCommand(app);
 
     try {

@@ -14,7 +14,7 @@
 #include "common/line_framer.hpp"
 #include "decode/instrument_clock.hpp"
 #include "decode/nmea.hpp"
-#include "io/dispatcher.hpp"
+#include "engine/line_decoder.hpp"
 #include "io/source.hpp"
 #include "log/log_store.hpp"
 
@@ -252,7 +252,7 @@ ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
     for (const auto& c : res.merged.captures) from += fmt::format("{}={};", c.input, c.path);
     store.setMeta("imported_from", from);
     std::int64_t next_id = store.nextEventId();
-    Dispatcher d(inputs, maps, [&next_id] { return next_id++; });
+    engine::LineDecoder d(inputs, maps, [&next_id] { return next_id++; });
     for (const auto& c : res.merged.captures) {
         if (!c.disagrees) continue;
         log::EventRow e;

@@ -2,7 +2,7 @@
 // live. Lines are merged in order of INSTRUMENT time (NMEA time of day + date from RMC/ZDA via
 // decode::InstrumentClock; the field map's time field), each file keeping its own line order;
 // receive times are synthesised from instrument time (+ the input's latency_ms); every line then
-// goes through the same Dispatcher as live lines, so decode statuses and rows are identical.
+// goes through the same engine::LineDecoder as live lines, so decode statuses and rows are identical.
 // A capture whose clock is shifted against the reference capture by more than
 // [import] max_clock_disagreement_s is reported and not merged unless the caller accepts it.
 #pragma once
@@ -51,7 +51,7 @@ struct ImportResult {
 };
 
 // mergeCaptures, then (if no capture disagrees, or `accept_disagreement`) writes `log_path`
-// (a new file) through the Dispatcher; accepted disagreements are logged as events of kind
+// (a new file) through the engine::LineDecoder; accepted disagreements are logged as events of kind
 // "clock_disagreement" (value = shift in s). `config_text` is stored in meta like `record` does.
 ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
                             const std::vector<decode::FieldMap>& maps,

@@ -67,13 +67,14 @@ void LogWriter::run() {
         }
         next_commit = clock::now() + interval;
         if (!pending.empty()) {
-            // Merge into one transaction: one commit (and one fsync) per interval.
-            log::Batch all = std::move(pending.front());
-            for (std::size_t i = 1; i < pending.size(); ++i) all.append(std::move(pending[i]));
-            const std::uint64_t raw = all.raw.size();
-            const std::uint64_t rows = all.rowCount();
+            // Everything queued goes in one transaction: one commit (one fsync) per interval.
+            std::uint64_t raw = 0, rows = 0;
+            for (const auto& b : pending) {
+                raw += b.raw.size();
+                rows += b.rowCount();
+            }
             try {
-                m_store.write(all);
+                m_store.write(std::span<log::Batch>(pending));
                 pending.clear();
                 std::lock_guard lock(m_mutex);
                 m_stats.raw_committed += raw;
@@ -84,8 +85,6 @@ void LogWriter::run() {
             } catch (const std::exception& e) {
                 // Disk full, file locked...: keep the rows and try again next interval, so
                 // nothing is dropped while the problem lasts (memory grows meanwhile).
-                pending.clear();
-                pending.push_back(std::move(all));
                 spdlog::error("log: {}", e.what());
                 std::lock_guard lock(m_mutex);
                 m_stats.last_error = e.what();

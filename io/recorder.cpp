@@ -12,18 +12,30 @@ constexpr std::size_t kFlushLines = 5000;
 
 Recorder::Recorder(asio::io_context& io, std::vector<config::InputConfig> inputs,
                    std::vector<decode::FieldMap> maps, LogWriter& writer)
-    : m_io(io),
-      m_writer(writer),
-      m_dispatcher(std::move(inputs), std::move(maps), [&writer] { return writer.nextEventId(); }),
-      m_flush_timer(io) {
-    for (const auto& in : m_dispatcher.inputs()) {
+    : m_io(io), m_writer(writer), m_flush_timer(io) {
+    m_own_decoder = std::make_unique<engine::LineDecoder>(
+        std::move(inputs), std::move(maps), [&writer] { return writer.nextEventId(); });
+    m_decoder = m_own_decoder.get();
+    makeSources(m_decoder->inputs());
+}
+
+Recorder::Recorder(asio::io_context& io, const engine::SurveyConfig& config, LogWriter& writer)
+    : m_io(io), m_writer(writer), m_flush_timer(io) {
+    m_pipeline = std::make_unique<engine::Pipeline>(config, [&writer] { return writer.nextEventId(); });
+    m_decoder = &m_pipeline->decoder();
+    makeSources(m_decoder->inputs());
+}
+
+void Recorder::makeSources(const std::vector<config::InputConfig>& inputs) {
+    for (const auto& in : inputs) {
         SourceCallbacks cb;
         cb.line = [this](ReceivedLine&& l) {
-            m_dispatcher.onLine(l);
-            if (m_dispatcher.pendingRaw() >= kFlushLines) flush();
+            if (m_pipeline) m_pipeline->feed(l);
+            else m_decoder->onLine(l);
+            if (m_decoder->pendingRaw() >= kFlushLines) flush();
         };
-        cb.event = [this](const SourceEvent& e) { m_dispatcher.onEvent(e); };
-        m_sources.push_back(makeSource(io, in, std::move(cb)));
+        cb.event = [this](const SourceEvent& e) { m_decoder->onEvent(e); };
+        m_sources.push_back(makeSource(m_io, in, std::move(cb)));
     }
 }
 
@@ -44,7 +56,17 @@ void Recorder::schedule() {
     });
 }
 
-void Recorder::flush() { m_writer.post(m_dispatcher.takeBatch()); }
+void Recorder::flush() {
+    if (m_pipeline) {
+        // The receive clock moves on even when every input is silent (silence checks).
+        const auto now = std::chrono::system_clock::now().time_since_epoch();
+        m_pipeline->tick(std::chrono::duration_cast<std::chrono::nanoseconds>(now).count());
+        m_writer.post(m_pipeline->takeBatch());
+    } else {
+        m_writer.post(m_decoder->takeBatch());
+    }
+    if (m_on_flush) m_on_flush();
+}
 
 void Recorder::stop() {
     if (!m_running) return;

@@ -18,6 +18,7 @@
 #include "common/input_config.hpp"
 #include "common/line_framer.hpp"
 #include "common/received_line.hpp"
+#include "common/source_event.hpp"
 
 namespace sg::io {
 
@@ -27,14 +28,7 @@ namespace asio = boost::asio;
 TimeNs monoNowNs();
 TimeNs utcNowNs();
 
-struct SourceEvent {
-    enum class Kind { OutageStart, OutageEnd, Finished };
-    Kind kind = Kind::OutageStart;
-    std::string source;
-    TimeNs utc_ns = 0;   // when it happened (system clock)
-    TimeNs mono_ns = 0;
-    std::string detail;  // e.g. "connect 127.0.0.1:4001: Connection refused"
-};
+using SourceEvent = sg::SourceEvent;
 
 struct SourceCallbacks {
     std::function<void(ReceivedLine&&)> line;

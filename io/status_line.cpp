@@ -5,7 +5,7 @@
 
 namespace sg::io {
 
-std::string StatusLine::update(const std::map<std::string, SourceCounters>& counters,
+std::string StatusLine::update(const std::map<std::string, engine::SourceCounters>& counters,
                                const LogWriterStats& log, double dt_s) {
     std::string out;
     std::optional<std::pair<double, double>> fix;

@@ -5,7 +5,7 @@
 #include <map>
 #include <string>
 
-#include "io/dispatcher.hpp"
+#include "engine/line_decoder.hpp"
 #include "io/log_writer.hpp"
 
 namespace sg::io {
@@ -13,7 +13,7 @@ namespace sg::io {
 class StatusLine {
 public:
     // Text for the period since the previous call, `dt_s` seconds long (> 0).
-    std::string update(const std::map<std::string, SourceCounters>& counters,
+    std::string update(const std::map<std::string, engine::SourceCounters>& counters,
                        const LogWriterStats& log, double dt_s);
 
 private:

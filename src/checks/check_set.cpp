@@ -30,6 +30,8 @@ const std::vector<CheckSpec>& catalogue() {
          above(0.5, 1.0, 0.05, 1.0)},
         {"mag_silence", "s", "time since the last magnetometer sample", above(1.0, 3.0, 0.0, 0.0)},
         {"gnss_silence", "s", "time since the last position fix", above(1.5, 3.0, 0.0, 0.0)},
+        {"altitude_lost", "s", "time since the last known sensor altitude",
+         above(1.0, 3.0, 0.0, 0.0)},
         {"fix_quality", "rank", "GNSS fix quality (0 RTK fixed ... 5 no fix)",
          above(2.5, 3.5, 0.0, 2.0)},
         {"position_error", "m", "GST horizontal position error (1 sigma)",

@@ -5,6 +5,7 @@
 
 #include <chrono>
 #include <filesystem>
+#include <span>
 
 #include <fmt/format.h>
 
@@ -119,7 +120,7 @@ std::size_t Batch::rowCount() const {
 void Batch::append(Batch&& o) {
     const std::size_t base = raw.size();
     auto move = [base](auto& dst, auto& src, bool shift) {
-        dst.reserve(dst.size() + src.size());
+        // No exact reserve here: appending many batches must grow geometrically.
         for (auto& r : src) {
             if constexpr (requires { r.raw_index; })
                 if (shift) r.raw_index += base;
@@ -159,14 +160,15 @@ Statement& Statement::bind(int i, double v) {
     return *this;
 }
 Statement& Statement::bind(int i, std::string_view t) {
-    sqlite3_bind_text64(m_stmt, i, t.data(), t.size(), SQLITE_TRANSIENT, SQLITE_UTF8);
+    // SQLITE_STATIC: callers keep the text alive until run()/step(); saves a copy per value.
+    sqlite3_bind_text64(m_stmt, i, t.data(), t.size(), SQLITE_STATIC, SQLITE_UTF8);
     return *this;
 }
 Statement& Statement::bindBlob(int i, std::string_view b) {
     // An empty line is stored as an empty BLOB, not NULL (a zero-length blob with a null
     // pointer would bind NULL).
     static const char kEmpty = 0;
-    sqlite3_bind_blob64(m_stmt, i, b.empty() ? &kEmpty : b.data(), b.size(), SQLITE_TRANSIENT);
+    sqlite3_bind_blob64(m_stmt, i, b.empty() ? &kEmpty : b.data(), b.size(), SQLITE_STATIC);
     return *this;
 }
 Statement& Statement::bindNull(int i) {
@@ -230,6 +232,9 @@ LogStore::LogStore(const std::string& path, OpenMode mode, StoreOptions options)
         }
         exec("PRAGMA journal_mode=WAL");
         exec(options.synchronous_full ? "PRAGMA synchronous=FULL" : "PRAGMA synchronous=NORMAL");
+        // A second of lines at full rate (a few MB) fits in the page cache, so a transaction
+        // does not spill pages to the WAL before its commit.
+        exec("PRAGMA cache_size=-32768");
         Statement probe(m_db, "SELECT count(*) FROM sqlite_master WHERE name='meta'", m_path);
         probe.step();
         const bool existing = probe.columnInt(0) > 0;
@@ -318,9 +323,29 @@ std::int64_t LogStore::nextEventId() {
 
 std::int64_t LogStore::write(Batch& b) {
     if (b.empty()) return 0;
+    std::span<Batch> one(&b, 1);
+    return write(one);
+}
+
+std::int64_t LogStore::write(std::span<Batch> batches) {
     exec("BEGIN IMMEDIATE");
     std::int64_t first_id = 0;
     try {
+        for (auto& b : batches) {
+            const auto id = writeRows(b);
+            if (first_id == 0) first_id = id;
+        }
+        exec("COMMIT");
+    } catch (...) {
+        sqlite3_exec(m_db, "ROLLBACK", nullptr, nullptr, nullptr);
+        throw;
+    }
+    return first_id;
+}
+
+std::int64_t LogStore::writeRows(Batch& b) {
+    std::int64_t first_id = 0;
+    {
         std::vector<std::int64_t> ids;
         ids.reserve(b.raw.size());
         auto& raw = statement(
@@ -414,10 +439,6 @@ std::int64_t LogStore::write(Batch& b) {
             ack.run();
         }
         for (auto& e : b.extra) e->write(*this);
-        exec("COMMIT");
-    } catch (...) {
-        sqlite3_exec(m_db, "ROLLBACK", nullptr, nullptr, nullptr);
-        throw;
     }
     return first_id;
 }

@@ -5,6 +5,7 @@
 
 #include <functional>
 #include <map>
+#include <span>
 #include <optional>
 #include <type_traits>
 #include <stdexcept>
@@ -23,7 +24,9 @@ public:
     using std::runtime_error::runtime_error;
 };
 
-// A prepared statement with typed binds. Owned by the LogStore's cache.
+// A prepared statement with typed binds. Owned by the LogStore's cache. Text and blobs are bound
+// without a copy: they must stay alive until run() or the last step(); bind every parameter
+// again before each run().
 class Statement {
 public:
     Statement(sqlite3* db, std::string_view sql, const std::string& file);
@@ -89,6 +92,8 @@ public:
     // Writes the whole batch in one transaction. Returns the id given to the first raw line
     // (0 when the batch had none); raw ids are consecutive.
     std::int64_t write(Batch& batch);
+    // Writes several batches in one transaction (each batch's raw_index refers to its own raw).
+    std::int64_t write(std::span<Batch> batches);
     // First free event id (producers hand out ids from here).
     std::int64_t nextEventId();
     void addExtension(std::string_view name, std::string_view ddl);
@@ -106,6 +111,7 @@ public:
 
 private:
     void createSchema();
+    std::int64_t writeRows(Batch& batch);
     sqlite3* m_db = nullptr;
     std::string m_path;
     std::map<std::string, std::unique_ptr<Statement>, std::less<>> m_cache;

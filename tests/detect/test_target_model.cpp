@@ -133,6 +133,20 @@ TEST(HalfWidth, WorstOrientationNeverBeatsInduced) {
     EXPECT_NEAR(peakFactorDirect(Orientation::Worst, 60.0 * kDeg, 90.0 * kDeg, 0.0), 0.0, 1e-3);
 }
 
+TEST(PeakFactor, EastWestMirrorSymmetry) {
+    // Mirroring east <-> west leaves a field in the magnetic meridian plane unchanged and turns a
+    // target to starboard of heading psi into one to port of heading -psi, i.e. to starboard of
+    // heading 180 - psi (geometry). The table build relies on this; check it on the direct values.
+    for (Orientation o : {Orientation::Induced, Orientation::Worst}) {
+        for (double hd : {10.0, 35.0, 80.0}) {
+            for (double depr : {15.0, 50.0, 85.0}) {
+                EXPECT_NEAR(peakFactorDirect(o, 0.9, depr * kDeg, hd * kDeg),
+                            peakFactorDirect(o, 0.9, depr * kDeg, (180.0 - hd) * kDeg), 2e-3);
+            }
+        }
+    }
+}
+
 TEST(HalfWidth, SphereEqualsInducedDipoleOfItsMoment) {
     auto cfg = survey(65.0, Orientation::Induced, ModelKind::Sphere);
     const auto spheres = makeModels(cfg);
@@ -180,7 +194,7 @@ TEST(PeakTable, InducedInterpolationErrorIsSmallAndSafe) {
     std::sort(err.begin(), err.end());
     EXPECT_LT(err[err.size() / 2], 0.005);          // median
     EXPECT_LT(err[err.size() * 95 / 100], 0.035);   // 95th percentile
-    EXPECT_LT(worst_over, 0.015);                   // never wider than the truth by > 1.5 % R_T
+    EXPECT_LT(worst_over, 0.02);                    // never wider than the truth by > 2 % R_T
     // The peak factor itself: bilinear in 1-degree depression and 5-degree heading steps.
     double g_err = 0.0;
     for (int i = 0; i < 200; ++i) {

@@ -1,9 +1,11 @@
-// Line -> decoder -> rows and counters; see dispatcher.hpp.
-#include "io/dispatcher.hpp"
+// Line -> decoder -> rows and counters; see line_decoder.hpp.
+#include "engine/line_decoder.hpp"
+
+#include <variant>
 
 #include <fmt/format.h>
 
-namespace sg::io {
+namespace sg::engine {
 
 log::DecodeStatus statusOf(decode::Reason r) {
     if (decode::isUsable(r)) return log::DecodeStatus::Ok;
@@ -11,7 +13,7 @@ log::DecodeStatus statusOf(decode::Reason r) {
     return log::DecodeStatus::Rejected;
 }
 
-Dispatcher::Dispatcher(std::vector<config::InputConfig> inputs, std::vector<decode::FieldMap> maps,
+LineDecoder::LineDecoder(std::vector<config::InputConfig> inputs, std::vector<decode::FieldMap> maps,
                        std::function<std::int64_t()> next_event_id)
     : m_inputs(std::move(inputs)), m_maps(std::move(maps)), m_next_event_id(std::move(next_event_id)) {
     for (const auto& in : m_inputs) {
@@ -29,7 +31,7 @@ Dispatcher::Dispatcher(std::vector<config::InputConfig> inputs, std::vector<deco
     }
 }
 
-void Dispatcher::onLine(const ReceivedLine& line) {
+void LineDecoder::onLine(const ReceivedLine& line) {
     log::RawRow raw;
     raw.source = line.source;
     raw.mono_ns = line.mono_ns;
@@ -57,11 +59,12 @@ void Dispatcher::onLine(const ReceivedLine& line) {
     case log::DecodeStatus::Unsupported: ++c.unsupported; break;
     case log::DecodeStatus::NotDecoded: ++c.not_decoded; break;
     }
-    ++c.by_reason[raw.reason.empty() ? std::string("ok") : raw.reason];
+    // Count by the reason code alone (the stored reason text may add a detail after ": ").
+    ++c.by_reason[raw.reason.empty() ? std::string("ok") : raw.reason.substr(0, raw.reason.find(':'))];
     m_batch.raw.push_back(std::move(raw));
 }
 
-void Dispatcher::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCounters& c) {
+void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCounters& c) {
     const auto s = decode::decodeNmea(line.bytes);
     raw.status = statusOf(s.reason);
     if (s.reason != decode::Reason::Ok) {
@@ -71,6 +74,17 @@ void Dispatcher::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCo
     if (raw.status != log::DecodeStatus::Ok) return;
     m_clock.observe(s);
     const std::size_t idx = m_batch.raw.size();  // this line's index once pushed
+    if (m_sink != nullptr) {
+        std::optional<double> tod;
+        std::visit(
+            [&](const auto& d) {
+                if constexpr (requires { d.tod_s; }) tod = d.tod_s;
+            },
+            s.data);
+        std::optional<TimeNs> utc;
+        if (tod) utc = m_clock.toUtc(*tod);
+        m_sink->onNmea(*m_by_name.find(line.source)->second.cfg, line, s, utc);
+    }
     auto utcOf = [this](const std::optional<double>& tod) -> std::optional<TimeNs> {
         return tod ? m_clock.toUtc(*tod) : std::nullopt;
     };
@@ -129,7 +143,7 @@ void Dispatcher::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCo
     // ZDA and GST decode ok and set the clock / stay in the raw table; no decoded table yet.
 }
 
-void Dispatcher::decodeFields(const ReceivedLine& line, const decode::FieldMap& map,
+void LineDecoder::decodeFields(const ReceivedLine& line, const decode::FieldMap& map,
                               log::RawRow& raw, SourceCounters& c) {
     const auto r = decode::decodeFieldMap(map, line.bytes);
     raw.status = statusOf(r.reason);
@@ -141,6 +155,7 @@ void Dispatcher::decodeFields(const ReceivedLine& line, const decode::FieldMap& 
     const std::size_t idx = m_batch.raw.size();
     std::optional<TimeNs> utc = r.utc_ns;
     if (!utc && r.tod_s) utc = m_clock.toUtc(*r.tod_s);
+    if (m_sink != nullptr) m_sink->onFields(*m_by_name.find(line.source)->second.cfg, line, r, utc);
     if (r.field_nT) {
         log::MagRow m;
         m.raw_index = idx;
@@ -166,7 +181,7 @@ void Dispatcher::decodeFields(const ReceivedLine& line, const decode::FieldMap& 
     aux("depth_m", r.depth_m);
 }
 
-void Dispatcher::onEvent(const SourceEvent& e) {
+void LineDecoder::onEvent(const SourceEvent& e) {
     auto& c = m_counters[e.source];
     if (e.kind == SourceEvent::Kind::OutageStart) {
         c.in_outage = true;
@@ -189,15 +204,15 @@ void Dispatcher::onEvent(const SourceEvent& e) {
     }
 }
 
-void Dispatcher::addEvent(log::EventRow row) {
+void LineDecoder::addEvent(log::EventRow row) {
     if (row.id == 0) row.id = m_next_event_id();
     m_batch.events.push_back(std::move(row));
 }
 
-log::Batch Dispatcher::takeBatch() {
+log::Batch LineDecoder::takeBatch() {
     log::Batch b = std::move(m_batch);
     m_batch = log::Batch{};
     return b;
 }
 
-}  // namespace sg::io
+}  // namespace sg::engine

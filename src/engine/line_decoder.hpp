@@ -1,6 +1,6 @@
-// Until the core engine takes over: input kind -> decoder -> decode status and reason, decoded
-// rows and per-source counters. Builds the log batch that the writer thread commits. Used by
-// `record` (lines from the Asio sources) and `import` (lines synthesised from capture files), so
+// Input kind -> decoder -> decode status and reason, decoded rows and per-source counters; the
+// decoded values also go to an optional DecodedSink (the Pipeline, which feeds the engine).
+// Builds the log batch that the writer thread commits. Used by `record` (lines from the Asio sources) and `import` (lines synthesised from capture files), so
 // both give the same statuses and rows. Single-threaded (the io_context thread).
 #pragma once
 
@@ -16,10 +16,10 @@
 #include "decode/field_map.hpp"
 #include "decode/instrument_clock.hpp"
 #include "decode/nmea.hpp"
-#include "io/source.hpp"
+#include "common/source_event.hpp"
 #include "log/log_schema.hpp"
 
-namespace sg::io {
+namespace sg::engine {
 
 struct SourceCounters {
     std::uint64_t lines = 0;        // all raw lines
@@ -36,13 +36,28 @@ struct SourceCounters {
     std::optional<std::pair<std::string, double>> last_value;  // e.g. {"altitude_m", 4.2}
 };
 
-class Dispatcher {
+// Receives every usable decoded line, in order, with the instrument's own UTC time when the line
+// carries a time of day and the date is known (RMC/ZDA seen), or a full time from the field map.
+class DecodedSink {
+public:
+    virtual ~DecodedSink() = default;
+    virtual void onNmea(const config::InputConfig& input, const ReceivedLine& line,
+                        const decode::NmeaSentence& sentence,
+                        std::optional<TimeNs> instrument_utc_ns) = 0;
+    virtual void onFields(const config::InputConfig& input, const ReceivedLine& line,
+                          const decode::FieldRecord& record,
+                          std::optional<TimeNs> instrument_utc_ns) = 0;
+};
+
+class LineDecoder {
 public:
     // `maps` are the config's field maps ([fieldmap.NAME]); each fieldmap input names one.
     // `next_event_id` hands out event ids (LogWriter::nextEventId, or a counter for import).
-    Dispatcher(std::vector<config::InputConfig> inputs, std::vector<decode::FieldMap> maps,
+    LineDecoder(std::vector<config::InputConfig> inputs, std::vector<decode::FieldMap> maps,
                std::function<std::int64_t()> next_event_id);
 
+    // Decoded values also go to `sink` (may be null; must outlive the decoder).
+    void setSink(DecodedSink* sink) { m_sink = sink; }
     // Decodes one line and adds its raw row (always) and decoded row (if any) to the batch.
     void onLine(const ReceivedLine& line);
     // Outage start/end become events (start row, later an end with the duration in s).
@@ -74,9 +89,10 @@ private:
     std::map<std::string, SourceCounters> m_counters;
     decode::InstrumentClock m_clock;  // dates from any RMC/ZDA; times of day from every input
     log::Batch m_batch;
+    DecodedSink* m_sink = nullptr;
 };
 
 // Map a decoder reason to the stored status.
 log::DecodeStatus statusOf(decode::Reason r);
 
-}  // namespace sg::io
+}  // namespace sg::engine

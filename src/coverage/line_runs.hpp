@@ -1,0 +1,93 @@
+// Line runs: which planned line the vessel is on (picked automatically with hysteresis, or chosen
+// by the operator), the signed cross-track deviation from it, and per-run statistics (start, end,
+// corridor coverage, altitude, worst deviation, alarm count).
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <vector>
+
+#include "coverage/coverage_raster.hpp"
+#include "coverage/survey_plan.hpp"
+
+namespace sg::coverage {
+
+struct LineTrackerOptions {
+    double line_spacing_m = 10.0;     // planned spacing; the corridor is line +- spacing/2 (m, > 0)
+    double max_offset_m = 0.0;        // farthest cross-track offset still "on" a line; 0: spacing
+    double hysteresis_m = 0.0;        // a nearer line must be this much nearer to take over;
+                                      // 0: spacing / 4
+    double max_angle_deg = 30.0;      // travel within this angle of the line axis (either way)
+    double end_margin_m = 0.0;        // along-track tolerance beyond the line ends (m)
+};
+
+struct LineRun {
+    int id = 0;                  // run id (0, 1, 2, ...), stored in raster cells
+    int line = -1;               // index into the plan's lines
+    bool reversed = false;       // flown end -> start
+    bool open = true;
+    std::int64_t start_t_ns = 0, end_t_ns = 0;
+    Point start_pos, end_pos;
+    std::int64_t samples = 0;
+    double altitude_sum_m = 0.0;
+    std::int64_t altitude_samples = 0;
+    std::int64_t altitude_missing = 0;
+    double worst_altitude_m = 0.0;      // highest sensor altitude seen (m)
+    double worst_deviation_m = 0.0;     // signed deviation of largest magnitude (m, starboard +)
+    int alarms = 0;
+    double corridor_covered_pct = 0.0;  // of the line +- spacing/2 corridor, at the last refresh
+    double meanAltitude_m() const {
+        return altitude_samples > 0 ? altitude_sum_m / static_cast<double>(altitude_samples) : 0.0;
+    }
+};
+
+class LineTracker {
+public:
+    LineTracker(std::vector<PlanLine> lines, const LineTrackerOptions& options);
+
+    // Feeds one position (the array reference or sensor 0) with its direction of travel (unit
+    // vector) and sensor altitude above the seabed (nullopt when missing). Returns the active run
+    // id, or kRunNone when on no line.
+    int update(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
+               std::optional<double> altitude_m);
+
+    // Operator choice: force line `index` (it stays active whatever the position, a new run
+    // starting when the direction reverses); automatic() returns to automatic selection.
+    void choose(int index);
+    void automatic();
+    bool isAutomatic() const { return m_forced < 0; }
+
+    // Counts an alarm against run `run` (ignored for kRunNone or an unknown run).
+    void addAlarm(int run);
+    // Closes the open run (end of survey).
+    void closeRun(std::int64_t t_ns);
+    // Recomputes corridor coverage of every run (or one) from the raster.
+    void refreshCoverage(const CoverageRaster& raster);
+
+    int activeLine() const { return m_active_line; }
+    int activeRun() const { return m_open_run; }
+    const std::vector<LineRun>& runs() const { return m_runs; }
+    const std::vector<PlanLine>& lines() const { return m_lines; }
+
+    // Signed cross-track deviation of `pos` from line `index`, starboard positive for a vessel
+    // travelling along (dir_e, dir_n) (m).
+    double crossTrack(int index, Point pos, double dir_e, double dir_n) const;
+    // Along-track position of `pos` on line `index` from its start (m).
+    double alongTrack(int index, Point pos) const;
+
+private:
+    bool directionMatches(int index, double dir_e, double dir_n, bool& reversed) const;
+    void startRun(int line, bool reversed, std::int64_t t_ns, Point pos);
+
+    std::vector<PlanLine> m_lines;
+    LineTrackerOptions m_opt;
+    std::vector<LineRun> m_runs;
+    int m_active_line = -1;
+    int m_open_run = kRunNone;
+    int m_forced = -1;
+};
+
+// Fraction (0..100 %) of the cells of the corridor line +- half_width_m whose margin >= 1.
+double corridorCoveragePercent(const CoverageRaster& raster, const PlanLine& line, double half_width_m);
+
+}  // namespace sg::coverage

@@ -1,0 +1,82 @@
+// The coverage module's per-survey state and the swath-edge probe; see survey_coverage.hpp.
+#include "coverage/survey_coverage.hpp"
+
+#include <cmath>
+
+namespace sg::coverage {
+
+namespace {
+
+Point originFor(const MultiPolygon& area) {
+    if (area.empty()) return {};
+    const Box b = bounds(area);
+    return {std::floor(b.min_e / 100.0) * 100.0, std::floor(b.min_n / 100.0) * 100.0};
+}
+
+LineTrackerOptions trackerOptions(const SurveyPlan& plan) {
+    LineTrackerOptions o;
+    o.line_spacing_m = plan.line_spacing_m > 0.0 ? plan.line_spacing_m : 10.0;
+    return o;
+}
+
+}  // namespace
+
+EdgeProbe probeEdge(const CoverageRaster& raster, const SwathSample& s, bool starboard, double search_m) {
+    EdgeProbe out;
+    if (!s.valid) return out;
+    const Point edge = starboard ? SwathPainter::starboardEdge(s) : SwathPainter::portEdge(s);
+    const double ne = starboard ? s.dir_n : -s.dir_n;
+    const double nn = starboard ? -s.dir_e : s.dir_e;
+    const double step = 0.5 * raster.cellSize();
+    for (double d = step; d <= search_m + step; d += step) {
+        const auto c = raster.cellAt({edge.e_m + ne * d, edge.n_m + nn * d});
+        if (c.covered() && c.run != s.run) {
+            out.found = true;
+            out.gap_m = std::max(0.0, d - step);
+            out.run = c.run;
+            return out;
+        }
+    }
+    return out;
+}
+
+SurveyCoverage::SurveyCoverage(SurveyPlan plan, const CoverageOptions& coverage, const GapOptions& gaps)
+    : m_plan(std::move(plan)), m_gap_options(gaps), m_raster(coverage.cell_size_m, originFor(m_plan.area)),
+      m_painter(m_raster, coverage.max_sample_step_m), m_tracker(m_plan.lines, trackerOptions(m_plan)) {}
+
+SurveyCoverage SurveyCoverage::fromConfig(const config::Section& root, const LonLatToGrid& to_grid) {
+    SurveyPlan plan = loadPlan(root.table("plan"), to_grid);
+    const auto cov_sec = root.optionalTable("coverage");
+    const CoverageOptions cov = cov_sec ? loadCoverageOptions(*cov_sec) : CoverageOptions{};
+    const double heading = plan.surveyHeadingDeg();
+    const auto gaps_sec = root.optionalTable("gaps");
+    GapOptions gaps;
+    gaps.survey_heading_deg = heading;
+    if (gaps_sec) gaps = loadGapOptions(*gaps_sec, heading);
+    return SurveyCoverage(std::move(plan), cov, gaps);
+}
+
+int SurveyCoverage::updatePosition(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
+                                   std::optional<double> altitude_m) {
+    return m_tracker.update(t_ns, pos, dir_e, dir_n, altitude_m);
+}
+
+GapReport SurveyCoverage::gaps() {
+    m_painter.flush();
+    m_tracker.refreshCoverage(m_raster);
+    return findGaps(m_raster, m_plan.area, m_gap_options);
+}
+
+SurveyCoverage::Infill SurveyCoverage::infill(const GapReport& report, const InfillOptions& options) const {
+    Infill out;
+    out.plan = planInfill(report, options);
+    out.after = flyInfill(m_raster, m_plan.area, out.plan, m_gap_options).after;
+    return out;
+}
+
+std::uint64_t SurveyCoverage::contentHash() {
+    m_painter.flush();
+    return m_raster.contentHash();
+}
+
+}  // namespace sg::coverage

@@ -1,0 +1,78 @@
+// SurveyCoverage: the coverage module's state for one survey, in one place for the engine, the
+// replay and gaps subcommands and the live checks: the plan, the raster, the swath painter, the
+// line tracker and the gap/infill options. No threads: the caller feeds it in time order.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+
+#include "common/config_section.hpp"
+#include "coverage/coverage_config.hpp"
+#include "coverage/coverage_raster.hpp"
+#include "coverage/gaps.hpp"
+#include "coverage/infill.hpp"
+#include "coverage/line_runs.hpp"
+#include "coverage/survey_plan.hpp"
+#include "coverage/swath_painter.hpp"
+
+namespace sg::coverage {
+
+// Outcome of probing beyond one swath edge for the neighbouring coverage (the "forming gap"
+// check): found == false when nothing covered lies within the search distance (for example the
+// first line of a block); gap_m = distance from the edge to the first covered cell of another
+// run (about 0 when the swaths meet or overlap).
+struct EdgeProbe {
+    bool found = false;
+    double gap_m = 0.0;
+    int run = kRunNone;  // run that covers the neighbouring cell
+};
+
+// Probes outward from the port (starboard == false) or starboard edge of `s`, in half-cell steps,
+// up to search_m beyond the edge (m, > 0). Cells of run s.run are ignored.
+EdgeProbe probeEdge(const CoverageRaster& raster, const SwathSample& s, bool starboard, double search_m);
+
+class SurveyCoverage {
+public:
+    // The raster origin is the south-west corner of the area, rounded down to 100 m.
+    SurveyCoverage(SurveyPlan plan, const CoverageOptions& coverage, const GapOptions& gaps);
+    // Reads [plan], [coverage] and [gaps] from the root table of the survey config.
+    static SurveyCoverage fromConfig(const config::Section& root, const LonLatToGrid& to_grid);
+
+    // Line tracking from the reference position (array centre or sensor 0): returns the active
+    // run id (kRunNone when on no planned line). Call once per epoch, before addSample.
+    int updatePosition(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
+                       std::optional<double> altitude_m);
+    // Paints one sensor's swath sample (its `run` should be the id updatePosition returned).
+    void addSample(const SwathSample& s) { m_painter.add(s); }
+    // Paints pending stretches (before reading the raster directly).
+    void flush() { m_painter.flush(); }
+    // Breaks every sensor chain (replay seek).
+    void breakChains() { m_painter.reset(); }
+
+    const SurveyPlan& plan() const { return m_plan; }
+    const CoverageRaster& raster() const { return m_raster; }
+    LineTracker& lines() { return m_tracker; }
+    const LineTracker& lines() const { return m_tracker; }
+    const SwathPainter::Counters& painterCounters() const { return m_painter.counters(); }
+    const GapOptions& gapOptions() const { return m_gap_options; }
+
+    // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage.
+    GapReport gaps();
+    // Plans infill over `report` and proves it by flying it over a copy of the raster.
+    struct Infill {
+        InfillPlan plan;
+        GapReport after;  // gaps left after flying the plan (none when the plan is complete)
+    };
+    Infill infill(const GapReport& report, const InfillOptions& options) const;
+    // Stable hash of the raster (flushes first): equal for a live session and its replay.
+    std::uint64_t contentHash();
+
+private:
+    SurveyPlan m_plan;
+    GapOptions m_gap_options;
+    CoverageRaster m_raster;
+    SwathPainter m_painter;
+    LineTracker m_tracker;
+};
+
+}  // namespace sg::coverage
