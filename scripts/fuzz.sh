@@ -3,7 +3,8 @@
 # Usage: scripts/fuzz.sh TARGET [SECONDS] [extra libFuzzer flags...]
 #   TARGET: nmea | field_map | fieldmap_config (or the full name fuzz_nmea, ...)
 # The growing corpus lives in build-fuzz/corpus/TARGET (seeded from fuzz/corpus/TARGET); a crash
-# is written to build-fuzz/artifacts/ and the script exits non-zero.
+# is written to build-fuzz/artifacts/ and the script exits non-zero. One input running longer than
+# SG_FUZZ_TIMEOUT seconds (default 20; generous because CI machines are shared) is a finding too.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 if [[ $# -lt 1 ]]; then
@@ -27,6 +28,6 @@ dict=()
 [[ -f fuzz/${name}.dict ]] && dict=(-dict="fuzz/${name}.dict")
 seeds=()
 [[ -d fuzz/corpus/${name} ]] && seeds=("fuzz/corpus/${name}")
-exec "build-fuzz/fuzz/fuzz_${name}" -max_total_time="$secs" -max_len=2048 -timeout=5 \
+exec "build-fuzz/fuzz/fuzz_${name}" -max_total_time="$secs" -max_len=2048 -timeout="${SG_FUZZ_TIMEOUT:-20}" \
   -print_final_stats=1 -artifact_prefix="build-fuzz/artifacts/${name}-" "${dict[@]}" "$@" \
   "$work" "${seeds[@]}"
