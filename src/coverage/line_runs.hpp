@@ -72,6 +72,12 @@ public:
     // Signed cross-track deviation of `pos` from line `index`, starboard positive for a vessel
     // travelling along (dir_e, dir_n) (m).
     double crossTrack(int index, Point pos, double dir_e, double dir_n) const;
+    // Cross-track deviation from the active line (nullopt when no line is active): the value the
+    // live deviation check compares with its limits.
+    std::optional<double> activeCrossTrack(Point pos, double dir_e, double dir_n) const {
+        if (m_active_line < 0) return std::nullopt;
+        return crossTrack(m_active_line, pos, dir_e, dir_n);
+    }
     // Along-track position of `pos` on line `index` from its start (m).
     double alongTrack(int index, Point pos) const;
 

@@ -32,8 +32,10 @@ TEST(LineRuns, PicksNearestMatchingLineWithHysteresis) {
     // Crossing the lines at right angles matches no line.
     EXPECT_EQ(t.update(0, {10, 50}, 1.0, 0.0, 3.0), kRunNone);
     // Northbound 2 m east of B -> run 0 on B.
+    EXPECT_FALSE(t.activeCrossTrack({22, 60}, 0.0, 1.0).has_value());
     EXPECT_EQ(t.update(1, {22, 60}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
+    EXPECT_DOUBLE_EQ(t.activeCrossTrack({22, 60}, 0.0, 1.0).value(), 2.0);
     // Drifting east to 11 m (9 m from C): C is nearer, but not by more than 5 m -> stay on B.
     EXPECT_EQ(t.update(2, {31, 70}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
