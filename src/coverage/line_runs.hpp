@@ -61,8 +61,10 @@ public:
     void addAlarm(int run);
     // Closes the open run (end of survey).
     void closeRun(std::int64_t t_ns);
-    // Recomputes corridor coverage of every run (or one) from the raster.
+    // Recomputes corridor coverage of every run from the raster (flush the painter first).
     void refreshCoverage(const CoverageRaster& raster);
+    // The same for one run (e.g. when it closes, or once a second for the open run).
+    void refreshRun(const CoverageRaster& raster, int run);
 
     int activeLine() const { return m_active_line; }
     int activeRun() const { return m_open_run; }

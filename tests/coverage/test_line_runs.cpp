@@ -109,6 +109,9 @@ TEST(LineRuns, RunStatisticsAndCorridorCoverage) {
     // Line A's corridor (E -10..10) is only touched by B's swath edge at E 10 and by the
     // excursion to E 6..10: a few percent at most.
     EXPECT_LT(corridorCoveragePercent(raster, t.lines()[0], 10.0), 2.0);
+    EXPECT_GT(corridorCoveragePercent(raster, t.lines()[0], 10.0), 0.5);
+    // Line C's corridor (E 30..50) is never touched.
+    EXPECT_DOUBLE_EQ(corridorCoveragePercent(raster, t.lines()[2], 10.0), 0.0);
 }
 
 }  // namespace
