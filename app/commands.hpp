@@ -8,5 +8,10 @@ namespace sg::app {
 
 // Each function adds one subcommand (with its options and callback) to `app`.
 // Add a line here and a call in main.cpp when adding a command.
+void addRecordCommand(CLI::App& app);  // cmd_record.cpp
+void addImportCommand(CLI::App& app);  // cmd_import.cpp
+void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
+
+void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
 
 }  // namespace sg::app

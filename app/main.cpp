@@ -10,6 +10,11 @@ int main(int argc, char** argv) {
     CLI::App app{"swathguard: live magnetometer survey coverage, checks, gaps and infill"};
     app.set_version_flag("--version", "swathguard 0.1.0");
     app.require_subcommand(1);
+    sg::app::addRecordCommand(app);
+    sg::app::addImportCommand(app);
+    sg::app::addSwathCommand(app);
+
+    sg::app::addInspectCommand(app);
 
     try {
         app.parse(argc, argv);

@@ -12,6 +12,7 @@ pkgs=(
   mesa-utils xvfb xauth x11-apps imagemagick
   socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev
   clang libclang-rt-14-dev
+  gpsd-clients
 )
 missing=()
 for p in "${pkgs[@]}"; do

@@ -21,6 +21,9 @@ constexpr double kDipoleScale = kMu0Over4Pi * kTeslaToNanoTesla;
 constexpr double kMaxPeakFactor = 2.0;
 
 double wrapTwoPi(double a) {
+    if (a >= 0.0 && a < kTwoPi) return a;  // the usual cases, without fmod
+    if (a < 0.0 && a >= -kTwoPi) return a + kTwoPi;
+    if (a >= kTwoPi && a < 2.0 * kTwoPi) return a - kTwoPi;
     a = std::fmod(a, kTwoPi);
     return a < 0 ? a + kTwoPi : a;
 }
@@ -95,54 +98,100 @@ double inducedPeak(const PassGeometry& g) {
 
 // min over unit moment directions m of max over the pass of |m . a(s)|: the orientation that
 // hides the target best on this pass. The pass is sampled densely (the sampled maximum can only
-// be lower than the true one, which errs on the safe side); the direction is searched on a
-// Fibonacci hemisphere and refined by a shrinking pattern search.
+// be lower than the true one, which errs on the safe side). Search: the best few of a Fibonacci
+// hemisphere, each refined by a shrinking 8-direction pattern search, then polished exactly:
+// {m : |m . a_i| <= 1} is a polytope and min over |m| = 1 of max |m . a_i| is 1 / (distance of
+// its farthest vertex), a vertex being where three constraints are active.
 double worstPeak(const PassGeometry& g) {
     constexpr int kPass = 121;
     std::array<Vec3, kPass> a{};
     for (int i = 0; i < kPass; ++i) {
-        a[static_cast<std::size_t>(i)] = g.sensitivity(-kAlphaMax + 2.0 * kAlphaMax * i / (kPass - 1));
+        a[static_cast<std::size_t>(i)] =
+            g.sensitivity(-kAlphaMax + 2.0 * kAlphaMax * i / (kPass - 1));
     }
     auto peak = [&](Vec3 m) {
         double v = 0.0;
         for (const Vec3& ai : a) v = std::max(v, std::fabs(dot(m, ai)));
         return v;
     };
-    constexpr int kStarts = 300;
+    auto unit = [](Vec3 v) { return (1.0 / norm(v)) * v; };
+    constexpr int kStarts = 160;
+    constexpr int kKeep = 3;
     constexpr double kGolden = 2.399963229728653;  // pi (3 - sqrt 5)
-    Vec3 best{};
-    double best_v = 1e300;
+    std::array<std::pair<double, Vec3>, kKeep> seeds;
+    seeds.fill({1e300, Vec3{}});
     for (int i = 0; i < kStarts; ++i) {
         const double z = 1.0 - (i + 0.5) / kStarts;  // upper hemisphere: m and -m are alike
         const double rr = std::sqrt(1.0 - z * z);
         const double th = kGolden * i;
         const Vec3 m{rr * std::cos(th), rr * std::sin(th), z};
         const double v = peak(m);
+        if (v < seeds.back().first) {
+            seeds.back() = {v, m};
+            std::sort(seeds.begin(), seeds.end(),
+                      [](const auto& x, const auto& y) { return x.first < y.first; });
+        }
+    }
+    double best_v = 1e300;
+    Vec3 best{};
+    for (auto [v, m] : seeds) {
+        double step = 0.1;
+        while (step > 2e-3) {
+            Vec3 t1 = std::fabs(m.z) < 0.9 ? Vec3{-m.y, m.x, 0.0} : Vec3{0.0, -m.z, m.y};
+            t1 = unit(t1);
+            const Vec3 t2{m.y * t1.z - m.z * t1.y, m.z * t1.x - m.x * t1.z,
+                          m.x * t1.y - m.y * t1.x};
+            bool improved = false;
+            for (int k = 0; k < 8; ++k) {
+                const double ang = kPi / 4.0 * k;
+                const Vec3 cand = unit(m + step * (std::cos(ang) * t1 + std::sin(ang) * t2));
+                const double cv = peak(cand);
+                if (cv < v) {
+                    v = cv;
+                    m = cand;
+                    improved = true;
+                }
+            }
+            if (!improved) step *= 0.5;
+        }
         if (v < best_v) {
             best_v = v;
             best = m;
         }
     }
-    double step = 0.1;
-    while (step > 1e-5) {
-        bool improved = false;
-        // Two tangent directions at `best`.
-        Vec3 t1 = std::fabs(best.z) < 0.9 ? Vec3{-best.y, best.x, 0.0} : Vec3{0.0, -best.z, best.y};
-        t1 = (1.0 / norm(t1)) * t1;
-        const Vec3 t2{best.y * t1.z - best.z * t1.y, best.z * t1.x - best.x * t1.z,
-                      best.x * t1.y - best.y * t1.x};
-        const std::array<Vec3, 4> dirs{t1, -1.0 * t1, t2, -1.0 * t2};
-        for (const Vec3& d : dirs) {
-            Vec3 m = best + step * d;
-            m = (1.0 / norm(m)) * m;
-            const double v = peak(m);
-            if (v < best_v) {
-                best_v = v;
-                best = m;
-                improved = true;
+    // Vertex polish on the constraints nearly active at `best`.
+    std::array<int, kPass> order{};
+    for (int i = 0; i < kPass; ++i) order[static_cast<std::size_t>(i)] = i;
+    std::partial_sort(order.begin(), order.begin() + 8, order.end(), [&](int x, int y) {
+        return std::fabs(dot(best, a[static_cast<std::size_t>(x)])) >
+               std::fabs(dot(best, a[static_cast<std::size_t>(y)]));
+    });
+    auto signedRow = [&](int i) {
+        const Vec3& ai = a[static_cast<std::size_t>(i)];
+        return dot(best, ai) >= 0.0 ? ai : -1.0 * ai;
+    };
+    for (int x = 0; x < 8; ++x) {
+        for (int y = x + 1; y < 8; ++y) {
+            for (int z = y + 1; z < 8; ++z) {
+                const Vec3 r1 = signedRow(order[static_cast<std::size_t>(x)]);
+                const Vec3 r2 = signedRow(order[static_cast<std::size_t>(y)]);
+                const Vec3 r3 = signedRow(order[static_cast<std::size_t>(z)]);
+                // Solve [r1; r2; r3] m = (1, 1, 1) by Cramer's rule.
+                const Vec3 c23{r2.y * r3.z - r2.z * r3.y, r2.z * r3.x - r2.x * r3.z,
+                               r2.x * r3.y - r2.y * r3.x};
+                const double det = dot(r1, c23);
+                if (std::fabs(det) < 1e-12) continue;
+                const Vec3 c31{r3.y * r1.z - r3.z * r1.y, r3.z * r1.x - r3.x * r1.z,
+                               r3.x * r1.y - r3.y * r1.x};
+                const Vec3 c12{r1.y * r2.z - r1.z * r2.y, r1.z * r2.x - r1.x * r2.z,
+                               r1.x * r2.y - r1.y * r2.x};
+                const Vec3 m = (1.0 / det) * (c23 + c31 + c12);
+                const double len = norm(m);
+                if (!(len > 0.0)) continue;
+                const double v = peak((1.0 / len) * m);  // feasibility: evaluate on all samples
+                best_v = std::min(best_v, v);
             }
         }
-        if (!improved) step *= 0.5;
     }
     return best_v;
 }
@@ -161,13 +210,24 @@ double peakFactorDirect(Orientation orientation, double inclination_rad, double 
 PeakTable::PeakTable(Orientation orientation, double inclination_rad)
     : m_orientation(orientation), m_inclination_rad(inclination_rad) {
     m_g.resize(static_cast<std::size_t>((kDeprSteps + 1) * kHeadingSteps));
+    // East-west mirror symmetry (the field lies in the magnetic meridian plane): a target to
+    // starboard of heading psi is seen exactly as one to port of heading -psi, i.e. to starboard
+    // of heading pi - psi. Compute psi in [-90, 90] degrees and copy the rest.
+    static_assert(kHeadingSteps % 4 == 0);
+    const int quarter = kHeadingSteps / 4;
     for (int j = 0; j < kHeadingSteps; ++j) {
+        if (j > quarter && j < 3 * quarter) continue;
         const double heading = kTwoPi * j / kHeadingSteps;
         for (int i = 0; i <= kDeprSteps; ++i) {
             const double depr = kHalfPi * i / kDeprSteps;
             m_g[static_cast<std::size_t>(j * (kDeprSteps + 1) + i)] =
                 peakFactorDirect(orientation, inclination_rad, depr, heading);
         }
+    }
+    for (int j = quarter + 1; j < 3 * quarter; ++j) {
+        const int mirror = (2 * quarter - j + kHeadingSteps) % kHeadingSteps;
+        std::copy_n(&m_g[static_cast<std::size_t>(mirror * (kDeprSteps + 1))], kDeprSteps + 1,
+                    &m_g[static_cast<std::size_t>(j * (kDeprSteps + 1))]);
     }
     m_width2.resize(static_cast<std::size_t>((kHeightSteps + 1) * kHeadingSteps));
     for (int j = 0; j < kHeadingSteps; ++j) {
@@ -198,15 +258,21 @@ double PeakTable::peakFactor(double depression_rad, double heading_mag_rad, bool
 // rho^3 >= 1), squared. When even the track centre is not detectable, a negative value
 // g(centre)^(2/3) - h^2 is stored instead, so interpolation crosses zero where the swath closes.
 double PeakTable::halfWidthSquaredFromG(double h, int heading_index) const {
-    const double heading = kTwoPi * heading_index / kHeadingSteps;
+    // The heading sits on a grid column: interpolate in depression only.
+    const double* column = &m_g[static_cast<std::size_t>(heading_index * (kDeprSteps + 1))];
+    auto gAt = [&](double depr) {
+        const double dp = std::clamp(depr, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
+        const int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
+        const double w = dp - i0;
+        return (1 - w) * column[i0] + w * column[i0 + 1];
+    };
     auto detectable = [&](double d) {
         const double rho2 = h * h + d * d;
         if (rho2 <= 1e-12) return true;
-        const double g = peakFactor(std::atan2(h, d), heading, true);
-        return g >= rho2 * std::sqrt(rho2);
+        return gAt(std::atan2(h, d)) >= rho2 * std::sqrt(rho2);
     };
     if (!detectable(0.0)) {
-        const double g0 = peakFactor(kHalfPi, heading, true);
+        const double g0 = column[kDeprSteps];
         return std::min(std::cbrt(g0 * g0) - h * h, 0.0);
     }
     const double d_max = std::sqrt(std::max(0.0, std::cbrt(kMaxPeakFactor * kMaxPeakFactor)));
@@ -447,24 +513,24 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
         };
         if (model == "mass_rule") {
             c.model = ModelKind::MassRule;
-            c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
             reject({"moment_Am2", "radius_m", "susceptibility", "orientation"},
                    "no such key for model \"mass_rule\" (it uses mass_kg)");
+            c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
         } else {
             c.orientation = t.choice("orientation", {"induced", "worst"}, "worst") == "induced"
                                 ? Orientation::Induced
                                 : Orientation::Worst;
             if (model == "dipole") {
                 c.model = ModelKind::Dipole;
-                c.moment_Am2 = t.number("moment_Am2", 1e-6, 1e9);
                 reject({"mass_kg", "radius_m", "susceptibility"},
                        "no such key for model \"dipole\" (it uses moment_Am2)");
+                c.moment_Am2 = t.number("moment_Am2", 1e-6, 1e9);
             } else {
                 c.model = ModelKind::Sphere;
-                c.radius_m = t.number("radius_m", 1e-3, 100.0);
-                c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
                 reject({"mass_kg", "moment_Am2"},
                        "no such key for model \"sphere\" (it uses radius_m and susceptibility)");
+                c.radius_m = t.number("radius_m", 1e-3, 100.0);
+                c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
             }
         }
         cfg.targets.push_back(std::move(c));

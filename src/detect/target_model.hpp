@@ -27,7 +27,7 @@ class Section;
 namespace sg::detect {
 
 // Mass-rule constant C (nT m^3 / kg) such that one short ton (907.18474 kg) gives 1 nT at 100 ft
-// (30.48 m): C = 30.48^3 / 907.18474 = 31.2137 nT m^3/kg (common practice).
+// (30.48 m): C = 30.48^3 / 907.18474 = 31.214 nT m^3/kg (common practice).
 inline constexpr double kShortTon_kg = 907.18474;
 inline constexpr double kHundredFeet_m = 30.48;
 inline constexpr double kMassRuleC_nTm3_per_kg =

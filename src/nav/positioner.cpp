@@ -24,6 +24,9 @@ double wrapPi(double a) {
     return a - kPi;
 }
 double wrapTwoPi(double a) {
+    if (a >= 0.0 && a < 2.0 * kPi) return a;  // the usual case, without fmod
+    if (a < 0.0 && a >= -2.0 * kPi) return a + 2.0 * kPi;
+    if (a >= 2.0 * kPi && a < 4.0 * kPi) return a - 2.0 * kPi;
     a = std::fmod(a, 2.0 * kPi);
     return a < 0 ? a + 2.0 * kPi : a;
 }
@@ -144,6 +147,11 @@ void Positioner::addFixProjected(std::int64_t t_ns, double e, double n, int qual
 
     std::uint32_t flags = 0;
     const auto heading = vesselHeadingGrid(t_ns, convergence_rad, flags);
+    // With the tow point straight below the antenna no heading is needed for the offset.
+    if (m_cfg.vessel.tow_point_m[0] == m_cfg.vessel.antenna_m[0] &&
+        m_cfg.vessel.tow_point_m[1] == m_cfg.vessel.antenna_m[1]) {
+        flags &= ~static_cast<std::uint32_t>(kNoHeading);
+    }
     double te = e;
     double tn = n;
     if (heading) {
@@ -213,10 +221,26 @@ Positioner::PathPos Positioner::pointAtLength(double s) const {
         return {last.e, last.n, static_cast<double>(last.t_ns), last.heading_grid,
                 last.convergence, last.flags};
     }
-    auto hi = std::lower_bound(m_path.begin(), m_path.end(), s,
-                               [](const PathPoint& p, double v) { return p.s < v; });
-    const PathPoint& b = *hi;
-    const PathPoint& a = *std::prev(hi);
+    // Queries move slowly along the path: try around the previous answer before searching.
+    std::size_t h = m_length_hint;
+    auto brackets = [&](std::size_t i) {
+        return i >= 1 && i < m_path.size() && m_path[i - 1].s < s && m_path[i].s >= s;
+    };
+    if (!brackets(h)) {
+        if (brackets(h + 1)) {
+            h += 1;
+        } else if (h >= 1 && brackets(h - 1)) {
+            h -= 1;
+        } else {
+            h = static_cast<std::size_t>(
+                std::lower_bound(m_path.begin(), m_path.end(), s,
+                                 [](const PathPoint& p, double v) { return p.s < v; }) -
+                m_path.begin());
+        }
+    }
+    m_length_hint = h;
+    const PathPoint& b = m_path[h];
+    const PathPoint& a = m_path[h - 1];
     const double w = (s - a.s) / (b.s - a.s);
     return {a.e + w * (b.e - a.e), a.n + w * (b.n - a.n),
             static_cast<double>(a.t_ns) + w * static_cast<double>(b.t_ns - a.t_ns),
@@ -243,6 +267,8 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
     if (m_path.empty()) {
         pose.flags |= kNoFix | kNoAltitude;
         pose.easting_m = pose.northing_m = kNaN;
+        pose.heading_grid_rad = pose.heading_true_rad = kNaN;
+        pose.layback_m = pose.cable_out_m = pose.sensor_depth_m = pose.altitude_m = kNaN;
         return pose;
     }
     // Tow point at time t: interpolated on the path, or extrapolated (flagged) past the last fix.
@@ -267,10 +293,24 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
         pose.flags |= kBeforeHistory;
         s_tow = m_path.front().s;
     } else {
-        auto hi = std::upper_bound(m_path.begin(), m_path.end(), t_ns,
-                                   [](std::int64_t t, const PathPoint& p) { return t < p.t_ns; });
-        const PathPoint& b = *hi;
-        const PathPoint& a = *std::prev(hi);
+        std::size_t h = m_time_hint;
+        auto brackets = [&](std::size_t i) {
+            return i >= 1 && i < m_path.size() && m_path[i - 1].t_ns <= t_ns &&
+                   m_path[i].t_ns > t_ns;
+        };
+        if (!brackets(h)) {
+            if (brackets(h + 1)) {
+                h += 1;
+            } else {
+                h = static_cast<std::size_t>(
+                    std::upper_bound(m_path.begin(), m_path.end(), t_ns,
+                                     [](std::int64_t t, const PathPoint& p) { return t < p.t_ns; }) -
+                    m_path.begin());
+            }
+        }
+        m_time_hint = h;
+        const PathPoint& b = m_path[h];
+        const PathPoint& a = m_path[h - 1];
         const double w =
             static_cast<double>(t_ns - a.t_ns) / static_cast<double>(b.t_ns - a.t_ns);
         s_tow = a.s + w * (b.s - a.s);
@@ -321,7 +361,7 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
         if (s_fish < m_path.front().s) pose.flags |= kLaybackBeyondHistory;
         fish = pointAtLength(s_fish);
     }
-    pose.flags |= fish.flags & kNoHeading;
+    pose.flags |= fish.flags & (kNoHeading | kHeadingFromCmg);
 
     // Altitude: altimeter, else water depth where the fish is (sounded when the vessel passed
     // there) minus sensor depth.
@@ -346,6 +386,11 @@ void Positioner::placeSensor(const SensorOffset& o, const SensorPose& ref, doubl
                              SensorPose& out) const {
     out = ref;
     const double s = s_fish + o.along_m;
+    // Sensors with the same along-track offset share the path point and its direction.
+    if (m_place_cache.valid && m_place_cache.s == s) {
+        applyCross(o, m_place_cache.p, m_place_cache.dir, m_place_cache.no_heading, out);
+        return;
+    }
     PathPos p;
     if (s > m_path.back().s) {
         // Ahead of the last fix (extrapolation): straight on along the last direction.
@@ -360,8 +405,18 @@ void Positioner::placeSensor(const SensorOffset& o, const SensorPose& ref, doubl
     } else {
         p = pointAtLength(s);
     }
-    const double fallback = std::isfinite(p.heading_grid) ? p.heading_grid : 0.0;
-    const double dir = directionAtLength(std::min(s, m_path.back().s), fallback);
+    double dir = directionAtLength(std::min(s, m_path.back().s), p.heading_grid);
+    // Without a direction from the path (vessel stopped) and without a heading, the sensor's
+    // cross/along offsets cannot be oriented.
+    const bool no_heading = !std::isfinite(dir);
+    if (no_heading) dir = 0.0;
+    m_place_cache = {true, s, p, dir, no_heading};
+    applyCross(o, p, dir, no_heading, out);
+}
+
+void Positioner::applyCross(const SensorOffset& o, const PathPos& p, double dir, bool no_heading,
+                            SensorPose& out) {
+    if (no_heading) out.flags |= kNoHeading;
     out.easting_m = p.e + o.cross_m * std::cos(dir);
     out.northing_m = p.n - o.cross_m * std::sin(dir);
     out.heading_grid_rad = wrapTwoPi(dir);
@@ -374,6 +429,7 @@ SensorPose Positioner::poseAt(std::int64_t t_ns, int sensor_index) const {
     t_ns -= millis(m_cfg.tow.mag_latency_ms);
     double s_fish = 0.0;
     PathPos fish{};
+    m_place_cache.valid = false;
     SensorPose ref = fishReference(t_ns, s_fish, fish);
     if (it == m_cfg.sensors.end()) {
         ref.flags |= kUnknownSensor;
@@ -389,6 +445,7 @@ void Positioner::posesAt(std::int64_t t_ns, std::vector<SensorPose>& out) const 
     t_ns -= millis(m_cfg.tow.mag_latency_ms);
     double s_fish = 0.0;
     PathPos fish{};
+    m_place_cache.valid = false;
     const SensorPose ref = fishReference(t_ns, s_fish, fish);
     out.resize(m_cfg.sensors.size());
     for (std::size_t i = 0; i < m_cfg.sensors.size(); ++i) {

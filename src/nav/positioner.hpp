@@ -37,6 +37,8 @@ enum PoseFlag : std::uint32_t {
     kFixedSensorDepth = 1u << 19,     // sensor depth from the configuration
 };
 inline constexpr std::uint32_t kPoseProblemMask = 0xFFFFu;
+inline constexpr std::uint32_t kAltitudeProblemMask = kNoAltitude;
+inline constexpr std::uint32_t kPositionProblemMask = kPoseProblemMask & ~kAltitudeProblemMask;
 
 enum class AltitudeSource { None, Altimeter, WaterDepthMinusSensorDepth };
 
@@ -51,7 +53,9 @@ struct SensorPose {
     double altitude_m = 0.0;        // sensor above the seabed; meaningful only with a source
     AltitudeSource altitude_source = AltitudeSource::None;
     std::uint32_t flags = 0;
-    bool ok() const { return (flags & kPoseProblemMask) == 0; }
+    bool ok() const { return (flags & kPoseProblemMask) == 0; }                // all usable
+    bool positionOk() const { return (flags & kPositionProblemMask) == 0; }    // position only
+    bool altitudeOk() const { return (flags & kAltitudeProblemMask) == 0; }
 };
 
 // A value series with linear interpolation and an age limit. Times must not go backwards
@@ -135,6 +139,8 @@ private:
     SensorPose fishReference(std::int64_t t_ns, double& s_fish, PathPos& fish) const;
     void placeSensor(const SensorOffset& o, const SensorPose& ref, double s_fish,
                      SensorPose& out) const;
+    static void applyCross(const SensorOffset& o, const PathPos& p, double dir, bool no_heading,
+                           SensorPose& out);
 
     NavConfig m_cfg;
     const SurveyCrs* m_crs;
@@ -145,6 +151,18 @@ private:
     TimedSeries m_depth;
     TimedSeries m_altitude;
     TimedSeries m_water_depth;
+    // Last placed path point within one query (queries are const but not thread-safe: one
+    // Positioner per thread, as everything in the core).
+    struct PlaceCache {
+        bool valid = false;
+        double s = 0.0;
+        PathPos p{};
+        double dir = 0.0;
+        bool no_heading = false;
+    };
+    mutable PlaceCache m_place_cache;
+    mutable std::size_t m_length_hint = 0;  // last path index found by length
+    mutable std::size_t m_time_hint = 0;    // last path index found by time
     std::int64_t m_rejected_fixes = 0;
     double m_last_heading_rad = 0.0;
     bool m_have_heading = false;

@@ -1,0 +1,63 @@
+// `import`: builds a survey log from one capture file per instrument, as if it had been recorded
+// live. Lines are merged in order of INSTRUMENT time (NMEA time of day + date from RMC/ZDA via
+// decode::InstrumentClock; the field map's time field), each file keeping its own line order;
+// receive times are synthesised from instrument time (+ the input's latency_ms); every line then
+// goes through the same engine::LineDecoder as live lines, so decode statuses and rows are identical.
+// A capture whose clock is shifted against the reference capture by more than
+// [import] max_clock_disagreement_s is reported and not merged unless the caller accepts it.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "common/input_config.hpp"
+#include "common/received_line.hpp"
+#include "decode/field_map.hpp"
+
+namespace sg::io {
+
+struct CaptureFile {
+    std::string input;  // [[input]] name
+    std::string path;
+};
+
+struct CaptureSummary {
+    std::string input;
+    std::string path;
+    std::size_t lines = 0;
+    std::size_t timed_lines = 0;  // lines that carried an instrument time
+    TimeNs first_ns = 0, last_ns = 0;  // instrument time span (UTC ns)
+    double shift_s = 0.0;          // clock shift against the reference capture (0 for it)
+    bool disagrees = false;        // |shift_s| > max_clock_disagreement_s
+};
+
+struct MergedCaptures {
+    std::vector<ReceivedLine> lines;  // in merged order, receive times synthesised
+    std::vector<CaptureSummary> captures;
+    std::vector<std::string> problems;  // one message per disagreeing capture
+};
+
+// Reads and merges the captures. Throws std::runtime_error for an unreadable file, an unknown
+// input name, a capture without any instrument time, or times of day with no date anywhere.
+MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
+                             const std::vector<decode::FieldMap>& maps,
+                             const std::vector<CaptureFile>& files,
+                             const config::ImportConfig& options);
+
+struct ImportResult {
+    MergedCaptures merged;
+    std::uint64_t raw_lines = 0;
+    bool written = false;  // false when a disagreement stopped the import
+};
+
+// mergeCaptures, then (if no capture disagrees, or `accept_disagreement`) writes `log_path`
+// (a new file) through the engine::LineDecoder; accepted disagreements are logged as events of kind
+// "clock_disagreement" (value = shift in s). `config_text` is stored in meta like `record` does.
+ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
+                            const std::vector<decode::FieldMap>& maps,
+                            const std::vector<CaptureFile>& files,
+                            const config::ImportConfig& options, const std::string& log_path,
+                            const std::string& config_text, const std::string& config_file,
+                            bool accept_disagreement);
+
+}  // namespace sg::io

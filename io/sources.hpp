@@ -1,0 +1,97 @@
+// The four transports behind the Source interface: serial port, UDP listener, TCP client and
+// file reader (read once, or follow a growing file). See source.hpp for the common behaviour.
+#pragma once
+
+#include <array>
+#include <string>
+
+#include <boost/asio/ip/tcp.hpp>
+#include <boost/asio/ip/udp.hpp>
+#include <boost/asio/serial_port.hpp>
+
+#include "io/source.hpp"
+
+namespace sg::io {
+
+// Serial port: device, baud, parity, data and stop bits, no flow control. Input already waiting
+// in the driver when the port opens is discarded (tcflush): its receive times would be wrong.
+class SerialSource final : public Source {
+public:
+    SerialSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
+    void start() override { reopen(); }
+    void stop() override;
+
+private:
+    void reopen() override;
+    void read();
+    config::SerialSettings m_settings;
+    asio::serial_port m_port;
+    std::array<char, 4096> m_buf{};
+    bool m_stopped = false;
+};
+
+// UDP listener bound to host:port. Each datagram is framed on its own: a datagram without a
+// final terminator still ends its last line (a datagram is a message boundary).
+class UdpSource final : public Source {
+public:
+    UdpSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
+    void start() override { reopen(); }
+    void stop() override;
+    // The bound port (useful when the config asks for port 0 in tests).
+    std::uint16_t localPort() const;
+
+private:
+    void reopen() override;
+    void read();
+    std::string m_host;
+    std::uint16_t m_port_number;
+    asio::ip::udp::socket m_socket;
+    asio::ip::udp::endpoint m_from;
+    std::array<char, 65536> m_buf{};
+    bool m_stopped = false;
+};
+
+// TCP client: connects to host:port, reconnects with exponential backoff (reconnect_min_s doubling
+// to reconnect_max_s) whenever the connection fails or the peer closes it.
+class TcpSource final : public Source {
+public:
+    TcpSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
+    void start() override { reopen(); }
+    void stop() override;
+
+private:
+    void reopen() override;
+    void read();
+    std::string m_host;
+    std::uint16_t m_port_number;
+    asio::ip::tcp::resolver m_resolver;
+    asio::ip::tcp::socket m_socket;
+    std::array<char, 4096> m_buf{};
+    bool m_stopped = false;
+};
+
+// File: read from the start to the end once (then Finished), or with follow = true keep polling
+// for new bytes every 50 ms. A followed file that is removed starts an outage and is reopened
+// with backoff; a file replaced (new inode) or truncated is read again from its start.
+class FileSource final : public Source {
+public:
+    FileSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
+    ~FileSource() override;
+    void start() override { reopen(); }
+    void stop() override;
+
+private:
+    void reopen() override;
+    void poll();
+    void closeFd();
+    std::string m_path;
+    bool m_follow;
+    int m_fd = -1;
+    std::uint64_t m_inode = 0;
+    std::uint64_t m_offset = 0;
+    asio::steady_timer m_poll;
+    std::array<char, 65536> m_buf{};
+    bool m_stopped = false;
+};
+
+}  // namespace sg::io

@@ -1,0 +1,125 @@
+// Parsing of [[input]], [log] and [import]; see input_config.hpp.
+#include "common/input_config.hpp"
+
+#include <charconv>
+#include <set>
+
+#include <fmt/format.h>
+
+namespace sg::config {
+namespace {
+
+// Splits "host:port" (the port after the last colon). Fails naming the key.
+void hostPort(const Section& s, std::string_view key, std::string& host, std::uint16_t& port) {
+    const std::string v = s.string(key);
+    const auto colon = v.rfind(':');
+    if (colon == std::string::npos || colon == 0 || colon + 1 >= v.size())
+        s.fail(key, "\"host:port\"");
+    int p = 0;
+    const char* b = v.data() + colon + 1;
+    const char* e = v.data() + v.size();
+    auto [ptr, ec] = std::from_chars(b, e, p);
+    if (ec != std::errc{} || ptr != e || p < 1 || p > 65535) s.fail(key, "\"host:port\" with port 1..65535");
+    host = v.substr(0, colon);
+    port = static_cast<std::uint16_t>(p);
+}
+
+}  // namespace
+
+const char* toString(InputKind k) { return k == InputKind::Nmea ? "nmea" : "fieldmap"; }
+
+const char* toString(Transport t) {
+    switch (t) {
+    case Transport::Serial: return "serial";
+    case Transport::Udp: return "udp";
+    case Transport::Tcp: return "tcp";
+    case Transport::File: return "file";
+    }
+    return "?";
+}
+
+std::vector<InputConfig> parseInputs(const Section& root) {
+    std::vector<InputConfig> out;
+    std::set<std::string> names;
+    for (const Section& s : root.tables("input")) {
+        s.allowOnly({"name", "kind", "fieldmap", "role", "transport", "device", "baud", "parity",
+                     "data_bits", "stop_bits", "listen", "connect", "reconnect_min_s",
+                     "reconnect_max_s", "path", "follow", "clock", "latency_ms"});
+        InputConfig c;
+        c.name = s.string("name");
+        if (c.name.empty()) s.fail("name", "a non-empty name");
+        if (!names.insert(c.name).second) s.fail("name", "a name no other [[input]] uses");
+        c.kind = s.choice("kind", {"nmea", "fieldmap"}) == "nmea" ? InputKind::Nmea
+                                                                 : InputKind::FieldMap;
+        if (c.kind == InputKind::FieldMap) {
+            c.fieldmap = s.string("fieldmap");
+            auto fm = root.optionalTable("fieldmap");
+            if (!fm || !fm->has(c.fieldmap))
+                s.fail("fieldmap", "the name of a [fieldmap.NAME] table");
+        } else if (s.has("fieldmap")) {
+            s.fail("fieldmap", "no fieldmap for kind \"nmea\"");
+        }
+        c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
+        const std::string tr = s.choice("transport", {"serial", "udp", "tcp", "file"});
+        // Keys of another transport are rejected too: they are almost always a mistake.
+        auto onlyFor = [&](std::initializer_list<std::string_view> keys, std::string_view t) {
+            for (auto k : keys)
+                if (s.has(k) && tr != t)
+                    s.fail(k, fmt::format("no '{}' for transport \"{}\"", k, tr));
+        };
+        onlyFor({"device", "baud", "parity", "data_bits", "stop_bits"}, "serial");
+        onlyFor({"listen"}, "udp");
+        onlyFor({"connect", "reconnect_min_s", "reconnect_max_s"}, "tcp");
+        onlyFor({"path", "follow"}, "file");
+        if (tr == "serial") {
+            c.transport = Transport::Serial;
+            c.serial.device = s.string("device");
+            c.serial.baud = static_cast<std::uint32_t>(s.integer("baud", 50, 4000000, 4800));
+            const auto p = s.choice("parity", {"none", "even", "odd"}, "none");
+            c.serial.parity = p == "none" ? Parity::None : p == "even" ? Parity::Even : Parity::Odd;
+            c.serial.data_bits = static_cast<std::uint8_t>(s.integer("data_bits", 5, 8, 8));
+            c.serial.stop_bits = static_cast<std::uint8_t>(s.integer("stop_bits", 1, 2, 1));
+        } else if (tr == "udp") {
+            c.transport = Transport::Udp;
+            hostPort(s, "listen", c.listen_host, c.listen_port);
+        } else if (tr == "tcp") {
+            c.transport = Transport::Tcp;
+            hostPort(s, "connect", c.connect_host, c.connect_port);
+            c.reconnect_min_s = s.number("reconnect_min_s", 0.01, 3600.0, 0.5);
+            c.reconnect_max_s = s.number("reconnect_max_s", 0.01, 3600.0, 10.0);
+            if (c.reconnect_max_s < c.reconnect_min_s)
+                s.fail("reconnect_max_s", "a value >= reconnect_min_s");
+        } else {
+            c.transport = Transport::File;
+            c.path = s.string("path");
+            c.follow = s.boolean("follow", false);
+        }
+        c.clock = s.choice("clock", {"receive", "instrument"}, "receive") == "receive"
+                      ? ClockSource::Receive
+                      : ClockSource::Instrument;
+        c.latency_ms = s.number("latency_ms", 0.0, 60000.0, 0.0);
+        out.push_back(std::move(c));
+    }
+    return out;
+}
+
+LogConfig parseLog(const Section& root) {
+    LogConfig c;
+    auto s = root.optionalTable("log");
+    if (!s) return c;
+    s->allowOnly({"path", "commit_interval_ms"});
+    c.path = s->string("path", "");
+    c.commit_interval_ms = s->integer("commit_interval_ms", 10, 1000, 500);
+    return c;
+}
+
+ImportConfig parseImport(const Section& root) {
+    ImportConfig c;
+    auto s = root.optionalTable("import");
+    if (!s) return c;
+    s->allowOnly({"max_clock_disagreement_s"});
+    c.max_clock_disagreement_s = s->number("max_clock_disagreement_s", 0.0, 86400.0, 2.0);
+    return c;
+}
+
+}  // namespace sg::config

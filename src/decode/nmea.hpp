@@ -1,0 +1,158 @@
+// NMEA 0183 sentence decoder: GGA, RMC, VTG, HDT, ZDA, GST, GNS, GLL, DPT, DBT from any talker.
+// Other well-formed sentences (proprietary $P..., GSV, AIS '!' ...) are UnknownSentence: counted,
+// not errors. Never throws; no heap allocation per field (fields are string_views of the line).
+// Units: SI inside (m, m/s, s) except angles, which stay in degrees (this is an edge of the core).
+// Which sentences exist, their fields and the reason codes: docs/formats.md.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <variant>
+
+#include "decode/reason.hpp"
+
+namespace sg::decode {
+
+// Longest NMEA line accepted. The standard caps a sentence at 82 characters including "$" and
+// CR LF, but receivers with extra decimals (e.g. GGA with 8-decimal minutes and 3-decimal height)
+// exceed it, so we allow more; anything longer than this is certainly not one sentence.
+inline constexpr std::size_t kMaxNmeaBytes = 256;
+// Most fields any sentence may have (GNS/GSA/GSV fit easily); more is TooLong.
+inline constexpr std::size_t kMaxNmeaFields = 40;
+
+// UTC calendar date. RMC's two-digit year maps to 1980..2079 (common practice for GNSS receivers).
+struct Date {
+    int year = 1970;  // full year, e.g. 2026
+    int month = 1;    // 1..12
+    int day = 1;      // 1..31 (validated against the month, leap years included)
+    friend bool operator==(const Date&, const Date&) = default;
+};
+
+// GGA: fix data. With no fix (quality 0) receivers leave position and height empty.
+struct Gga {
+    std::optional<double> tod_s;        // UTC time of day, 0 <= t < 86401 s
+    std::optional<double> lat_deg;      // -90..90, north positive
+    std::optional<double> lon_deg;      // -180..180, east positive
+    int quality = 0;                    // 0 none, 1 GPS, 2 DGPS, 3 PPS, 4 RTK fixed, 5 RTK float,
+                                        // 6 dead reckoning, 7 manual, 8 simulator
+    std::optional<int> satellites;      // satellites used, 0..99
+    std::optional<double> hdop;         // horizontal dilution of precision, >= 0
+    std::optional<double> alt_m;        // antenna height above mean sea level (geoid), m
+    std::optional<double> geoid_sep_m;  // geoid above WGS84 ellipsoid, m
+    std::optional<double> dgps_age_s;   // age of differential corrections, s
+    std::optional<int> dgps_station;    // differential reference station id, 0..1023
+};
+using GgaFix = Gga;
+
+// RMC: recommended minimum. `valid` is status 'A'; with 'V' fields are often empty.
+struct Rmc {
+    std::optional<double> tod_s;
+    bool valid = false;
+    std::optional<double> lat_deg;
+    std::optional<double> lon_deg;
+    std::optional<double> sog_mps;      // speed over ground, m/s (the sentence gives knots)
+    std::optional<double> cog_deg;      // course over ground, true, 0..360
+    std::optional<Date> date;
+    std::optional<double> mag_var_deg;  // magnetic variation, east positive
+    char mode = 0;                      // NMEA 2.3 mode: A autonomous, D differential, E, M, S, N
+                                        // (0 when absent)
+};
+
+// VTG: course and speed over ground.
+struct Vtg {
+    std::optional<double> cog_true_deg;
+    std::optional<double> cog_mag_deg;
+    std::optional<double> sog_mps;  // from the km/h field when present, else knots
+    char mode = 0;
+};
+
+// HDT: true heading (gyro, GNSS compass).
+struct Hdt {
+    double heading_deg = 0;  // 0..360
+};
+
+// ZDA: UTC time and date, local zone.
+struct Zda {
+    double tod_s = 0;
+    Date date;
+    std::optional<int> zone_hours;    // -13..13
+    std::optional<int> zone_minutes;  // 0..59
+};
+
+// GST: pseudorange error statistics (1-sigma, metres).
+struct Gst {
+    std::optional<double> tod_s;
+    std::optional<double> rms_m;
+    std::optional<double> sigma_major_m;
+    std::optional<double> sigma_minor_m;
+    std::optional<double> orient_deg;  // of the semi-major axis, true
+    std::optional<double> sigma_lat_m;
+    std::optional<double> sigma_lon_m;
+    std::optional<double> sigma_alt_m;
+};
+
+// GNS: multi-constellation fix data.
+struct Gns {
+    std::optional<double> tod_s;
+    std::optional<double> lat_deg;
+    std::optional<double> lon_deg;
+    std::string mode;  // one letter per constellation (N, A, D, P, R, F, E, M, S), e.g. "AAN"
+    std::optional<int> satellites;
+    std::optional<double> hdop;
+    std::optional<double> alt_m;
+    std::optional<double> geoid_sep_m;
+    std::optional<double> dgps_age_s;
+    std::optional<int> dgps_station;
+    char nav_status = 0;  // NMEA 4.1: S safe, C caution, U unsafe, V not valid (0 when absent)
+};
+
+// GLL: position.
+struct Gll {
+    std::optional<double> lat_deg;
+    std::optional<double> lon_deg;
+    std::optional<double> tod_s;
+    bool valid = false;  // status 'A'
+    char mode = 0;
+};
+
+// DPT: depth below the transducer, plus the transducer offset.
+struct Dpt {
+    double depth_m = 0;                // below transducer, >= 0
+    std::optional<double> offset_m;    // + to water line, - to keel
+    std::optional<double> max_range_m;
+};
+
+// DBT: depth below transducer in feet, metres and fathoms; depth_m from the first one present
+// (metres preferred).
+struct Dbt {
+    double depth_m = 0;
+};
+
+// True for a real calendar date (leap years included), years 1970..2199.
+bool isValidDate(const Date& d);
+// Days since 1970-01-01 of a valid date (proleptic Gregorian, std::chrono civil calendar).
+std::int64_t daysFromCivil(const Date& d);
+
+using NmeaData = std::variant<std::monostate, Gga, Rmc, Vtg, Hdt, Zda, Gst, Gns, Gll, Dpt, Dbt>;
+
+struct NmeaSentence {
+    std::string talker;  // "GP", "GN", "II", ...; "P" for proprietary; empty if not parsed
+    std::string type;    // "GGA", ...; for proprietary the rest of the address ("GRME")
+    NmeaData data;       // monostate unless reason is Ok or NoChecksum (and the type is known)
+    Reason reason = Reason::NotNmea;
+    std::string detail;  // which field and why, e.g. "field 2 (latitude): minutes >= 60"
+};
+
+// Decodes one line (terminator already removed; a trailing CR/LF is tolerated).
+// Never throws. Any input, including binary bytes, gives a Reason.
+NmeaSentence decodeNmea(std::string_view line);
+
+// XOR of all bytes of `bytes` (the NMEA checksum when given the text between '$' and '*').
+std::uint8_t xorChecksum(std::string_view bytes);
+
+// "$" + body + "*HH" (two upper-case hex digits). `body` is e.g. "GPHDT,123.4,T".
+std::string nmeaWithChecksum(std::string_view body);
+
+}  // namespace sg::decode

@@ -1,0 +1,60 @@
+// Survey configuration: gathers the sections each module parses; see survey_config.hpp.
+#include "engine/survey_config.hpp"
+
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+namespace sg::engine {
+
+namespace {
+
+void parseSurveyInfo(const config::Section& root, SurveyConfig& cfg) {
+    if (auto s = root.optionalTable("survey")) {
+        s->allowOnly({"name", "epsg", "coverage_class"});
+        cfg.survey.name = s->string("name", "");
+        if (auto epsg = s->optionalInteger("epsg", 1024, 999999))
+            cfg.survey.epsg = static_cast<int>(*epsg);
+        cfg.survey.coverage_class = s->string("coverage_class", "");
+    }
+    if (!cfg.survey.coverage_class.empty()) {
+        bool found = false;
+        for (const auto& t : cfg.detection.targets) found = found || t.name == cfg.survey.coverage_class;
+        if (!found) root.table("survey").fail("coverage_class", "the name of a [[target]]");
+    }
+}
+
+}  // namespace
+
+SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
+                               const std::string& dir) {
+    SurveyConfig cfg;
+    cfg.file = name;
+    cfg.text = text;
+    cfg.dir = dir;
+    cfg.table = std::make_shared<const toml::table>(config::parseText(text, name));
+    const config::Section root = cfg.root();
+    root.allowOnly({"survey", "log", "import", "input", "fieldmap", "vessel", "tow", "sensor",
+                    "geomagnetic", "detection", "target", "plan", "coverage", "gaps", "infill",
+                    "checks"});
+    cfg.fieldmaps = decode::parseFieldMaps(root);
+    cfg.inputs = config::parseInputs(root);
+    cfg.log = config::parseLog(root);
+    cfg.import = config::parseImport(root);
+    cfg.nav = nav::parseVesselConfig(root);
+    cfg.detection = detect::parseDetectionConfig(root);
+    parseSurveyInfo(root, cfg);
+    (void)checks::CheckSet::fromConfig(root);  // validates [checks] now, not mid-survey
+    return cfg;
+}
+
+SurveyConfig loadSurveyConfig(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw config::ConfigError(path + ": cannot open the survey config file");
+    std::ostringstream text;
+    text << in.rdbuf();
+    const auto dir = std::filesystem::absolute(path).parent_path().string();
+    return parseSurveyConfig(text.str(), path, dir);
+}
+
+}  // namespace sg::engine

@@ -1,0 +1,53 @@
+// The whole survey configuration: one TOML file per survey, every section parsed by the module
+// that owns it and gathered here. The file's text is kept so `record` can store it in the log and
+// `replay`/`gaps`/`report` can rebuild the same survey from the log alone.
+// Every key is documented in docs/config.md.
+#pragma once
+
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "checks/check_set.hpp"
+#include "common/config_section.hpp"
+#include "common/input_config.hpp"
+#include "decode/field_map.hpp"
+#include "detect/target_model.hpp"
+#include "nav/nav_config.hpp"
+
+namespace sg::engine {
+
+struct SurveyInfo {
+    std::string name;            // free text, shown on the screen and in reports
+    std::optional<int> epsg;     // projected survey CRS; empty = UTM zone of the first fix
+    std::string coverage_class;  // target class whose margin the coverage raster keeps
+};
+
+struct SurveyConfig {
+    std::string file;  // where it was read from ("log:<path>" when taken from a log)
+    std::string text;  // the TOML text itself
+    std::string dir;   // folder of the file: relative paths in the config start here
+
+    SurveyInfo survey;
+    std::vector<config::InputConfig> inputs;
+    std::vector<decode::FieldMap> fieldmaps;
+    config::LogConfig log;
+    config::ImportConfig import;
+    nav::NavConfig nav;
+    detect::DetectionConfig detection;
+
+    // The parsed TOML, for sections read by later stages ([checks] with limits derived from the
+    // detection model, [plan] files resolved against `dir`).
+    std::shared_ptr<const toml::table> table;
+    config::Section root() const { return config::Section(*table, file); }
+};
+
+// Reads and validates a config file. Throws config::ConfigError naming file, key and line.
+SurveyConfig loadSurveyConfig(const std::string& path);
+// The same from text (e.g. the copy stored in a log); `name` stands for the file in messages and
+// `dir` is where relative paths start.
+SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
+                               const std::string& dir);
+
+}  // namespace sg::engine

@@ -1,0 +1,509 @@
+// Navigation, detection, coverage, line runs and checks per sample; see survey_engine.hpp.
+#include "engine/survey_engine.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+namespace sg::engine {
+
+namespace {
+
+constexpr double kPi = 3.14159265358979323846;
+constexpr double kDegToRad = kPi / 180.0;
+
+// Gap in one sensor's samples after which the fourth difference restarts (its differences across
+// a dropout would measure the dropout, not the noise).
+constexpr TimeNs kNoiseResetGapNs = kNsPerSecond;
+// Differences needed before the noise estimate is trusted (or the window, if smaller).
+constexpr int kNoiseWarmupDifferences = 16;
+// Silence checks are evaluated at most this many whole seconds per advance (a seek or a jump of
+// the clock does not loop for hours).
+constexpr int kMaxSilenceSteps = 120;
+
+const toml::table& emptyTable() {
+    static const toml::table t;
+    return t;
+}
+
+config::Section sectionOr(const config::Section& root, std::string_view key) {
+    if (auto s = root.optionalTable(key)) return *s;
+    return config::Section(emptyTable(), root.file(), std::string(key));
+}
+
+}  // namespace
+
+SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_t()> next_event_id)
+    : m_cfg(config), m_next_event_id(std::move(next_event_id)) {
+    const auto root = m_cfg.root();
+    m_models = detect::makeModels(m_cfg.detection);
+    // The coverage class: the one named in [survey], else the hardest to detect (smallest
+    // detection range at the minimum threshold, heading north).
+    m_coverage_model = 0;
+    double best_range = std::numeric_limits<double>::infinity();
+    for (std::size_t i = 0; i < m_models.size(); ++i) {
+        const auto& cls = m_models[i].targetClass();
+        if (!m_cfg.survey.coverage_class.empty()) {
+            if (cls.name == m_cfg.survey.coverage_class) m_coverage_model = i;
+            continue;
+        }
+        const double range = m_models[i].detectionRange_m(0.0, m_cfg.detection.detection.min_anomaly_nT) -
+                             cls.burial_m;
+        if (range < best_range) {
+            best_range = range;
+            m_coverage_model = i;
+        }
+    }
+
+    for (const auto& s : m_cfg.nav.sensors) {
+        m_sensor_slot[s.index] = m_sensors.size();
+        SensorState st;
+        st.index = s.index;
+        m_sensors.push_back(st);
+        m_noise.emplace_back(m_cfg.detection.detection.noise_window);
+    }
+
+    m_cov_opts = coverage::loadCoverageOptions(sectionOr(root, "coverage"));
+    m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m);
+
+    // Limits derived from the detection model: the altitude at which adjacent lines stop meeting.
+    std::map<std::string, checks::Limits> derived;
+    const auto plan_sec = root.optionalTable("plan");
+    const double spacing = plan_sec ? plan_sec->number("line_spacing_m", 0.1, 10000.0, 0.0) : 0.0;
+    if (spacing > 0.0) {
+        const checks::CheckSet defaults;
+        const double noise_warn = defaults.check("noise").limits().warn;
+        const double threshold = detect::detectionThreshold_nT(
+            m_cfg.detection.detection.min_anomaly_nT, m_cfg.detection.detection.k, noise_warn);
+        double half_extent = 0.0;
+        for (const auto& s : m_cfg.nav.sensors) half_extent = std::max(half_extent, std::abs(s.cross_m));
+        const auto& model = m_models[m_coverage_model];
+        const double burial = model.targetClass().burial_m;
+        // Worst heading and side: the swath edge must reach half the spacing beyond the array.
+        const auto reaches = [&](double altitude_m) {
+            for (int h = 0; h < 24; ++h) {
+                const auto hw = model.halfWidths(altitude_m + burial, h * 15.0 * kDegToRad, threshold);
+                if (std::min(hw.port_m, hw.starboard_m) + half_extent < spacing / 2.0) return false;
+            }
+            return true;
+        };
+        if (reaches(0.05)) {
+            double lo = 0.05, hi = 500.0;
+            for (int i = 0; i < 50; ++i) {
+                const double mid = 0.5 * (lo + hi);
+                (reaches(mid) ? lo : hi) = mid;
+            }
+            m_max_overlap_altitude = lo;
+            checks::Limits l = checks::CheckSet().check("altitude").limits();
+            l.alarm = lo;
+            l.warn = std::max(0.0, lo - 0.5);
+            derived["altitude"] = l;
+        } else {
+            m_max_overlap_altitude = 0.0;
+        }
+    }
+    m_checks = checks::CheckSet::fromConfig(root, derived);
+
+    if (m_cfg.survey.epsg) {
+        m_crs = std::make_unique<nav::SurveyCrs>(*m_cfg.survey.epsg);
+        m_positioner = std::make_unique<nav::Positioner>(m_cfg.nav, m_crs.get());
+        loadPlanAndLines();
+    }
+}
+
+SurveyEngine::~SurveyEngine() = default;
+
+void SurveyEngine::ensureCrs(double lon_deg, double lat_deg) {
+    if (m_crs) return;
+    m_crs = std::make_unique<nav::SurveyCrs>(nav::SurveyCrs::utmForLonLat(lon_deg, lat_deg));
+    m_positioner = std::make_unique<nav::Positioner>(m_cfg.nav, m_crs.get());
+    loadPlanAndLines();
+    if (!m_plan) {
+        const auto p = m_crs->forward(lon_deg, lat_deg);
+        m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m,
+                                            {std::floor(p.easting_m), std::floor(p.northing_m)});
+        m_painter = std::make_unique<coverage::SwathPainter>(m_raster, m_cov_opts.max_sample_step_m);
+    }
+}
+
+void SurveyEngine::loadPlanAndLines() {
+    const auto root = m_cfg.root();
+    if (auto plan_sec = root.optionalTable("plan")) {
+        m_plan = std::make_unique<coverage::SurveyPlan>(
+            coverage::loadPlan(*plan_sec, coverage::toGridWith(*m_crs)));
+        const auto box = coverage::bounds(m_plan->area);
+        coverage::Point origin{std::floor(box.min_e), std::floor(box.min_n)};
+        if (box.empty()) origin = {};
+        m_raster = coverage::CoverageRaster(m_cov_opts.cell_size_m, origin);
+        if (!m_plan->lines.empty()) {
+            coverage::LineTrackerOptions opt;
+            opt.line_spacing_m = m_plan->line_spacing_m > 0 ? m_plan->line_spacing_m : 10.0;
+            m_tracker = std::make_unique<coverage::LineTracker>(m_plan->lines, opt);
+        }
+    }
+    m_painter = std::make_unique<coverage::SwathPainter>(m_raster, m_cov_opts.max_sample_step_m);
+}
+
+void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int quality) {
+    m_checks.update("fix_quality", t_ns, checks::fixQualityRank(quality));
+    if (quality <= 0) {
+        drainEpisodes();
+        return;
+    }
+    ensureCrs(lon_deg, lat_deg);
+    m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);
+    m_last_fix_ns = t_ns;
+    m_checks.update("gnss_silence", t_ns, 0.0);
+    drainEpisodes();
+}
+
+void SurveyEngine::onSpeed(TimeNs t_ns, double sog_mps) {
+    m_speed = sog_mps;
+    m_checks.update("speed_high", t_ns, sog_mps);
+    m_checks.update("speed_low", t_ns, sog_mps);
+    drainEpisodes();
+}
+
+void SurveyEngine::onHeading(TimeNs t_ns, double true_heading_deg) {
+    if (m_positioner) m_positioner->addHeading(t_ns, true_heading_deg);
+}
+
+void SurveyEngine::onWaterDepth(TimeNs t_ns, double depth_below_transducer_m,
+                                std::optional<double> offset_m) {
+    if (!m_positioner) return;
+    m_positioner->addWaterDepth(
+        t_ns, nav::waterDepthBelowSurface_m(depth_below_transducer_m, offset_m, m_cfg.nav.vessel));
+}
+
+void SurveyEngine::onPositionError(TimeNs t_ns, double horizontal_error_m) {
+    m_checks.update("position_error", t_ns, horizontal_error_m);
+    drainEpisodes();
+}
+
+void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m) {
+    if (m_positioner) m_positioner->addCableOut(t_ns, cable_out_m);
+}
+
+void SurveyEngine::onAltitude(TimeNs t_ns, double altitude_m) {
+    if (m_positioner) m_positioner->addAltitude(t_ns, altitude_m);
+}
+
+void SurveyEngine::onSensorDepth(TimeNs t_ns, double depth_m) {
+    if (m_positioner) m_positioner->addSensorDepth(t_ns, depth_m);
+}
+
+void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
+                               std::optional<double> quality, std::optional<double> depth_m,
+                               std::optional<double> altitude_m) {
+    const auto slot_it = m_sensor_slot.find(sensor);
+    if (slot_it == m_sensor_slot.end()) return;  // not a configured sensor: counted by decode
+    const std::size_t slot = slot_it->second;
+    if (m_positioner) {
+        // One fish carries the array: its depth and altitude come with every sensor's string.
+        if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
+        if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
+    }
+    SensorState& s = m_sensors[slot];
+    auto& noise = m_noise[slot];
+    if (!field_nT || (s.samples > 0 && t_ns - s.t_ns > kNoiseResetGapNs)) noise.reset();
+    if (field_nT) noise.add(*field_nT);
+    s.t_ns = t_ns;
+    s.field_nT = field_nT;
+    s.quality = quality;
+    ++s.samples;
+    if (field_nT) {
+        m_last_mag_ns = t_ns;
+        m_checks.update("mag_silence", t_ns, 0.0);
+    }
+    s.noise_nT = noise.sigma_nT();
+    processSample(s, t_ns);
+    if (slot == 0) updateChecks(t_ns);
+    drainEpisodes();
+}
+
+void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
+    const std::size_t slot = m_sensor_slot[s.index];
+    const auto& det = m_cfg.detection.detection;
+    s.threshold_nT = detect::detectionThreshold_nT(det.min_anomaly_nT, det.k, s.noise_nT);
+    bool valid = true;
+    if (!s.field_nT) {
+        valid = false;
+        ++m_invalid.no_field;
+    }
+    if (!m_positioner) {
+        s.pose = nav::SensorPose{};
+        s.pose.flags = nav::kNoFix;
+    } else {
+        s.pose = m_positioner->poseAt(t_ns, s.index);
+    }
+    if (!s.pose.ok()) {
+        valid = false;
+        ++m_invalid.pose;
+    }
+    if (s.pose.altitude_source == nav::AltitudeSource::None) {
+        valid = false;
+        ++m_invalid.no_altitude;
+    } else {
+        m_last_altitude_ns = t_ns;
+        m_checks.update("altitude_lost", t_ns, 0.0);
+    }
+    const int needed = std::min(kNoiseWarmupDifferences, m_noise[slot].window());
+    if (s.field_nT && m_noise[slot].differences() < needed) {
+        valid = false;
+        ++m_invalid.noise_warmup;
+    }
+    const auto& noise_limits = m_checks.check("noise").limits();
+    if (noise_limits.enabled && s.noise_nT > noise_limits.alarm) {
+        valid = false;
+        ++m_invalid.noisy;
+    }
+    const auto& q_limits = m_checks.check("signal_quality").limits();
+    if (q_limits.enabled && s.quality && *s.quality < q_limits.alarm) {
+        valid = false;
+        ++m_invalid.low_quality;
+    }
+
+    const auto& model = m_models[m_coverage_model];
+    s.half_widths = {};
+    s.centre_margin = 0.0;
+    if (s.pose.altitude_source != nav::AltitudeSource::None && s.pose.ok()) {
+        const double vertical = std::max(0.01, s.pose.altitude_m + model.targetClass().burial_m);
+        s.half_widths = model.halfWidths(vertical, s.pose.heading_true_rad, s.threshold_nT);
+        s.centre_margin = model.margin(vertical, 0.0, s.pose.heading_true_rad, s.threshold_nT);
+    }
+    s.valid = valid;
+    if (!valid) ++s.invalid_samples;
+
+    // The array reference (mean of the sensors) drives line runs and deviation, on sensor slot 0.
+    if (slot == 0 && m_positioner && s.pose.ok()) {
+        std::vector<nav::SensorPose> poses;
+        m_positioner->posesAt(t_ns, poses);
+        coverage::Point ref{0.0, 0.0};
+        int n = 0;
+        for (const auto& p : poses)
+            if (p.ok()) {
+                ref.e_m += p.easting_m;
+                ref.n_m += p.northing_m;
+                ++n;
+            }
+        if (n > 0) {
+            ref.e_m /= n;
+            ref.n_m /= n;
+            const double dir_e = std::sin(s.pose.heading_grid_rad);
+            const double dir_n = std::cos(s.pose.heading_grid_rad);
+            std::optional<double> alt;
+            if (s.pose.altitude_source != nav::AltitudeSource::None) alt = s.pose.altitude_m;
+            if (m_tracker) {
+                m_run_of_last_sample = m_tracker->update(t_ns, ref, dir_e, dir_n, alt);
+                const int line = m_tracker->activeLine();
+                if (line >= 0) m_deviation = m_tracker->crossTrack(line, ref, dir_e, dir_n);
+                else m_deviation.reset();
+            }
+            if (m_last_ref_pos) {
+                const double step = std::hypot(ref.e_m - m_last_ref_pos->e_m, ref.n_m - m_last_ref_pos->n_m);
+                m_checks.update("sample_spacing", t_ns, step);
+            }
+            m_last_ref_pos = ref;
+        }
+    } else if (slot == 0) {
+        m_last_ref_pos.reset();
+    }
+
+    if (m_painter) {
+        coverage::SwathSample sw;
+        sw.t_ns = t_ns;
+        sw.e_m = s.pose.easting_m;
+        sw.n_m = s.pose.northing_m;
+        sw.dir_e = std::sin(s.pose.heading_grid_rad);
+        sw.dir_n = std::cos(s.pose.heading_grid_rad);
+        sw.left_m = s.half_widths.port_m;
+        sw.right_m = s.half_widths.starboard_m;
+        sw.centre_margin = static_cast<float>(s.centre_margin);
+        sw.valid = valid && s.pose.ok();
+        sw.sensor = s.index;
+        sw.run = m_run_of_last_sample;
+        m_painter->add(sw);
+    }
+}
+
+std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
+    if (!outer.valid || !m_plan) return std::nullopt;
+    const double dir_e = std::sin(outer.pose.heading_grid_rad);
+    const double dir_n = std::cos(outer.pose.heading_grid_rad);
+    // Starboard of a direction (e, n) is (n, -e).
+    const double side_e = starboard ? dir_n : -dir_n;
+    const double side_n = starboard ? -dir_e : dir_e;
+    const double hw = starboard ? outer.half_widths.starboard_m : outer.half_widths.port_m;
+    const double cell = m_raster.cellSize();
+    const double reach = m_plan->line_spacing_m > 0 ? m_plan->line_spacing_m : 20.0;
+    const int steps = static_cast<int>(reach / cell) + 1;
+    for (int k = 1; k <= steps; ++k) {
+        const double d = k * cell;
+        const coverage::Point q{outer.pose.easting_m + side_e * (hw + d),
+                                outer.pose.northing_m + side_n * (hw + d)};
+        if (!coverage::contains(m_plan->area, q)) return d - cell;  // the area edge is the neighbour
+        const auto c = m_raster.cellAt(q);
+        if (c.covered() && c.run != m_run_of_last_sample) return d - cell;
+    }
+    return std::nullopt;  // no neighbouring coverage within one spacing: nothing to meet yet
+}
+
+void SurveyEngine::updateChecks(TimeNs t_ns) {
+    std::optional<double> alt, noise, quality;
+    const SensorState* port_most = nullptr;
+    const SensorState* stbd_most = nullptr;
+    for (std::size_t i = 0; i < m_sensors.size(); ++i) {
+        const auto& s = m_sensors[i];
+        if (s.samples == 0) continue;
+        if (s.pose.altitude_source != nav::AltitudeSource::None)
+            alt = std::max(alt.value_or(-1e9), s.pose.altitude_m);
+        const int needed = std::min(kNoiseWarmupDifferences, m_noise[i].window());
+        if (m_noise[i].differences() >= needed) noise = std::max(noise.value_or(0.0), s.noise_nT);
+        if (s.quality) quality = std::min(quality.value_or(1e9), *s.quality);
+        const double cross = m_cfg.nav.sensors[i].cross_m;
+        if (!port_most || cross < m_cfg.nav.sensors[m_sensor_slot[port_most->index]].cross_m) port_most = &s;
+        if (!stbd_most || cross > m_cfg.nav.sensors[m_sensor_slot[stbd_most->index]].cross_m) stbd_most = &s;
+    }
+    m_checks.update("altitude", t_ns, alt);
+    m_checks.update("noise", t_ns, noise);
+    m_checks.update("signal_quality", t_ns, quality);
+    m_checks.update("deviation", t_ns,
+                    m_deviation ? std::optional<double>(std::abs(*m_deviation)) : std::nullopt);
+    // Forming gap: only while on a planned line; off line it reads 0 so an episode can end.
+    double gap = 0.0;
+    if (m_tracker && m_tracker->activeRun() >= 0 && port_most && stbd_most) {
+        const auto p = probeFormingGap(*port_most, false);
+        const auto s = probeFormingGap(*stbd_most, true);
+        gap = std::max(p.value_or(0.0), s.value_or(0.0));
+    }
+    m_forming_gap = gap;
+    m_checks.update("forming_gap", t_ns, gap);
+}
+
+void SurveyEngine::advanceTo(TimeNs t_ns) {
+    if (t_ns <= m_clock_ns) return;
+    const auto evaluate = [&](TimeNs at) {
+        if (m_last_mag_ns) m_checks.update("mag_silence", at, toSeconds(at - *m_last_mag_ns));
+        if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
+        if (m_last_altitude_ns)
+            m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));
+    };
+    if (m_clock_ns == 0) {
+        m_clock_ns = t_ns;
+        evaluate(t_ns);
+        drainEpisodes();
+        return;
+    }
+    TimeNs b = (m_clock_ns / kNsPerSecond + 1) * kNsPerSecond;
+    if ((t_ns - b) / kNsPerSecond > kMaxSilenceSteps) b = (t_ns / kNsPerSecond - kMaxSilenceSteps) * kNsPerSecond;
+    for (; b <= t_ns; b += kNsPerSecond) evaluate(b);
+    m_clock_ns = t_ns;
+    drainEpisodes();
+}
+
+bool SurveyEngine::acknowledge(std::uint64_t episode_id, TimeNs t_ns) {
+    const bool ok = m_checks.acknowledge(episode_id, t_ns);
+    drainEpisodes();
+    return ok;
+}
+
+int SurveyEngine::acknowledgeAll(TimeNs t_ns) {
+    const int n = m_checks.acknowledgeAll(t_ns);
+    drainEpisodes();
+    return n;
+}
+
+void SurveyEngine::chooseLine(int index) {
+    if (!m_tracker) return;
+    if (index < 0) m_tracker->automatic();
+    else m_tracker->choose(index);
+}
+
+void SurveyEngine::drainEpisodes() {
+    for (auto& change : m_checks.drainChanges()) {
+        const auto& ep = change.episode;
+        using Kind = checks::EpisodeChange::Kind;
+        switch (change.kind) {
+        case Kind::kStarted: {
+            log::EventRow row;
+            row.id = m_next_event_id();
+            row.kind = "alarm." + ep.check;
+            row.start_utc_ns = ep.start_ns;
+            row.value = ep.peak_value;
+            row.detail = checks::levelName(ep.peak_level);
+            m_episode_event[ep.id] = row.id;
+            m_rows.events.push_back(std::move(row));
+            if (m_tracker) m_tracker->addAlarm(m_tracker->activeRun());
+            break;
+        }
+        case Kind::kEscalated: {
+            log::EventRow row;
+            row.id = m_next_event_id();
+            row.kind = "alarm_escalated." + ep.check;
+            row.start_utc_ns = ep.end_ns.value_or(m_clock_ns);
+            row.value = ep.peak_value;
+            row.detail = std::string(checks::levelName(ep.peak_level)) + " (alarm event " +
+                         std::to_string(m_episode_event[ep.id]) + ")";
+            m_rows.events.push_back(std::move(row));
+            break;
+        }
+        case Kind::kEnded:
+            m_rows.event_ends.push_back({m_episode_event[ep.id], *ep.end_ns, ep.peak_value});
+            break;
+        case Kind::kAcknowledged:
+            m_rows.event_acks.push_back({m_episode_event[ep.id], *ep.ack_ns});
+            break;
+        }
+    }
+}
+
+void SurveyEngine::takeRows(log::Batch& batch) {
+    for (auto& e : m_rows.events) batch.events.push_back(std::move(e));
+    for (auto& e : m_rows.event_ends) batch.event_ends.push_back(e);
+    for (auto& e : m_rows.event_acks) batch.event_acks.push_back(e);
+    m_rows.events.clear();
+    m_rows.event_ends.clear();
+    m_rows.event_acks.clear();
+}
+
+void SurveyEngine::flushCoverage() {
+    if (m_tracker) m_tracker->refreshCoverage(m_raster);
+}
+
+double SurveyEngine::plannedHalfWidth_m() const {
+    const checks::CheckSet defaults;
+    const auto& det = m_cfg.detection.detection;
+    const double threshold = detect::detectionThreshold_nT(det.min_anomaly_nT, det.k,
+                                                           m_checks.check("noise").limits().warn);
+    const auto& model = m_models[m_coverage_model];
+    const double altitude = m_plan && m_plan->planned_altitude_m > 0 ? m_plan->planned_altitude_m : 3.0;
+    double half_extent = 0.0;
+    for (const auto& s : m_cfg.nav.sensors) half_extent = std::max(half_extent, std::abs(s.cross_m));
+    const double heading = (m_plan ? m_plan->surveyHeadingDeg() : 0.0) * kDegToRad;
+    double worst = std::numeric_limits<double>::infinity();
+    for (double h : {heading, heading + kPi}) {
+        const auto hw = model.halfWidths(altitude + model.targetClass().burial_m, h, threshold);
+        worst = std::min({worst, hw.port_m, hw.starboard_m});
+    }
+    return worst + half_extent;
+}
+
+coverage::GapOptions SurveyEngine::gapOptions() const {
+    const double heading = m_plan ? m_plan->surveyHeadingDeg() : 0.0;
+    return coverage::loadGapOptions(sectionOr(m_cfg.root(), "gaps"), heading);
+}
+
+coverage::GapReport SurveyEngine::gapReport() {
+    flushCoverage();
+    if (!m_plan) return {};
+    return coverage::findGaps(m_raster, m_plan->area, gapOptions());
+}
+
+coverage::InfillPlan SurveyEngine::infillPlan(const coverage::GapReport& report) const {
+    const double heading = m_plan ? m_plan->surveyHeadingDeg() : 0.0;
+    const auto opts = coverage::loadInfillOptions(sectionOr(m_cfg.root(), "infill"), heading,
+                                                  std::max(0.1, plannedHalfWidth_m()));
+    return coverage::planInfill(report, opts);
+}
+
+}  // namespace sg::engine

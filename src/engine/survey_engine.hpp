@@ -1,0 +1,163 @@
+// The processing core after decoding: navigation, detection, coverage, line runs and live checks.
+// Fed typed, time-aligned values (UTC nanoseconds) by the Pipeline; holds the survey state that
+// the screen, the status line, `gaps` and the report read. Single-threaded, no I/O of its own.
+//
+// Per magnetometer sample: sensor pose (layback along the travelled path), altitude, fourth-
+// difference noise and threshold, detectable half-widths of the coverage target class, a swath
+// sample painted into the coverage raster, the line run, and the checks.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <map>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "checks/check_set.hpp"
+#include "coverage/coverage_config.hpp"
+#include "coverage/coverage_raster.hpp"
+#include "coverage/gaps.hpp"
+#include "coverage/infill.hpp"
+#include "coverage/line_runs.hpp"
+#include "coverage/survey_plan.hpp"
+#include "coverage/swath_painter.hpp"
+#include "detect/fourth_difference_noise.hpp"
+#include "detect/target_model.hpp"
+#include "engine/survey_config.hpp"
+#include "log/log_schema.hpp"
+#include "nav/positioner.hpp"
+#include "nav/survey_crs.hpp"
+
+namespace sg::engine {
+
+// What the engine knows of one sensor at its latest sample.
+struct SensorState {
+    int index = 0;
+    TimeNs t_ns = 0;
+    nav::SensorPose pose;
+    std::optional<double> field_nT;
+    std::optional<double> quality;
+    double noise_nT = 0.0;
+    double threshold_nT = 0.0;
+    detect::HalfWidths half_widths;  // of the coverage target class
+    double centre_margin = 0.0;
+    bool valid = false;              // painted coverage
+    std::uint64_t samples = 0;
+    std::uint64_t invalid_samples = 0;
+};
+
+// Why samples covered nothing, counted (a sample can have several reasons).
+struct InvalidCounts {
+    std::uint64_t no_field = 0;      // dropout or field missing
+    std::uint64_t pose = 0;          // no/stale fix, no heading, no cable, ...
+    std::uint64_t no_altitude = 0;
+    std::uint64_t noise_warmup = 0;  // noise window not filled yet after a (re)start
+    std::uint64_t noisy = 0;         // noise above the alarm limit
+    std::uint64_t low_quality = 0;   // signal quality below the alarm limit
+};
+
+class SurveyEngine {
+public:
+    // `next_event_id` hands out ids for the events table (LogWriter::nextEventId live, a counter
+    // in replay). Throws config::ConfigError / coverage::PlanError for a bad config or plan.
+    SurveyEngine(const SurveyConfig& config, std::function<std::int64_t()> next_event_id);
+    ~SurveyEngine();
+    SurveyEngine(const SurveyEngine&) = delete;
+    SurveyEngine& operator=(const SurveyEngine&) = delete;
+
+    // Inputs, each at its aligned time t_ns (UTC ns). Angles in degrees, lengths in metres.
+    void onFix(TimeNs t_ns, double lon_deg, double lat_deg, int quality);
+    void onSpeed(TimeNs t_ns, double sog_mps);
+    void onHeading(TimeNs t_ns, double true_heading_deg);
+    void onWaterDepth(TimeNs t_ns, double depth_below_transducer_m, std::optional<double> offset_m);
+    void onPositionError(TimeNs t_ns, double horizontal_error_m);
+    void onCableOut(TimeNs t_ns, double cable_out_m);
+    void onAltitude(TimeNs t_ns, double altitude_m);
+    void onSensorDepth(TimeNs t_ns, double depth_m);
+    void onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
+                     std::optional<double> quality, std::optional<double> depth_m,
+                     std::optional<double> altitude_m);
+    // Receive-clock time has reached t_ns: evaluates the silence checks at every whole second up
+    // to it (so live ticks and a replay of the same lines give the same alarm times).
+    void advanceTo(TimeNs t_ns);
+
+    // Operator actions (logged as events).
+    bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
+    int acknowledgeAll(TimeNs t_ns);
+    void chooseLine(int index);  // -1: automatic
+
+    // Rows for the log produced since the last call (alarm events, ends, acknowledgements).
+    void takeRows(log::Batch& batch);
+
+    // State.
+    const SurveyConfig& config() const { return m_cfg; }
+    bool hasCrs() const { return m_crs != nullptr; }
+    const nav::SurveyCrs* crs() const { return m_crs.get(); }
+    const coverage::SurveyPlan* plan() const { return m_plan.get(); }
+    const coverage::CoverageRaster& raster() const { return m_raster; }
+    // Paints pending swath stretches (call before reading the raster for gaps or a snapshot).
+    void flushCoverage();
+    const coverage::LineTracker* lines() const { return m_tracker.get(); }
+    const checks::CheckSet& checks() const { return m_checks; }
+    const std::vector<SensorState>& sensors() const { return m_sensors; }
+    const InvalidCounts& invalidCounts() const { return m_invalid; }
+    const detect::TargetModel& coverageModel() const { return m_models[m_coverage_model]; }
+    const std::vector<detect::TargetModel>& models() const { return m_models; }
+    std::optional<double> speed_mps() const { return m_speed; }
+    std::optional<double> deviation_m() const { return m_deviation; }
+    std::optional<double> formingGap_m() const { return m_forming_gap; }
+    TimeNs clock_ns() const { return m_clock_ns; }
+    // The altitude limit derived from the detection model (the highest altitude at which the
+    // swaths of adjacent lines still meet), or nullopt when there is no plan spacing.
+    std::optional<double> maxOverlapAltitude_m() const { return m_max_overlap_altitude; }
+    // Predicted detectable half-width of the coverage class at the planned altitude (m).
+    double plannedHalfWidth_m() const;
+
+    // Gaps in the area now, and the infill lines that close them.
+    coverage::GapReport gapReport();
+    coverage::InfillPlan infillPlan(const coverage::GapReport& report) const;
+    coverage::GapOptions gapOptions() const;
+
+private:
+    void ensureCrs(double lon_deg, double lat_deg);
+    void loadPlanAndLines();
+    void updateChecks(TimeNs t_ns);
+    void processSample(SensorState& s, TimeNs t_ns);
+    std::optional<double> probeFormingGap(const SensorState& outer, bool starboard) const;
+    void drainEpisodes();
+
+    SurveyConfig m_cfg;
+    std::function<std::int64_t()> m_next_event_id;
+    std::unique_ptr<nav::SurveyCrs> m_crs;
+    std::unique_ptr<nav::Positioner> m_positioner;
+    std::vector<detect::TargetModel> m_models;
+    std::size_t m_coverage_model = 0;
+    std::vector<detect::FourthDifferenceNoise> m_noise;
+    std::vector<SensorState> m_sensors;
+    std::map<int, std::size_t> m_sensor_slot;  // sensor index -> slot in m_sensors
+    coverage::CoverageOptions m_cov_opts;
+    coverage::CoverageRaster m_raster;
+    std::unique_ptr<coverage::SwathPainter> m_painter;
+    std::unique_ptr<coverage::SurveyPlan> m_plan;
+    std::unique_ptr<coverage::LineTracker> m_tracker;
+    checks::CheckSet m_checks;
+    InvalidCounts m_invalid;
+
+    std::optional<double> m_speed;
+    std::optional<double> m_deviation;
+    std::optional<double> m_forming_gap;
+    std::optional<double> m_max_overlap_altitude;
+    std::optional<coverage::Point> m_last_ref_pos;
+    TimeNs m_clock_ns = 0;           // receive clock, for silence
+    std::optional<TimeNs> m_last_fix_ns;
+    std::optional<TimeNs> m_last_mag_ns;
+    std::optional<TimeNs> m_last_altitude_ns;
+    int m_run_of_last_sample = coverage::kRunNone;
+
+    std::map<std::uint64_t, std::int64_t> m_episode_event;  // episode id -> events.id
+    log::Batch m_rows;
+};
+
+}  // namespace sg::engine

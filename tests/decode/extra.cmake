@@ -1,0 +1,2 @@
+# test_inspect.cpp runs the swathguard executable: build it with the tests.
+add_dependencies(${target} swathguard)
