@@ -67,9 +67,10 @@ std::string csvField(const std::string& s) {
 
 std::string gapsGeoJson(const GapReport& report, const GridToLonLat& to_lonlat) {
     json fc = {{"type", "FeatureCollection"}, {"features", json::array()}};
+    const std::vector<MultiPolygon> outlines = gapOutlines(report);
     for (std::size_t g = 0; g < report.gaps.size(); ++g) {
         const Gap& gap = report.gaps[g];
-        const MultiPolygon outline = gapOutline(report, static_cast<int>(g));
+        const MultiPolygon& outline = outlines[g];
         json polys = json::array();
         for (const auto& poly : outline) {
             json rings = json::array({ringJson(to_lonlat, poly.exterior)});

@@ -208,11 +208,10 @@ struct Edge {
 
 }  // namespace
 
-MultiPolygon gapOutline(const GapReport& report, int gap_index) {
-    std::map<std::int64_t, std::vector<Interval>> rows;
-    for (const auto& r : report.runs) {
-        if (r.gap == gap_index) rows[r.row].emplace_back(r.i0, r.i1);
-    }
+namespace {
+
+// Traces the outline of one gap from its rows of cell intervals (rows sorted, intervals sorted).
+MultiPolygon traceOutline(const std::map<std::int64_t, std::vector<Interval>>& rows, double cell, Point org) {
     static const std::vector<Interval> kEmpty;
     auto rowOf = [&](std::int64_t j) -> const std::vector<Interval>& {
         auto it = rows.find(j);
@@ -266,8 +265,6 @@ MultiPolygon gapOutline(const GapReport& report, int gap_index) {
         }
         rings.push_back(std::move(ring));
     }
-    const double cell = report.cell_size_m;
-    const Point org = report.origin;
     auto toRing = [&](const std::vector<std::pair<std::int64_t, std::int64_t>>& r) {
         Ring out;
         for (auto [x, y] : r) {
@@ -307,6 +304,25 @@ MultiPolygon gapOutline(const GapReport& report, int gap_index) {
         if (best < mp.size()) mp[best].holes.push_back(toRing(r));
     }
     return mp;
+}
+
+}  // namespace
+
+MultiPolygon gapOutline(const GapReport& report, int gap_index) {
+    std::map<std::int64_t, std::vector<Interval>> rows;
+    for (const auto& r : report.runs) {
+        if (r.gap == gap_index) rows[r.row].emplace_back(r.i0, r.i1);
+    }
+    return traceOutline(rows, report.cell_size_m, report.origin);
+}
+
+std::vector<MultiPolygon> gapOutlines(const GapReport& report) {
+    std::vector<std::map<std::int64_t, std::vector<Interval>>> rows(report.gaps.size());
+    for (const auto& r : report.runs) rows[static_cast<std::size_t>(r.gap)][r.row].emplace_back(r.i0, r.i1);
+    std::vector<MultiPolygon> out;
+    out.reserve(rows.size());
+    for (const auto& g : rows) out.push_back(traceOutline(g, report.cell_size_m, report.origin));
+    return out;
 }
 
 }  // namespace sg::coverage

@@ -62,5 +62,7 @@ GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const
 // holes clockwise; parts touching only at a corner become separate polygons (so each ring is
 // simple). Collinear vertices are removed.
 MultiPolygon gapOutline(const GapReport& report, int gap_index);
+// The outlines of all gaps, in report order (one pass over the runs).
+std::vector<MultiPolygon> gapOutlines(const GapReport& report);
 
 }  // namespace sg::coverage

@@ -67,7 +67,18 @@ InfillPlan planInfill(const GapReport& report, const InfillOptions& options) {
         planned[g] = (!report.gaps[g].small || options.include_small_gaps) ? 1 : 0;
         if (planned[g]) plan.planned_gap_ids.push_back(report.gaps[g].id);
     }
+    std::int64_t total_cells = 0;
+    for (const auto& r : report.runs) {
+        if (planned[static_cast<std::size_t>(r.gap)]) total_cells += r.i1 - r.i0;
+    }
+    if (total_cells > options.max_cells) {
+        throw std::runtime_error(fmt::format(
+            "infill: the gaps hold {:.3f} km^2 uncovered ({} cells, limit {}): this is an "
+            "unsurveyed block, not a gap; survey it with planned lines first",
+            static_cast<double>(total_cells) * cell * cell / 1e6, total_cells, options.max_cells));
+    }
     std::vector<CellUV> cells;
+    cells.reserve(static_cast<std::size_t>(total_cells));
     std::vector<GapSpan> spans(report.gaps.size());
     std::vector<std::int64_t> gap_cells(report.gaps.size(), 0);
     for (std::size_t g = 0; g < spans.size(); ++g) spans[g] = {static_cast<int>(g), 1e300, -1e300};

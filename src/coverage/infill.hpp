@@ -4,6 +4,7 @@
 // the raster with synthetic swath samples and find the gaps again.
 #pragma once
 
+#include <cstdint>
 #include <optional>
 #include <string>
 #include <vector>
@@ -22,6 +23,9 @@ struct InfillOptions {
     double run_out_m = 50.0;       // straight run past the last gap cell (m, >= 0)
     bool include_small_gaps = false;  // also plan for gaps flagged small
     std::string name_prefix = "INF";
+    // Refuse to plan over more uncovered cells than this (an unsurveyed block is not a gap: plan
+    // lines for it, not infill). 10 million cells = 2.5 km^2 at 0.5 m.
+    std::int64_t max_cells = 10'000'000;
 };
 
 // Reads [infill] run_in_m (0..10000, default 50), run_out_m (0..10000, default 50), heading_deg

@@ -132,6 +132,13 @@ void LineTracker::addAlarm(int run) {
     if (run >= 0 && run < static_cast<int>(m_runs.size())) ++m_runs[static_cast<std::size_t>(run)].alarms;
 }
 
+void LineTracker::refreshRun(const CoverageRaster& raster, int run) {
+    if (run < 0 || run >= static_cast<int>(m_runs.size())) return;
+    LineRun& r = m_runs[static_cast<std::size_t>(run)];
+    r.corridor_covered_pct = corridorCoveragePercent(raster, m_lines[static_cast<std::size_t>(r.line)],
+                                                     0.5 * m_opt.line_spacing_m);
+}
+
 void LineTracker::refreshCoverage(const CoverageRaster& raster) {
     for (auto& r : m_runs) {
         r.corridor_covered_pct = corridorCoveragePercent(
@@ -159,9 +166,21 @@ double corridorCoveragePercent(const CoverageRaster& raster, const PlanLine& lin
         for (std::size_t s = 0; s + 1 < xs.size(); s += 2) {
             const auto i0 = static_cast<std::int64_t>(std::ceil((xs[s] - org.e_m) / cell - 0.5));
             const auto i1 = static_cast<std::int64_t>(std::ceil((xs[s + 1] - org.e_m) / cell - 0.5));
-            for (std::int64_t i = i0; i < i1; ++i) {
-                ++total;
-                if (raster.code(i, j) >= kCoveredCode) ++covered;
+            total += std::max<std::int64_t>(0, i1 - i0);
+            // Walk the span tile by tile: an absent tile is uncovered without looking at cells.
+            const std::int32_t ty = static_cast<std::int32_t>(j >> kTileShift);
+            const int row_base = static_cast<int>((j & (kTileCells - 1)) << kTileShift);
+            for (std::int64_t i = i0; i < i1;) {
+                const std::int32_t tx = static_cast<std::int32_t>(i >> kTileShift);
+                const std::int64_t seg_end = std::min(i1, (static_cast<std::int64_t>(tx) + 1) << kTileShift);
+                if (const CoverageTile* t = raster.tile(tx, ty)) {
+                    for (std::int64_t k = i; k < seg_end; ++k) {
+                        if (t->margin[static_cast<std::size_t>(row_base + (k & (kTileCells - 1)))] >= kCoveredCode) {
+                            ++covered;
+                        }
+                    }
+                }
+                i = seg_end;
             }
         }
     }

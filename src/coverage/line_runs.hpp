@@ -61,8 +61,10 @@ public:
     void addAlarm(int run);
     // Closes the open run (end of survey).
     void closeRun(std::int64_t t_ns);
-    // Recomputes corridor coverage of every run (or one) from the raster.
+    // Recomputes corridor coverage of every run from the raster (flush the painter first).
     void refreshCoverage(const CoverageRaster& raster);
+    // The same for one run (e.g. when it closes, or once a second for the open run).
+    void refreshRun(const CoverageRaster& raster, int run);
 
     int activeLine() const { return m_active_line; }
     int activeRun() const { return m_open_run; }
@@ -72,6 +74,12 @@ public:
     // Signed cross-track deviation of `pos` from line `index`, starboard positive for a vessel
     // travelling along (dir_e, dir_n) (m).
     double crossTrack(int index, Point pos, double dir_e, double dir_n) const;
+    // Cross-track deviation from the active line (nullopt when no line is active): the value the
+    // live deviation check compares with its limits.
+    std::optional<double> activeCrossTrack(Point pos, double dir_e, double dir_n) const {
+        if (m_active_line < 0) return std::nullopt;
+        return crossTrack(m_active_line, pos, dir_e, dir_n);
+    }
     // Along-track position of `pos` on line `index` from its start (m).
     double alongTrack(int index, Point pos) const;
 

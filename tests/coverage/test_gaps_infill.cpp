@@ -4,6 +4,8 @@
 // and gap outlines checked with GEOS (valid polygons of the right area).
 #include <algorithm>
 #include <cmath>
+#include <stdexcept>
+#include <string>
 
 #include <gtest/gtest.h>
 
@@ -223,6 +225,23 @@ TEST(GapsAndInfill, DiagonalCellsJoinOneGapAndObliqueHeadingIsUsed) {
     EXPECT_TRUE(flyInfill(r, area, plan, GapOptions{1.0, 45.0}).after.gaps.empty());
 }
 
+TEST(GapsAndInfill, AnUnsurveyedBlockIsRefusedWithAClearMessage) {
+    // 2 km x 2 km never surveyed = 16 million cells of 0.5 m > the 10 million cell limit.
+    const MultiPolygon area = rect(0, 0, 2000, 2000);
+    const CoverageRaster r(kCell, kOrigin);
+    const GapReport rep = findGaps(r, area, GapOptions{});
+    ASSERT_EQ(rep.gaps.size(), 1U);
+    EXPECT_DOUBLE_EQ(rep.coveragePercent(), 0.0);
+    InfillOptions opt;
+    opt.half_width_m = 5.0;
+    try {
+        planInfill(rep, opt);
+        FAIL() << "no error";
+    } catch (const std::runtime_error& e) {
+        EXPECT_NE(std::string(e.what()).find("unsurveyed block"), std::string::npos) << e.what();
+    }
+}
+
 TEST(GapsAndInfill, OutlineWithHoleIsAValidGeosPolygonOfTheGapArea) {
     // An uncovered area with a covered island and a second covered strip: the gap wraps the island.
     Geos g;
@@ -237,6 +256,9 @@ TEST(GapsAndInfill, OutlineWithHoleIsAValidGeosPolygonOfTheGapArea) {
     std::size_t holes = 0;
     for (std::size_t k = 0; k < rep.gaps.size(); ++k) {
         const MultiPolygon outline = gapOutline(rep, static_cast<int>(k));
+        const MultiPolygon same = gapOutlines(rep)[k];  // the one-pass variant agrees
+        ASSERT_EQ(same.size(), outline.size());
+        EXPECT_DOUBLE_EQ(coverage::area(same), coverage::area(outline));
         double geos_area = 0.0;
         for (const auto& poly : outline) {
             holes += poly.holes.size();

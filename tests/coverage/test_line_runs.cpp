@@ -32,8 +32,10 @@ TEST(LineRuns, PicksNearestMatchingLineWithHysteresis) {
     // Crossing the lines at right angles matches no line.
     EXPECT_EQ(t.update(0, {10, 50}, 1.0, 0.0, 3.0), kRunNone);
     // Northbound 2 m east of B -> run 0 on B.
+    EXPECT_FALSE(t.activeCrossTrack({22, 60}, 0.0, 1.0).has_value());
     EXPECT_EQ(t.update(1, {22, 60}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
+    EXPECT_DOUBLE_EQ(t.activeCrossTrack({22, 60}, 0.0, 1.0).value(), 2.0);
     // Drifting east to 11 m (9 m from C): C is nearer, but not by more than 5 m -> stay on B.
     EXPECT_EQ(t.update(2, {31, 70}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
@@ -107,6 +109,9 @@ TEST(LineRuns, RunStatisticsAndCorridorCoverage) {
     // Line A's corridor (E -10..10) is only touched by B's swath edge at E 10 and by the
     // excursion to E 6..10: a few percent at most.
     EXPECT_LT(corridorCoveragePercent(raster, t.lines()[0], 10.0), 2.0);
+    EXPECT_GT(corridorCoveragePercent(raster, t.lines()[0], 10.0), 0.5);
+    // Line C's corridor (E 30..50) is never touched.
+    EXPECT_DOUBLE_EQ(corridorCoveragePercent(raster, t.lines()[2], 10.0), 0.0);
 }
 
 }  // namespace

@@ -107,3 +107,58 @@ TEST(SurveyCoverage, SameSamplesGiveTheSameHash) {
 
 }  // namespace
 }  // namespace sg::coverage
+
+namespace sg::coverage {
+namespace {
+
+TEST(SurveyCoverage, InfillConfigKeys) {
+    const toml::table root = config::parseText(
+        "[infill]\nrun_in_m = 80\nrun_out_m = 40\ninclude_small_gaps = true\n", "survey.toml");
+    const auto o = loadInfillOptions(config::Section(root, "survey.toml").table("infill"), 12.0, 6.5);
+    EXPECT_EQ(o.run_in_m, 80.0);
+    EXPECT_EQ(o.run_out_m, 40.0);
+    EXPECT_EQ(o.heading_deg, 12.0);  // survey heading when heading_deg is absent
+    EXPECT_EQ(o.half_width_m, 6.5);
+    EXPECT_TRUE(o.include_small_gaps);
+    const toml::table typo = config::parseText("[infill]\nrunin_m = 80\n", "survey.toml");
+    EXPECT_THROW(loadInfillOptions(config::Section(typo, "survey.toml").table("infill"), 0.0, 5.0),
+                 config::ConfigError);
+}
+
+TEST(SurveyCoverage, AreaHoleIsNotPartOfTheSurveyAndShapesTheGap) {
+    // 100 x 100 m area with a 20 x 20 m hole (an exclusion zone), nothing surveyed: one gap of
+    // 9600 m^2 whose outline has the hole.
+    const MultiPolygon area{Polygon{{{0, 0}, {100, 0}, {100, 100}, {0, 100}},
+                                    {{{40, 40}, {40, 60}, {60, 60}, {60, 40}}}}};
+    const CoverageRaster r(0.5, {0, 0});
+    const GapReport rep = findGaps(r, area, GapOptions{});
+    EXPECT_DOUBLE_EQ(rep.areaM2(), 9600.0);
+    ASSERT_EQ(rep.gaps.size(), 1U);
+    EXPECT_DOUBLE_EQ(rep.gaps[0].area_m2, 9600.0);
+    const MultiPolygon outline = gapOutline(rep, 0);
+    ASSERT_EQ(outline.size(), 1U);
+    ASSERT_EQ(outline[0].holes.size(), 1U);
+    EXPECT_EQ(outline[0].exterior.size(), 4U);  // collinear vertices removed
+    EXPECT_DOUBLE_EQ(coverage::area(outline), 9600.0);
+}
+
+TEST(SurveyCoverage, RunPaletteOverflowKeepsMarginsAndSaysSo) {
+    // 16 runs over the same cells, each a little better: the tile palette holds 14 runs, so the
+    // last improvements are stored with kRunOverflow, margins still exact.
+    CoverageRaster r(0.5, {0, 0});
+    for (int run = 0; run < 16; ++run) {
+        SwathPainter p(r);
+        for (int k = 0; k <= 10; ++k) {
+            auto s = sample(5.25, k, 1.0, 3.0, run, k);  // over the cell centres at E 5.25
+            s.centre_margin = 1.5F + 0.5F * static_cast<float>(run);
+            p.add(s);
+        }
+    }
+    const auto c = r.cellAt({5.25, 5.25});
+    EXPECT_DOUBLE_EQ(c.margin, 9.0);  // 1.5 + 0.5 * 15
+    EXPECT_EQ(c.run, kRunOverflow);
+    EXPECT_GT(r.paletteOverflows(), 0U);
+}
+
+}  // namespace
+}  // namespace sg::coverage
