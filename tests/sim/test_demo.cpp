@@ -3,11 +3,14 @@
 // simulator's strings, sensor offsets, geomagnetic field, plan), and the demo stays small.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <set>
 
 #include "common/config_section.hpp"
 #include "common/input_config.hpp"
+#include "coverage/geometry.hpp"
+#include "coverage/survey_plan.hpp"
 #include "decode/field_map.hpp"
 #include "detect/target_model.hpp"
 #include "nav/nav_config.hpp"
@@ -86,6 +89,37 @@ void checkSurveyConfig(const std::string& file, bool udp) {
     EXPECT_EQ(plan.string("lines"), sc.plan.lines_file);
     EXPECT_DOUBLE_EQ(plan.number("line_spacing_m"), sc.plan.line_spacing_m);
     EXPECT_DOUBLE_EQ(plan.number("planned_altitude_m"), sc.tow.altitude_m);
+}
+
+TEST(Demo, CoreReadsThePlanGeoJson) {
+    // The core's plan loader (src/coverage) reads the simulator's GeoJSON back to the scenario's
+    // lines and area in the survey CRS.
+    const Scenario sc = loadScenario(demoPath("scenario.toml"));
+    const Simulator sim(sc, SimOptions{});
+    const toml::table tbl = config::parseFile(demoPath("survey.toml"));
+    const config::Section root(tbl, demoPath("survey.toml"));
+    const nav::SurveyCrs crs(sc.site.epsg);
+    const coverage::SurveyPlan plan = coverage::loadPlan(root.table("plan"), coverage::toGridWith(crs));
+    ASSERT_EQ(plan.lines.size(), sc.plan.lines.size());
+    const Vec2 o = sim.origin_m();
+    for (std::size_t i = 0; i < plan.lines.size(); ++i) {
+        EXPECT_EQ(plan.lines[i].name, sc.plan.lines[i].name);
+        EXPECT_NEAR(plan.lines[i].start.e_m, o.e + sc.plan.lines[i].start_m.e, 0.01);
+        EXPECT_NEAR(plan.lines[i].start.n_m, o.n + sc.plan.lines[i].start_m.n, 0.01);
+        EXPECT_NEAR(plan.lines[i].end.e_m, o.e + sc.plan.lines[i].end_m.e, 0.01);
+        EXPECT_NEAR(plan.lines[i].end.n_m, o.n + sc.plan.lines[i].end_m.n, 0.01);
+    }
+    // Default area: the lines' bounding box widened by area_margin_m on each side.
+    double e0 = 1e300, e1 = -1e300, n0 = 1e300, n1 = -1e300;
+    for (const auto& l : sc.plan.lines) {
+        for (Vec2 q : {l.start_m, l.end_m}) {
+            e0 = std::min(e0, q.e); e1 = std::max(e1, q.e);
+            n0 = std::min(n0, q.n); n1 = std::max(n1, q.n);
+        }
+    }
+    const double m = 4.0;  // area_margin_m of the demo
+    EXPECT_NEAR(coverage::area(plan.area), (e1 - e0 + 2 * m) * (n1 - n0 + 2 * m), 1.0);
+    EXPECT_NO_THROW(coverage::checkLinesAgainstArea(plan.area, plan.lines, plan.lines_file));
 }
 
 TEST(Demo, UdpSurveyConfigMatchesTheScenario) { checkSurveyConfig("survey.toml", true); }
