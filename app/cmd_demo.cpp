@@ -6,14 +6,17 @@
 #include <cstdio>
 #include <filesystem>
 #include <map>
+#include <thread>
 
 #include <fmt/format.h>
 
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
+#include "app/screen_session.hpp"
 #include "common/line_framer.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
+#include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
 #include "io/log_writer.hpp"
 
@@ -27,6 +30,8 @@ struct DemoOptions {
     std::string out_dir = "out/demo";
     std::uint64_t seed = 1;
     double duration_s = 0.0;
+    std::string speed = "max";
+    ScreenArgs screen;
 };
 
 int runDemo(const DemoOptions& o) {
@@ -74,6 +79,15 @@ int runDemo(const DemoOptions& o) {
         });
     }
 
+    double speed = 0.0;
+    if (o.speed != "max") {
+        speed = std::stod(o.speed);
+        if (!(speed > 0)) throw CLI::ValidationError("--speed", "expected 'max' or a factor > 0");
+    }
+    return runWithScreen(o.screen, "swathguard demo", [&](ScreenLink& link) {
+    engine::SnapshotBuilder builder(pipeline.engine());
+    auto last_publish = std::chrono::steady_clock::now();
+    const TimeNs sim0 = simulator.start_utc_ns();
     std::printf("demo: simulating '%s' (seed %llu) into %s\n", o.scenario.c_str(),
                 static_cast<unsigned long long>(o.seed), log_path.c_str());
     const auto wall0 = std::chrono::steady_clock::now();
@@ -90,8 +104,23 @@ int runDemo(const DemoOptions& o) {
             ++lines;
         }
         pipeline.tick(out.utc_ns);
+        if (link.stopRequested()) break;
+        if (link.hasScreen()) {
+            applyCommonCommands(link.commands(), pipeline.engine(), builder, o.out_dir);
+            const auto now = std::chrono::steady_clock::now();
+            if (now - last_publish >= std::chrono::milliseconds(100)) {
+                last_publish = now;
+                link.publish(builder.build());
+            }
+        }
+        if (speed > 0) {
+            // Paced: simulated time runs `speed` times faster than the wall clock.
+            const auto due = wall0 + std::chrono::nanoseconds(static_cast<std::int64_t>(
+                                         static_cast<double>(out.utc_ns - sim0) / speed));
+            std::this_thread::sleep_until(due);
+        }
         if (out.utc_ns >= next_status) {
-            if (next_status != 0)
+            if (next_status != 0 && !link.hasScreen())
                 std::printf("%s | %s\n", utcText(out.utc_ns).c_str(),
                             engineStatus(pipeline.engine()).c_str());
             next_status = out.utc_ns + 60 * kNsPerSecond;
@@ -113,7 +142,16 @@ int runDemo(const DemoOptions& o) {
     std::printf("Coverage is a model's estimate. Clearance of unexploded ordnance follows the "
                 "project's risk assessment, local regulations and licensed specialists; the "
                 "master decides on navigation.\n");
+    if (link.hasScreen()) {
+        link.publish(builder.build(true));
+        while (!link.stopRequested()) {
+            applyCommonCommands(link.commands(), pipeline.engine(), builder, o.out_dir);
+            link.publish(builder.build());
+            std::this_thread::sleep_for(std::chrono::milliseconds(200));
+        }
+    }
     return 0;
+    });
 }
 
 }  // namespace
@@ -126,6 +164,8 @@ void addDemoCommand(CLI::App& app) {
     cmd->add_option("--out", o->out_dir, "Folder for the log and the exports")->capture_default_str();
     cmd->add_option("--seed", o->seed, "Simulator seed")->capture_default_str();
     cmd->add_option("--duration", o->duration_s, "Simulated seconds (default: the whole plan)");
+    cmd->add_option("--speed", o->speed, "Simulated seconds per wall second, or max")->capture_default_str();
+    addScreenOptions(*cmd, o->screen);
     cmd->callback([o] { runDemo(*o); });
 }
 

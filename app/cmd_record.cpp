@@ -16,6 +16,8 @@
 #include "decode/field_map.hpp"
 #include "io/recorder.hpp"
 #include "app/engine_status.hpp"
+#include "app/screen_session.hpp"
+#include "engine/snapshot_builder.hpp"
 #include "engine/survey_config.hpp"
 #include "io/status_line.hpp"
 
@@ -27,7 +29,7 @@ struct RecordOptions {
     std::string config;
     std::string log;
     double duration_s = 0.0;
-    bool headless = false;
+    ScreenArgs screen;
 };
 
 int runRecord(const RecordOptions& o) {
@@ -49,10 +51,19 @@ int runRecord(const RecordOptions& o) {
     io::LogWriter writer(log_path, {cfg.log.commit_interval_ms, true},
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()}});
+    int exit_code = 0;
+    const int rc = runWithScreen(o.screen, "swathguard record", [&](ScreenLink& link) {
     io::asio::io_context ctx;
     io::Recorder rec(ctx, cfg, writer);
+    engine::SnapshotBuilder builder(rec.pipeline()->engine());
+    const auto export_dir = (std::filesystem::path(log_path).parent_path() / "exports").string();
+    // Every flush (100 ms): the screen's commands, then a fresh snapshot for it.
+    rec.onFlush([&] {
+        if (!link.hasScreen()) return;
+        applyCommonCommands(link.commands(), rec.pipeline()->engine(), builder, export_dir);
+        link.publish(builder.build());
+    });
 
-    int exit_code = 0;
     auto finish = [&] {
         rec.stop();
         ctx.stop();
@@ -80,7 +91,8 @@ int runRecord(const RecordOptions& o) {
             const auto now = std::chrono::steady_clock::now();
             const double dt = std::chrono::duration<double>(now - last).count();
             last = now;
-            std::printf("%s | %s\n",
+            if (link.stopRequested()) return finish();
+            if (!link.hasScreen()) std::printf("%s | %s\n",
                         status.update(rec.dispatcher().counters(), writer.stats(), dt).c_str(),
                         engineStatus(rec.pipeline()->engine()).c_str());
             std::fflush(stdout);
@@ -93,6 +105,9 @@ int runRecord(const RecordOptions& o) {
     ctx.run();
     rec.stop();
     writer.stop();
+    return 0;
+    });
+    (void)rc;
     const auto st = writer.stats();
     std::printf("record: %llu lines in %s (%llu commits)%s\n",
                 static_cast<unsigned long long>(st.raw_committed), log_path.c_str(),
@@ -111,8 +126,7 @@ void addRecordCommand(CLI::App& app) {
     cmd->add_option("--log", opts->log, "Log file to create (default: [log] path)");
     cmd->add_option("--duration", opts->duration_s, "Stop after this many seconds")
         ->check(CLI::NonNegativeNumber);
-    cmd->add_flag("--headless", opts->headless,
-                  "No screen: status line only (the screen is not part of record yet)");
+    addScreenOptions(*cmd, opts->screen);
     cmd->callback([opts] {
         const int rc = runRecord(*opts);
         if (rc != 0) throw CLI::RuntimeError(rc);

@@ -2,7 +2,9 @@
 // factor, or as fast as possible, printing progress, and ends with the coverage summary.
 // `swathguard gaps LOG`: the same at full speed, then the gap list and infill proposals, with
 // exports. Both use the survey config stored in the log unless --config overrides it.
+#include <algorithm>
 #include <chrono>
+#include <filesystem>
 #include <cstdio>
 #include <thread>
 
@@ -10,7 +12,9 @@
 
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
+#include "app/screen_session.hpp"
 #include "engine/log_replay.hpp"
+#include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
 
 namespace sg::app {
@@ -21,7 +25,7 @@ struct ReplayOptions {
     std::string log;
     std::string config;
     std::string speed = "max";
-    bool headless = false;
+    ScreenArgs screen;
     bool json = false;
     std::string export_dir;
 };
@@ -46,51 +50,120 @@ std::optional<std::string> configOverride(const ReplayOptions& o) {
 }
 
 int runReplay(const ReplayOptions& o) {
-    const double speed = parseSpeed(o.speed);
+    double speed = parseSpeed(o.speed);
     engine::LogReplay replay(o.log, configOverride(o));
     std::printf("replay: %s, %lld lines, %s .. %s, speed %s\n", o.log.c_str(),
                 static_cast<long long>(replay.totalLines()), utcText(replay.firstTime()).c_str(),
                 utcText(replay.lastTime()).c_str(), o.speed.c_str());
-    const auto wall0 = std::chrono::steady_clock::now();
-    auto last_print = wall0;
-    if (speed == 0.0) {
+    // Alarms the operator of the day saw, from the log's events (training view: "next alarm").
+    std::vector<TimeNs> logged_alarms;
+    for (const auto& e : replay.reader().events())
+        if (e.kind.rfind("alarm.", 0) == 0) logged_alarms.push_back(e.start_utc_ns);
+    std::sort(logged_alarms.begin(), logged_alarms.end());
+    const auto export_dir = (std::filesystem::path(o.log).parent_path() / "exports").string();
+
+    return runWithScreen(o.screen, "swathguard replay", [&](ScreenLink& link) {
+        auto builder = std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine());
+        bool paused = false;
+        const auto wall0 = std::chrono::steady_clock::now();
+        auto pace_wall = wall0;
+        TimeNs pace_log = replay.firstTime();
+        auto last_print = wall0;
+        auto last_publish = wall0;
         const std::int64_t step = std::max<std::int64_t>(1, replay.totalLines() / 10);
         std::int64_t next_print = step;
-        while (replay.step()) {
-            if (static_cast<std::int64_t>(replay.linesFed()) >= next_print) {
-                next_print += step;
-                std::printf("  %3.0f %% | %s\n",
-                            100.0 * static_cast<double>(replay.linesFed()) /
-                                static_cast<double>(std::max<std::int64_t>(1, replay.totalLines())),
-                            engineStatus(replay.pipeline().engine()).c_str());
-                std::fflush(stdout);
+        const auto now_log = [&] { return replay.pipeline().engine().clock_ns(); };
+        const auto seekTo = [&](TimeNs target) {
+            if (target < now_log()) {
+                replay.restart();
+                builder = std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine());
             }
-        }
-    } else {
-        // Paced: log time advances `speed` times faster than the wall clock.
-        while (replay.nextTime()) {
-            const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
-            const TimeNs target = replay.firstTime() + static_cast<TimeNs>(wall_s * speed * 1e9);
             replay.runUntil(target);
-            const auto now = std::chrono::steady_clock::now();
-            if (now - last_print >= std::chrono::seconds(1)) {
-                last_print = now;
-                std::printf("%s | %s\n", utcText(target).c_str(),
-                            engineStatus(replay.pipeline().engine()).c_str());
-                std::fflush(stdout);
+            pace_wall = std::chrono::steady_clock::now();
+            pace_log = target;
+        };
+        const auto publish = [&](bool force_gaps) {
+            engine::ReplayView rv;
+            rv.is_replay = true;
+            rv.t_s = toSeconds(now_log());
+            rv.t_start_s = toSeconds(replay.firstTime());
+            rv.t_end_s = toSeconds(replay.lastTime());
+            rv.speed = speed;
+            rv.paused = paused;
+            builder->setReplay(rv);
+            link.publish(builder->build(force_gaps));
+        };
+        while (!link.stopRequested()) {
+            for (auto& c : applyCommonCommands(link.commands(), replay.pipeline().engine(), *builder, export_dir)) {
+                using Kind = engine::UiCommand::Kind;
+                if (c.kind == Kind::kReplayPause) paused = true;
+                if (c.kind == Kind::kReplayPlay) {
+                    paused = false;
+                    pace_wall = std::chrono::steady_clock::now();
+                    pace_log = now_log();
+                }
+                if (c.kind == Kind::kReplaySpeed) {
+                    speed = c.value;
+                    pace_wall = std::chrono::steady_clock::now();
+                    pace_log = now_log();
+                }
+                if (c.kind == Kind::kReplaySeek) seekTo(static_cast<TimeNs>(c.value * 1e9));
+                if (c.kind == Kind::kReplayNextAlarm) {
+                    auto it = std::upper_bound(logged_alarms.begin(), logged_alarms.end(), now_log());
+                    if (it != logged_alarms.end()) {
+                        seekTo(*it);
+                        paused = true;  // the trainer stops at each alarm of the day
+                    }
+                }
             }
-            std::this_thread::sleep_for(std::chrono::milliseconds(10));
+            const bool at_end = !replay.nextTime().has_value();
+            if (!paused && !at_end) {
+                if (speed == 0.0) {
+                    for (int i = 0; i < 20000 && replay.step(); ++i) {
+                    }
+                    if (!link.hasScreen() && static_cast<std::int64_t>(replay.linesFed()) >= next_print) {
+                        next_print += step;
+                        std::printf("  %3.0f %% | %s\n",
+                                    100.0 * static_cast<double>(replay.linesFed()) /
+                                        static_cast<double>(std::max<std::int64_t>(1, replay.totalLines())),
+                                    engineStatus(replay.pipeline().engine()).c_str());
+                        std::fflush(stdout);
+                    }
+                } else {
+                    const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - pace_wall).count();
+                    replay.runUntil(pace_log + static_cast<TimeNs>(wall_s * speed * 1e9));
+                    const auto now = std::chrono::steady_clock::now();
+                    if (!link.hasScreen() && now - last_print >= std::chrono::seconds(1)) {
+                        last_print = now;
+                        std::printf("%s | %s\n", utcText(now_log()).c_str(),
+                                    engineStatus(replay.pipeline().engine()).c_str());
+                        std::fflush(stdout);
+                    }
+                    std::this_thread::sleep_for(std::chrono::milliseconds(10));
+                }
+            }
+            const auto now = std::chrono::steady_clock::now();
+            if (link.hasScreen() && now - last_publish >= std::chrono::milliseconds(100)) {
+                last_publish = now;
+                publish(at_end);
+            }
+            if (at_end) {
+                if (!link.hasScreen()) break;
+                std::this_thread::sleep_for(std::chrono::milliseconds(50));
+            } else if (paused) {
+                std::this_thread::sleep_for(std::chrono::milliseconds(20));
+            }
         }
-    }
-    const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
-    const double log_s = toSeconds(replay.lastTime() - replay.firstTime());
-    std::printf("replay: %llu lines in %.2f s wall for %.0f s of survey (%.0fx real time)\n",
-                static_cast<unsigned long long>(replay.linesFed()), wall_s, log_s,
-                wall_s > 0 ? log_s / wall_s : 0.0);
-    auto summary = engine::summarise(replay.pipeline().engine(), replay.linesFed());
-    std::printf("%s", engine::toText(summary).c_str());
-    std::printf("raster hash %016llx\n", static_cast<unsigned long long>(summary.raster_hash));
-    return 0;
+        const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
+        const double log_s = toSeconds(replay.lastTime() - replay.firstTime());
+        std::printf("replay: %llu lines in %.2f s wall for %.0f s of survey (%.0fx real time)\n",
+                    static_cast<unsigned long long>(replay.linesFed()), wall_s, log_s,
+                    wall_s > 0 ? log_s / wall_s : 0.0);
+        auto summary = engine::summarise(replay.pipeline().engine(), replay.linesFed());
+        std::printf("%s", engine::toText(summary).c_str());
+        std::printf("raster hash %016llx\n", static_cast<unsigned long long>(summary.raster_hash));
+        return 0;
+    });
 }
 
 int runGaps(const ReplayOptions& o) {
@@ -120,7 +193,7 @@ void addReplayCommands(CLI::App& app) {
     replay->add_option("--speed", ro->speed, "Replay speed: a factor (1 = real time) or max")
         ->default_str("max");
     replay->add_option("--config", ro->config, "Survey config to use instead of the one in the log");
-    replay->add_flag("--headless", ro->headless, "No screen: progress and summary on the terminal");
+    addScreenOptions(*replay, ro->screen);
     replay->callback([ro] { runReplay(*ro); });
 
     auto go = std::make_shared<ReplayOptions>();

@@ -211,17 +211,29 @@ void parsePlan(const toml::table& tbl, const Section& root, Scenario& sc) {
         p.area_m = pointList(tbl, s, "area_m");
         if (p.area_m.size() < 3) s.fail("area_m", "at least 3 vertices");
     } else {
-        // Default area: the lines' bounding box, widened by half a line spacing (or the margin).
+        // Default area: the block of the lines, in the frame of the first line (u along it,
+        // v to its left), widened across by half a line spacing (or the margin) and ending at the
+        // line ends, so a slanted block gets a slanted area (not its bounding box).
         const double margin = s.number("area_margin_m", 0.0, 1e4, p.line_spacing_m / 2.0);
-        double e0 = 1e300, e1 = -1e300, n0 = 1e300, n1 = -1e300;
+        const Vec2 o = p.lines.front().start_m;
+        const double dx = p.lines.front().end_m.e - o.e, dy = p.lines.front().end_m.n - o.n;
+        const double len = std::hypot(dx, dy);
+        const double ue = dx / len, un = dy / len;  // along
+        const double ve = -un, vn = ue;             // across, to the left: (u, v) right-handed
+        double a0 = 1e300, a1 = -1e300, c0 = 1e300, c1 = -1e300;
         for (const auto& l : p.lines) {
             for (Vec2 q : {l.start_m, l.end_m}) {
-                e0 = std::min(e0, q.e); e1 = std::max(e1, q.e);
-                n0 = std::min(n0, q.n); n1 = std::max(n1, q.n);
+                const double a = (q.e - o.e) * ue + (q.n - o.n) * un;
+                const double c = (q.e - o.e) * ve + (q.n - o.n) * vn;
+                a0 = std::min(a0, a); a1 = std::max(a1, a);
+                c0 = std::min(c0, c); c1 = std::max(c1, c);
             }
         }
-        e0 -= margin; e1 += margin; n0 -= margin; n1 += margin;
-        p.area_m = {{e0, n0}, {e1, n0}, {e1, n1}, {e0, n1}};
+        c0 -= margin; c1 += margin;
+        const auto at = [&](double a, double c) {
+            return Vec2{o.e + a * ue + c * ve, o.n + a * un + c * vn};
+        };
+        p.area_m = {at(a0, c0), at(a1, c0), at(a1, c1), at(a0, c1)};  // counter-clockwise
     }
 }
 

@@ -124,6 +124,8 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
     }
     ensureCrs(lon_deg, lat_deg);
     m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);
+    const auto en = m_crs->forward(lon_deg, lat_deg);
+    if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
     // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
     m_last_fix_ns = m_clock_ns;
     m_checks.update("gnss_silence", m_clock_ns, 0.0);
@@ -191,6 +193,7 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     s.noise_nT = noise.sigma_nT();
     processSample(s, t_ns);
     if (slot == 0) updateChecks(t_ns);
+    if (m_observer) m_observer(s);
     drainEpisodes();
 }
 

@@ -86,6 +86,11 @@ public:
     // checks work on this clock, every other check on the aligned (instrument) times.
     void advanceTo(TimeNs t_ns);
 
+    // Called after every processed magnetometer sample (the snapshot builder keeps history).
+    void setSampleObserver(std::function<void(const SensorState&)> fn) { m_observer = std::move(fn); }
+    // Last antenna fix in the survey CRS and the vessel heading (grid, radians), when known.
+    std::optional<coverage::Point> vesselPosition() const { return m_vessel_pos; }
+
     // Operator actions (logged as events).
     bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
     int acknowledgeAll(TimeNs t_ns);
@@ -164,6 +169,8 @@ private:
     int m_run_of_last_sample = coverage::kRunNone;
 
     std::map<std::uint64_t, std::int64_t> m_episode_event;  // episode id -> events.id
+    std::function<void(const SensorState&)> m_observer;
+    std::optional<coverage::Point> m_vessel_pos;
     log::Batch m_rows;
 };
 
