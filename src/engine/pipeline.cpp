@@ -55,9 +55,16 @@ log::Batch Pipeline::takeBatch() {
 }
 
 TimeNs Pipeline::align(const config::InputConfig& input, const ReceivedLine& line,
-                       std::optional<TimeNs> instrument_utc_ns) const {
-    if (input.clock == config::ClockSource::Instrument && instrument_utc_ns) return *instrument_utc_ns;
-    return line.utc_ns - static_cast<TimeNs>(std::llround(input.latency_ms * 1e6));
+                       std::optional<TimeNs> instrument_utc_ns) {
+    const TimeNs received = line.utc_ns - static_cast<TimeNs>(std::llround(input.latency_ms * 1e6));
+    if (input.clock != config::ClockSource::Instrument) return received;
+    if (instrument_utc_ns) {
+        // Remember how the instruments' clock relates to the receive clock, for the lines of
+        // instrument-clock inputs that carry no time of their own (HDT, DPT, ...).
+        m_instrument_offset_ns = *instrument_utc_ns - received;
+        return *instrument_utc_ns;
+    }
+    return received + m_instrument_offset_ns.value_or(0);
 }
 
 void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line,

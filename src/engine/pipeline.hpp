@@ -4,8 +4,9 @@
 // Pipeline, so a replay of a log reproduces the live session.
 //
 // Time alignment per input ([[input]] clock): "instrument" uses the instrument's own UTC time when
-// the line has one (and the date is known), else the receive time; "receive" uses the UTC receive
-// time. The input's latency_ms is subtracted from receive times.
+// the line has one (and the date is known); a line of such an input without a time of its own
+// (HDT, DPT) gets its receive time shifted by the latest instrument-minus-receive offset seen;
+// "receive" uses the UTC receive time. The input's latency_ms is subtracted from receive times.
 #pragma once
 
 #include <cstdint>
@@ -49,13 +50,14 @@ public:
 
 private:
     TimeNs align(const config::InputConfig& input, const ReceivedLine& line,
-                 std::optional<TimeNs> instrument_utc_ns) const;
+                 std::optional<TimeNs> instrument_utc_ns);
 
     std::function<std::int64_t()> m_next_event_id;
     LineDecoder m_decoder;
     std::unique_ptr<SurveyEngine> m_engine;
     std::map<std::string, bool, std::less<>> m_has_fix_sentence;  // input sent GGA/GNS
     std::uint64_t m_lines = 0;
+    std::optional<TimeNs> m_instrument_offset_ns;  // instrument time - receive time, latest
 };
 
 }  // namespace sg::engine
