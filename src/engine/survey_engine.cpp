@@ -187,8 +187,11 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     s.quality = quality;
     ++s.samples;
     if (field_nT) {
+        // Silence is per sensor: one sensor's dropout counts even while the others report.
         m_last_mag_ns = m_clock_ns;
-        m_checks.update("mag_silence", m_clock_ns, 0.0);
+        if (!m_first_mag_ns) m_first_mag_ns = m_clock_ns;
+        m_last_mag_by_slot[slot] = m_clock_ns;
+        m_checks.update("mag_silence", m_clock_ns, magSilence_s(m_clock_ns));
     }
     s.noise_nT = noise.sigma_nT();
     processSample(s, t_ns);
@@ -358,10 +361,22 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
     m_checks.update("forming_gap", t_ns, gap);
 }
 
+double SurveyEngine::magSilence_s(TimeNs at) const {
+    // The longest silence of any sensor that has reported; a configured sensor that never
+    // reported counts from the first sample of any sensor.
+    double worst = 0.0;
+    for (std::size_t i = 0; i < m_sensors.size(); ++i) {
+        const auto it = m_last_mag_by_slot.find(i);
+        const TimeNs last = it != m_last_mag_by_slot.end() ? it->second : m_first_mag_ns.value_or(at);
+        worst = std::max(worst, toSeconds(at - last));
+    }
+    return worst;
+}
+
 void SurveyEngine::advanceTo(TimeNs t_ns) {
     if (t_ns <= m_clock_ns) return;
     const auto evaluate = [&](TimeNs at) {
-        if (m_last_mag_ns) m_checks.update("mag_silence", at, toSeconds(at - *m_last_mag_ns));
+        if (m_last_mag_ns) m_checks.update("mag_silence", at, magSilence_s(at));
         if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
         if (m_last_altitude_ns)
             m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));

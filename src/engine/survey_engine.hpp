@@ -142,6 +142,7 @@ private:
     std::vector<double> sensorCross() const;
     double planningThreshold_nT() const;
     void drainEpisodes();
+    double magSilence_s(TimeNs at) const;
 
     SurveyConfig m_cfg;
     std::function<std::int64_t()> m_next_event_id;
@@ -165,6 +166,8 @@ private:
     TimeNs m_clock_ns = 0;           // receive clock (UTC receive time of the line being fed)
     std::optional<TimeNs> m_last_fix_ns;
     std::optional<TimeNs> m_last_mag_ns;
+    std::optional<TimeNs> m_first_mag_ns;
+    std::map<std::size_t, TimeNs> m_last_mag_by_slot;  // receive clock of each sensor's last field
     std::optional<TimeNs> m_last_altitude_ns;
     int m_run_of_last_sample = coverage::kRunNone;
 
