@@ -72,7 +72,7 @@ public:
         } else if (age > 3.0 && !(s->replay.is_replay && s->replay.paused)) {
             ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(pal.warn), "STATE NOT UPDATED FOR %.0f s", age);
         } else {
-            ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(pal.ok), "live");
+            ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(pal.ok), "%s", s->replay.is_replay ? "replay" : "live");
         }
         ImGui::SameLine();
         const char* caution = (s && !s->cautions.empty()) ? s->cautions.c_str() : defaultCaution();

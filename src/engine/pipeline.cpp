@@ -54,8 +54,8 @@ log::Batch Pipeline::takeBatch() {
     return b;
 }
 
-TimeNs Pipeline::align(const config::InputConfig& input, const ReceivedLine& line,
-                       std::optional<TimeNs> instrument_utc_ns) {
+std::optional<TimeNs> Pipeline::align(const config::InputConfig& input, const ReceivedLine& line,
+                                      std::optional<TimeNs> instrument_utc_ns) {
     const TimeNs received = line.utc_ns - static_cast<TimeNs>(std::llround(input.latency_ms * 1e6));
     if (input.clock != config::ClockSource::Instrument) return received;
     if (instrument_utc_ns) {
@@ -64,12 +64,18 @@ TimeNs Pipeline::align(const config::InputConfig& input, const ReceivedLine& lin
         m_instrument_offset_ns = *instrument_utc_ns - received;
         return *instrument_utc_ns;
     }
-    return received + m_instrument_offset_ns.value_or(0);
+    // Until the instruments' clock is known (no dated time seen yet) an instrument-clock line
+    // cannot be placed in time: it is logged, not processed (mixing clocks would put later data
+    // before earlier data).
+    if (!m_instrument_offset_ns) return std::nullopt;
+    return received + *m_instrument_offset_ns;
 }
 
 void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line,
                       const decode::NmeaSentence& s, std::optional<TimeNs> instrument_utc_ns) {
-    const TimeNs t = align(input, line, instrument_utc_ns);
+    const auto aligned = align(input, line, instrument_utc_ns);
+    if (!aligned) return;
+    const TimeNs t = *aligned;
     auto& engine = *m_engine;
     if (const auto* g = std::get_if<decode::Gga>(&s.data)) {
         m_has_fix_sentence[input.name] = true;
@@ -104,7 +110,9 @@ void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line
 
 void Pipeline::onFields(const config::InputConfig& input, const ReceivedLine& line,
                         const decode::FieldRecord& r, std::optional<TimeNs> instrument_utc_ns) {
-    const TimeNs t = align(input, line, instrument_utc_ns);
+    const auto aligned = align(input, line, instrument_utc_ns);
+    if (!aligned) return;
+    const TimeNs t = *aligned;
     auto& engine = *m_engine;
     if (input.role == "mag") {
         engine.onMagSample(t, r.sensor, r.field_nT, r.quality, r.depth_m, r.altitude_m);

@@ -6,7 +6,8 @@
 // Time alignment per input ([[input]] clock): "instrument" uses the instrument's own UTC time when
 // the line has one (and the date is known); a line of such an input without a time of its own
 // (HDT, DPT) gets its receive time shifted by the latest instrument-minus-receive offset seen;
-// "receive" uses the UTC receive time. The input's latency_ms is subtracted from receive times.
+// "receive" uses the UTC receive time. Instrument-clock lines that arrive before any dated time
+// (RMC/ZDA) are logged but not processed. The input's latency_ms is subtracted from receive times.
 #pragma once
 
 #include <cstdint>
@@ -49,8 +50,9 @@ public:
                   const decode::FieldRecord& record, std::optional<TimeNs> instrument_utc_ns) override;
 
 private:
-    TimeNs align(const config::InputConfig& input, const ReceivedLine& line,
-                 std::optional<TimeNs> instrument_utc_ns);
+    // Nullopt: an instrument-clock line before the instruments' clock is known (not processed).
+    std::optional<TimeNs> align(const config::InputConfig& input, const ReceivedLine& line,
+                                std::optional<TimeNs> instrument_utc_ns);
 
     std::function<std::int64_t()> m_next_event_id;
     LineDecoder m_decoder;
