@@ -70,7 +70,8 @@ public:
     std::optional<Section> optionalTable(std::string_view key) const;
     // [[key]] arrays of tables (an absent key gives an empty vector).
     std::vector<Section> tables(std::string_view key) const;
-    // Keys of this table, in file order (for maps such as [fieldmap.NAME]).
+    // Keys of this table (for maps such as [fieldmap.NAME]), in toml++ order: sorted by name,
+    // not file order.
     std::vector<std::string> keys() const;
 
     // Rejects any key not in `allowed` (catches typos such as "baudrate" for "baud").
