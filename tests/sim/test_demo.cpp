@@ -109,16 +109,15 @@ TEST(Demo, CoreReadsThePlanGeoJson) {
         EXPECT_NEAR(plan.lines[i].end.e_m, o.e + sc.plan.lines[i].end_m.e, 0.01);
         EXPECT_NEAR(plan.lines[i].end.n_m, o.n + sc.plan.lines[i].end_m.n, 0.01);
     }
-    // Default area: the lines' bounding box widened by area_margin_m on each side.
-    double e0 = 1e300, e1 = -1e300, n0 = 1e300, n1 = -1e300;
-    for (const auto& l : sc.plan.lines) {
-        for (Vec2 q : {l.start_m, l.end_m}) {
-            e0 = std::min(e0, q.e); e1 = std::max(e1, q.e);
-            n0 = std::min(n0, q.n); n1 = std::max(n1, q.n);
-        }
-    }
+    // Default area: the block of the parallel lines, widened across by area_margin_m on each
+    // side and ending at the line ends: line length x (outer line separation + 2 margins).
+    const auto& first = sc.plan.lines.front();
+    const auto& last = sc.plan.lines.back();
+    const double len = std::hypot(first.end_m.e - first.start_m.e, first.end_m.n - first.start_m.n);
+    const double ue = (first.end_m.e - first.start_m.e) / len, un = (first.end_m.n - first.start_m.n) / len;
+    const double across = std::abs((last.start_m.e - first.start_m.e) * -un + (last.start_m.n - first.start_m.n) * ue);
     const double m = 4.0;  // area_margin_m of the demo
-    EXPECT_NEAR(coverage::area(plan.area), (e1 - e0 + 2 * m) * (n1 - n0 + 2 * m), 1.0);
+    EXPECT_NEAR(coverage::area(plan.area), len * (across + 2 * m), 1.0);
     EXPECT_NO_THROW(coverage::checkLinesAgainstArea(plan.area, plan.lines, plan.lines_file));
 }
 
