@@ -20,6 +20,9 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include "drivers_sim/simulator.hpp"
+#include "engine/pipeline.hpp"
+#include "engine/snapshot_builder.hpp"
 #include "synthetic_snapshot.hpp"
 #include "ui/layout.hpp"
 #include "ui/plan_view.hpp"
@@ -339,3 +342,77 @@ TEST_F(ScreenTest, PausedScreenNeverBlocksTheProducer) {
 }
 
 }  // namespace
+
+// The real thing: the invented demo survey simulated to 1480 s (inside the altitude excursion
+// of replay_logs/demo/scenario.toml, 1450-1510 s) through the whole core, its snapshot drawn.
+std::shared_ptr<const sg::engine::Snapshot> demoSnapshotAt(double seconds) {
+    const std::string dir = std::string(SG_SOURCE_DIR) + "/replay_logs/demo/";
+    const auto cfg = sg::engine::loadSurveyConfig(dir + "survey.toml");
+    sg::sim::SimOptions so;
+    so.duration_s = seconds;
+    sg::sim::Simulator sim(sg::sim::loadScenario(dir + "scenario.toml"), so);
+    std::int64_t id = 1;
+    sg::engine::Pipeline pipe(cfg, [&] { return id++; });
+    sg::engine::SnapshotBuilder builder(pipe.engine());
+    while (!sim.done()) {
+        for (const auto& l : sim.step().lines) {
+            sg::ReceivedLine r;
+            r.source = sg::sim::channelName(l.channel);
+            r.utc_ns = r.mono_ns = l.utc_ns;
+            r.bytes = l.bytes;
+            pipe.feed(r);
+        }
+    }
+    return builder.build(/*force_gaps=*/true);
+}
+
+TEST_F(ScreenTest, DemoSurveyShowsCoverageGapAndAlarmWherePlaced) {
+    const auto snap = demoSnapshotAt(1480.0);
+    ASSERT_FALSE(snap->tiles.empty());
+    ASSERT_FALSE(snap->gaps.empty());
+    ASSERT_TRUE(snap->hasUnacknowledgedAlarm());
+    const Image img = render(snap, "demo_replay");
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, false, /*banner=*/true);
+    const auto t = sg::ui::fitTransform(sg::ui::surveyBounds(*snap), layout.plan);
+    const auto& pal = sg::ui::dayPalette();
+
+    // A covered cell deep inside a strip (every cell within 3 m covered too): its margin colour
+    // shows there, not the background.
+    int checked = 0;
+    for (const auto& tile : snap->tiles) {
+        if (checked >= 3) break;
+        const int n = tile.size_cells;
+        for (int row = 6; row < n - 6 && checked < 3; row += 7)
+            for (int col = 6; col < n - 6 && checked < 3; col += 7) {
+                bool all = true;
+                for (int dr = -6; dr <= 6 && all; ++dr)
+                    for (int dc = -6; dc <= 6 && all; ++dc)
+                        all = (*tile.margin_q)[static_cast<std::size_t>((row + dr) * n + col + dc)] > 0;
+                if (!all) continue;
+                const std::uint8_t q = (*tile.margin_q)[static_cast<std::size_t>(row * n + col)];
+                const ImVec2 c = t.toScreen({tile.origin_e + (col + 0.5) * tile.cell_m,
+                                             tile.origin_n + (row + 0.5) * tile.cell_m});
+                if (!layout.plan.contains(c)) continue;
+                EXPECT_LT(fractionNear(img, c, 1, pal.background, 2), 0.2) << "background at a covered cell";
+                EXPECT_GT(fractionNear(img, c, 1, pal.marginColour(q), 60), 0.3) << "no margin colour";
+                ++checked;
+            }
+    }
+    EXPECT_EQ(checked, 3);
+
+    // The outline colour on the edge of the largest gap the core found.
+    const auto& ring = snap->gaps.front().rings.front();
+    ASSERT_GE(ring.size(), 3u);
+    int outlined = 0;
+    for (std::size_t i = 0; i < ring.size(); ++i) {
+        const auto& a = ring[i];
+        const auto& b = ring[(i + 1) % ring.size()];
+        const ImVec2 mid = t.toScreen({(a.e_m + b.e_m) / 2, (a.n_m + b.n_m) / 2});
+        if (!layout.plan.contains(mid)) continue;
+        outlined += fractionNear(img, mid, 2, pal.gap, 40) > 0.1 ? 1 : 0;
+    }
+    EXPECT_GE(outlined, 1);
+
+    // The altitude alarm of the excursion is active and unacknowledged: the banner shows.
+    EXPECT_GT(bannerFraction(img, layout, pal.banner), 0.4);
+}
