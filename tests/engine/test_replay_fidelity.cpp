@@ -6,6 +6,7 @@
 
 #include <filesystem>
 
+#include "drivers_sim/pipeline_feed.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/pipeline.hpp"
@@ -31,17 +32,9 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         sg::io::LogWriter writer(log_path, {200, false},
                                  {{"config_text", cfg.text}, {"config_file", dir + "survey.toml"}});
         sg::engine::Pipeline live(cfg, [&] { return writer.nextEventId(); });
-        while (!sim.done()) {
-            const auto& out = sim.step();
-            for (const auto& l : out.lines) {
-                sg::ReceivedLine r;
-                r.source = sg::sim::channelName(l.channel);
-                r.utc_ns = r.mono_ns = l.utc_ns;
-                r.bytes = l.bytes;
-                live.feed(r);
-            }
+        sg::sim::feedToEnd(sim, live, [&](const sg::sim::StepOutput& out) {
             if (!out.lines.empty()) writer.post(live.takeBatch());
-        }
+        });
         writer.post(live.takeBatch());
         writer.stop();
         live.engine().flushCoverage();

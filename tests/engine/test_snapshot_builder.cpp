@@ -2,6 +2,7 @@
 #include <gtest/gtest.h>
 
 #include "common/line_framer.hpp"
+#include "drivers_sim/pipeline_feed.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
 #include "engine/snapshot_builder.hpp"
@@ -17,15 +18,7 @@ TEST(SnapshotBuilder, DemoSnapshotHasTracksSeriesTilesAndPlan) {
     std::int64_t id = 1;
     sg::engine::Pipeline pipe(cfg, [&] { return id++; });
     sg::engine::SnapshotBuilder builder(pipe.engine());
-    while (!sim.done()) {
-        for (const auto& l : sim.step().lines) {
-            sg::ReceivedLine r;
-            r.source = sg::sim::channelName(l.channel);
-            r.utc_ns = r.mono_ns = l.utc_ns;
-            r.bytes = l.bytes;
-            pipe.feed(r);
-        }
-    }
+    sg::sim::feedToEnd(sim, pipe);
     auto snap = builder.build(true);
     ASSERT_TRUE(snap);
     EXPECT_GT(snap->vessel.e_m, 100000.0);  // UTM easting, not the origin

@@ -20,6 +20,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include "drivers_sim/pipeline_feed.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
 #include "engine/snapshot_builder.hpp"
@@ -354,15 +355,7 @@ std::shared_ptr<const sg::engine::Snapshot> demoSnapshotAt(double seconds) {
     std::int64_t id = 1;
     sg::engine::Pipeline pipe(cfg, [&] { return id++; });
     sg::engine::SnapshotBuilder builder(pipe.engine());
-    while (!sim.done()) {
-        for (const auto& l : sim.step().lines) {
-            sg::ReceivedLine r;
-            r.source = sg::sim::channelName(l.channel);
-            r.utc_ns = r.mono_ns = l.utc_ns;
-            r.bytes = l.bytes;
-            pipe.feed(r);
-        }
-    }
+    sg::sim::feedToEnd(sim, pipe);
     return builder.build(/*force_gaps=*/true);
 }
 
