@@ -63,7 +63,12 @@ int runReplay(const ReplayOptions& o) {
     const auto export_dir = (std::filesystem::path(o.log).parent_path() / "exports").string();
 
     return runWithScreen(o.screen, "swathguard replay", [&](ScreenLink& link) {
-        auto builder = std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine());
+        // Only a screen needs the snapshot history (it costs time at full replay speed).
+        auto makeBuilder = [&] {
+            return link.hasScreen() ? std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine())
+                                    : nullptr;
+        };
+        auto builder = makeBuilder();
         bool paused = false;
         const auto wall0 = std::chrono::steady_clock::now();
         auto pace_wall = wall0;
@@ -76,7 +81,7 @@ int runReplay(const ReplayOptions& o) {
         const auto seekTo = [&](TimeNs target) {
             if (target < now_log()) {
                 replay.restart();
-                builder = std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine());
+                builder = makeBuilder();
             }
             replay.runUntil(target);
             pace_wall = std::chrono::steady_clock::now();
@@ -90,11 +95,14 @@ int runReplay(const ReplayOptions& o) {
             rv.t_end_s = toSeconds(replay.lastTime());
             rv.speed = speed;
             rv.paused = paused;
+            if (!builder) return;
             builder->setReplay(rv);
             link.publish(builder->build(force_gaps));
         };
         while (!link.stopRequested()) {
-            for (auto& c : applyCommonCommands(link.commands(), replay.pipeline().engine(), *builder, export_dir)) {
+            std::vector<engine::UiCommand> commands;
+            if (builder) commands = applyCommonCommands(link.commands(), replay.pipeline().engine(), *builder, export_dir);
+            for (auto& c : commands) {
                 using Kind = engine::UiCommand::Kind;
                 if (c.kind == Kind::kReplayPause) paused = true;
                 if (c.kind == Kind::kReplayPlay) {

@@ -16,6 +16,7 @@
 #pragma once
 
 #include <algorithm>
+#include <atomic>
 #include <cstddef>
 #include <cstdint>
 #include <functional>
@@ -53,15 +54,24 @@ struct Chunked {
             if (c)
                 for (const T& v : *c) f(v);
     }
-    // Appends one element, copying only the last chunk (producer helper; chunk_size >= 1).
+    // Appends one element (producer helper; chunk_size >= 1): in place while no snapshot shares the
+    // last chunk, else into a copy of it, so a snapshot never sees a chunk change.
     void append(const T& value, std::size_t chunk_size = 4096) {
         if (chunks.empty() || !chunks.back() || chunks.back()->size() >= chunk_size) {
             auto fresh = std::make_shared<std::vector<T>>();
             fresh->reserve(chunk_size);
             fresh->push_back(value);
             chunks.push_back(std::move(fresh));
+        } else if (chunks.back().use_count() == 1) {
+            // No published snapshot shares the last chunk: append in place. The chunk was made
+            // non-const by this producer, so the const_cast is sound; the fence orders our write
+            // after the release of any reader's last reference.
+            std::atomic_thread_fence(std::memory_order_acquire);
+            const_cast<std::vector<T>&>(*chunks.back()).push_back(value);
         } else {
-            auto copy = std::make_shared<std::vector<T>>(*chunks.back());
+            auto copy = std::make_shared<std::vector<T>>();
+            copy->reserve(chunk_size);
+            copy->assign(chunks.back()->begin(), chunks.back()->end());
             copy->push_back(value);
             chunks.back() = std::move(copy);
         }
