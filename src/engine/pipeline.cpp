@@ -4,15 +4,17 @@
 #include <cmath>
 #include <variant>
 
+#include "checks/check_set.hpp"
+
 namespace sg::engine {
 
 namespace {
 
 // GGA-style quality from a GNS mode string (NMEA 0183 v4: N no fix, A autonomous, D differential,
-// P precise, R RTK fixed, F RTK float, E estimated, M manual, S simulator), best letter wins.
+// P precise, R RTK fixed, F RTK float, E estimated, M manual, S simulator): the best letter, by
+// the same ranking the fix_quality check uses.
 int qualityFromGnsMode(const std::string& mode) {
     int best = 0;
-    const auto rank = [](int q) { return q == 4 ? 6 : q == 5 ? 5 : q == 2 ? 4 : q == 1 ? 3 : q == 6 ? 2 : q == 0 ? 0 : 1; };
     for (char c : mode) {
         int q = 0;
         switch (c) {
@@ -23,7 +25,7 @@ int qualityFromGnsMode(const std::string& mode) {
         case 'E': q = 6; break;
         default: q = 0; break;
         }
-        if (rank(q) > rank(best)) best = q;
+        if (checks::fixQualityRank(q) < checks::fixQualityRank(best)) best = q;
     }
     return best;
 }

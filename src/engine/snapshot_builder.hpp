@@ -57,8 +57,7 @@ private:
     Chunked<PointEN> m_ref_track;
     std::optional<PointEN> m_ref_last;
     std::map<std::string, std::shared_ptr<Series>> m_series;  // mutable while building
-    double m_last_dev_t = 0.0, m_last_speed_t = 0.0, m_last_grad_t = 0.0;
-    std::map<int, double> m_last_field_t;
+    double m_last_dev_t = 0.0;
     // Profiles: per run id, per sensor: along-track distance and field.
     struct ProfileHistory {
         std::map<int, std::vector<float>> along, field;

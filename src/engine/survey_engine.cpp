@@ -333,6 +333,7 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
     std::optional<double> alt, noise, quality;
     const SensorState* port_most = nullptr;
     const SensorState* stbd_most = nullptr;
+    double port_cross = 0.0, stbd_cross = 0.0;
     for (std::size_t i = 0; i < m_sensors.size(); ++i) {
         const auto& s = m_sensors[i];
         if (s.samples == 0) continue;
@@ -342,8 +343,14 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
         if (m_noise[i].differences() >= needed) noise = std::max(noise.value_or(0.0), s.noise_nT);
         if (s.quality) quality = std::min(quality.value_or(1e9), *s.quality);
         const double cross = m_cfg.nav.sensors[i].cross_m;
-        if (!port_most || cross < m_cfg.nav.sensors[m_sensor_slot[port_most->index]].cross_m) port_most = &s;
-        if (!stbd_most || cross > m_cfg.nav.sensors[m_sensor_slot[stbd_most->index]].cross_m) stbd_most = &s;
+        if (!port_most || cross < port_cross) {
+            port_most = &s;
+            port_cross = cross;
+        }
+        if (!stbd_most || cross > stbd_cross) {
+            stbd_most = &s;
+            stbd_cross = cross;
+        }
     }
     m_checks.update("altitude", t_ns, alt);
     m_checks.update("noise", t_ns, noise);
