@@ -150,6 +150,8 @@ void BM_Memory20kmSurvey(benchmark::State& state) {
         state.PauseTiming();
         const auto touched = r.touchedCells();
         state.counters["tiles"] = static_cast<double>(r.tileCount());
+        state.counters["blocks"] = static_cast<double>(r.blockCount());
+        state.counters["run_planes"] = static_cast<double>(r.runPlaneCount());
         state.counters["touched_cells"] = static_cast<double>(touched);
         state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
         state.counters["rss_MiB"] = static_cast<double>(rss1 - rss0) / 1024.0;
@@ -171,6 +173,8 @@ void BM_MemoryContiguousSurvey(benchmark::State& state) {
         state.PauseTiming();
         const auto touched = r.touchedCells();
         state.counters["tiles"] = static_cast<double>(r.tileCount());
+        state.counters["blocks"] = static_cast<double>(r.blockCount());
+        state.counters["run_planes"] = static_cast<double>(r.runPlaneCount());
         state.counters["touched_cells"] = static_cast<double>(touched);
         state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
         state.counters["est_B_per_touched"] = static_cast<double>(r.memoryBytes()) / static_cast<double>(touched);

@@ -1,25 +1,33 @@
 // The coverage raster: the survey area in the survey CRS, cut into square tiles of kTileCells x
-// kTileCells cells, a tile allocated only where a swath passes (hash map tile index -> tile), so
-// memory grows with the surveyed strip and not with the bounding box.
+// kTileCells cells, a tile allocated only where a swath passes (open-addressing hash map tile
+// index -> tile), so memory grows with the surveyed strip and not with the bounding box. A tile is
+// itself 4 x 4 blocks of 8 x 8 cells, and a block is allocated only when a swath paints one of its
+// cells, so an isolated swath costs blocks along its edges, not whole tiles.
 //
 // Each cell keeps the best detection margin achieved over it (peak anomaly / threshold of the
 // configured target class, the smallest one the survey must find) and the line run that achieved
-// it, in 1.5 bytes per allocated cell (see docs/coverage.md):
+// it (see docs/coverage.md, "Memory"):
 //   - margin: 8 bits, code q = floor(16 * margin) clamped to 0..255 (steps of 1/16, rounded DOWN so
 //     a cell is never reported better than computed; saturates at 255/16 = 15.94). Code 0 means
 //     "never touched or margin below 1/16". A cell is COVERED when q >= 16 (margin >= 1).
-//   - run: 4 bits, an index into the tile's palette of at most 14 run ids (index 0: no run,
-//     index 15: palette overflow, run not recorded). The earliest run reaching the best margin
-//     keeps the cell (ties do not move it), so the result does not depend on tile visit order.
-// Each tile carries the raster generation at its last change: the screen re-uploads only tiles
-// changed since the generation it last saw.
+//   - run: a 4-bit index into the tile's palette of at most 14 run ids (index 0: no run, index
+//     15: palette overflow, run not recorded). A block whose painted cells all hold the same index
+//     keeps that one index; the first cell that takes another index gives the block a plane of
+//     64 4-bit indices. An untouched cell (code 0) has no run. The earliest run reaching the best
+//     margin keeps the cell (ties do not move it), so the result does not depend on tile visit
+//     order.
+// Blocks, tiles and run planes live in chunked pools (no per-block allocation, indices stay valid
+// when the pools grow). Each tile carries the raster generation at its last change: the screen
+// re-uploads only tiles changed since the generation it last saw.
 #pragma once
 
+#include <algorithm>
 #include <array>
 #include <cstdint>
 #include <functional>
 #include <memory>
-#include <unordered_map>
+#include <span>
+#include <stdexcept>
 #include <vector>
 
 #include "coverage/geometry.hpp"
@@ -29,6 +37,11 @@ namespace sg::coverage {
 inline constexpr int kTileShift = 5;
 inline constexpr int kTileCells = 1 << kTileShift;  // 32 cells per tile side
 inline constexpr int kCellsPerTile = kTileCells * kTileCells;
+inline constexpr int kBlockShift = 3;
+inline constexpr int kBlockCells = 1 << kBlockShift;  // 8 cells per block side
+inline constexpr int kCellsPerBlock = kBlockCells * kBlockCells;
+inline constexpr int kBlocksPerSide = kTileCells / kBlockCells;  // 4
+inline constexpr int kBlocksPerTile = kBlocksPerSide * kBlocksPerSide;
 inline constexpr int kPaletteSize = 16;              // 4-bit run index
 inline constexpr int kRunNone = -1;                  // cell not covered by any run
 inline constexpr int kRunOverflow = -2;              // tile palette was full: run not recorded
@@ -38,17 +51,19 @@ inline constexpr std::uint8_t kCoveredCode = 16;     // margin code of margin 1.
 std::uint8_t marginCode(double margin);
 double marginFromCode(std::uint8_t code);
 
-struct CoverageTile {
-    std::array<std::uint8_t, kCellsPerTile> margin{};       // margin codes, row-major (row = north)
-    std::array<std::uint8_t, kCellsPerTile / 2> run_nibble{}; // two 4-bit palette indices per byte
-    std::array<std::int32_t, kPaletteSize> palette{};       // [0] unused (none), [15] overflow
-    std::uint8_t palette_used = 1;                          // next free palette slot
-    std::uint64_t generation = 0;                           // raster generation at last change
+// 8 x 8 cells: margin codes row-major (row = north), and the run index of the whole block or the
+// index of its run plane.
+struct CoverageBlock {
+    static constexpr std::uint32_t kPlaneBit = 0x80000000U;
+    std::array<std::uint8_t, kCellsPerBlock> margin{};
+    // kPlaneBit clear: low 4 bits = the palette index of every painted cell of the block.
+    // kPlaneBit set: the other bits = index of the block's run plane (one 4-bit index per cell).
+    std::uint32_t runs = 0;
+};
 
-    int runIndexAt(int cell) const {
-        return (run_nibble[static_cast<std::size_t>(cell >> 1)] >> ((cell & 1) * 4)) & 0xF;
-    }
-    int runAt(int cell) const;
+// One 4-bit palette index per cell of a block, two per byte (low nibble = even cell).
+struct RunPlane {
+    std::array<std::uint8_t, kCellsPerBlock / 2> nibble{};
 };
 
 // Tile index packed into 64 bits: (tile_x, tile_y) as two int32.
@@ -59,6 +74,66 @@ inline TileKey tileKey(std::int32_t tx, std::int32_t ty) {
 }
 inline std::int32_t tileX(TileKey k) { return static_cast<std::int32_t>(k >> 32); }
 inline std::int32_t tileY(TileKey k) { return static_cast<std::int32_t>(k & 0xFFFFFFFFU); }
+
+// 32 x 32 cells. Cell index c = row * kTileCells + col (row = north); it lies in block
+// (row / 8) * 4 + col / 8 at (row % 8) * 8 + col % 8.
+struct CoverageTile {
+    TileKey key = 0;
+    std::uint64_t generation = 0;  // raster generation at last change
+    // 1 + index of the block in the raster's block pool; 0: no block (every cell untouched).
+    std::array<std::uint32_t, kBlocksPerTile> block{};
+    std::array<std::int32_t, kPaletteSize - 2> palette{};  // run ids of palette indices 1..14
+    std::uint8_t palette_used = 1;                         // next free palette index
+
+    // Run id of palette index `idx` (0..15).
+    int runOfIndex(int idx) const {
+        if (idx == 0) return kRunNone;
+        if (idx == kPaletteSize - 1) return kRunOverflow;
+        return palette[static_cast<std::size_t>(idx - 1)];
+    }
+};
+
+// Fixed-size chunks of default-constructed T, addressed by a 32-bit index: no per-element
+// allocation, no moves when growing (indices and references stay valid), at most one partly used
+// chunk.
+template <class T, int kChunkShift>
+class ChunkPool {
+public:
+    static constexpr std::uint32_t kChunk = 1U << kChunkShift;
+    ChunkPool() = default;
+    ChunkPool(const ChunkPool& other) : m_size(other.m_size) {
+        m_chunks.reserve(other.m_chunks.size());
+        for (const auto& c : other.m_chunks) {
+            auto copy = std::make_unique<T[]>(kChunk);
+            std::copy(c.get(), c.get() + kChunk, copy.get());
+            m_chunks.push_back(std::move(copy));
+        }
+    }
+    ChunkPool& operator=(const ChunkPool& other) {
+        if (this != &other) *this = ChunkPool(other);
+        return *this;
+    }
+    ChunkPool(ChunkPool&&) noexcept = default;
+    ChunkPool& operator=(ChunkPool&&) noexcept = default;
+    ~ChunkPool() = default;
+
+    // Appends a default T and returns its index.
+    std::uint32_t add();
+    T& operator[](std::uint32_t i) { return m_chunks[i >> kChunkShift][i & (kChunk - 1)]; }
+    const T& operator[](std::uint32_t i) const { return m_chunks[i >> kChunkShift][i & (kChunk - 1)]; }
+    std::uint32_t size() const { return m_size; }
+    // Heap bytes: whole chunks (allocated and zeroed at once) with their allocator header, and
+    // the chunk pointer array.
+    std::size_t bytes() const {
+        return m_chunks.size() * (sizeof(T) * kChunk + kMallocHeader) +
+               m_chunks.capacity() * sizeof(std::unique_ptr<T[]>);
+    }
+    static constexpr std::size_t kMallocHeader = 16;  // glibc chunk header on 64-bit
+
+private:
+    std::vector<std::unique_ptr<T[]>> m_chunks;
+    std::uint32_t m_size = 0;
+};
 
 // The margin profile over one swept quadrilateral (see docs/coverage.md, "Margin across the
 // swath"): mass-rule shape M(u) = M0 * (1 + k u^2)^(-3/2), u = cross-track offset / half-width of
@@ -74,11 +149,6 @@ class CoverageRaster {
 public:
     // cell_size_m in (0, 1000]; origin: any point near the survey (keeps cell indices small).
     explicit CoverageRaster(double cell_size_m = 0.5, Point origin = {});
-    CoverageRaster(const CoverageRaster& other);
-    CoverageRaster& operator=(const CoverageRaster& other);
-    CoverageRaster(CoverageRaster&&) noexcept = default;
-    CoverageRaster& operator=(CoverageRaster&&) noexcept = default;
-    ~CoverageRaster() = default;
 
     double cellSize() const { return m_cell_m; }
     Point origin() const { return m_origin; }
@@ -105,9 +175,23 @@ public:
 
     const CoverageTile* tile(std::int32_t tx, std::int32_t ty) const;
     std::size_t tileCount() const { return m_tiles.size(); }
+    // Block b (0..15) of a tile of this raster, nullptr when not allocated (all cells untouched).
+    const CoverageBlock* block(const CoverageTile& t, int b) const {
+        const std::uint32_t slot = t.block[static_cast<std::size_t>(b)];
+        return slot == 0 ? nullptr : &m_blocks[slot - 1];
+    }
+    // Margin codes / run ids of a tile of this raster, row-major (index = row * 32 + col).
+    void tileCodes(const CoverageTile& t, std::span<std::uint8_t, kCellsPerTile> out) const;
+    int runAt(const CoverageTile& t, int cell) const;
     // Every tile, in no particular order (use sortedTileKeys() for a stable order).
     void forEachTile(const std::function<void(TileKey, const CoverageTile&)>& fn) const;
     std::vector<TileKey> sortedTileKeys() const;
+
+    // Walks cells [i0, i1) of row j in pieces that lie in one block: fn(begin, end, codes) with
+    // codes[k] the margin code of cell begin + k, or codes == nullptr when no swath touched any
+    // cell of the piece (all codes 0). For gap and corridor scans.
+    template <class F>
+    void forEachRowPiece(std::int64_t j, std::int64_t i0, std::int64_t i1, F&& fn) const;
 
     // Generation: incremented by every paint; tiles changed since `since` (for the screen).
     std::uint64_t generation() const { return m_generation; }
@@ -116,7 +200,11 @@ public:
     // Cells with code > 0 and cells with margin >= 1, over the whole raster.
     std::uint64_t touchedCells() const;
     std::uint64_t coveredCells() const;
-    // Bytes held by tiles, palette and the hash map (an estimate of the heap in use).
+    // Allocated blocks and run planes (for the memory benchmark).
+    std::size_t blockCount() const { return m_blocks.size(); }
+    std::size_t runPlaneCount() const { return m_planes.size(); }
+    // Heap bytes held by the pools and the hash map, counted from their capacities (what the
+    // allocator handed out), plus the object itself.
     std::size_t memoryBytes() const;
     // Tiles whose run palette overflowed at least once (cells painted with kRunOverflow).
     std::uint64_t paletteOverflows() const { return m_palette_overflows; }
@@ -126,18 +214,73 @@ public:
     std::uint64_t contentHash() const;
 
 private:
+    // Open addressing, linear probing, load <= 3/4: tile key -> 1 + tile index (0 = empty slot).
+    class TileIndex {
+    public:
+        std::uint32_t find(TileKey key) const;
+        void insert(TileKey key, std::uint32_t value);  // key not present
+        std::size_t bytes() const {
+            return m_keys.capacity() * sizeof(TileKey) + m_values.capacity() * sizeof(std::uint32_t) +
+                   (m_keys.capacity() > 0 ? 2 * ChunkPool<int, 0>::kMallocHeader : 0);
+        }
+
+    private:
+        void grow();
+        std::vector<TileKey> m_keys;
+        std::vector<std::uint32_t> m_values;
+        std::size_t m_count = 0;
+    };
+
     CoverageTile& tileFor(std::int32_t tx, std::int32_t ty);
     int paletteIndex(CoverageTile& t, int run);
+    void setRuns(CoverageBlock& b, int first_cell, unsigned mask, int pal);
 
     double m_cell_m;
     double m_inv_cell;
     Point m_origin;
-    std::unordered_map<TileKey, std::unique_ptr<CoverageTile>> m_tiles;
+    TileIndex m_index;
+    ChunkPool<CoverageTile, 8> m_tiles;     // 256 tiles (36 KiB) per chunk
+    ChunkPool<CoverageBlock, 9> m_blocks;   // 512 blocks (34 KiB) per chunk
+    ChunkPool<RunPlane, 10> m_planes;       // 1024 planes (32 KiB) per chunk
     std::uint64_t m_generation = 0;
     std::uint64_t m_palette_overflows = 0;
-    // Last tile looked up by paintQuad (spans mostly stay in one tile).
+    // Last tile looked up by paintQuad (spans mostly stay in one tile): key and 1 + index.
     TileKey m_last_key = 0;
-    CoverageTile* m_last_tile = nullptr;
+    std::uint32_t m_last_tile = 0;
 };
+
+template <class T, int kChunkShift>
+std::uint32_t ChunkPool<T, kChunkShift>::add() {
+    if (m_size == 0xFFFFFFFFU) throw std::length_error("coverage raster: pool index overflow");
+    if ((m_size & (kChunk - 1)) == 0 && (m_size >> kChunkShift) == m_chunks.size()) {
+        m_chunks.push_back(std::make_unique<T[]>(kChunk));
+    }
+    return m_size++;
+}
+
+template <class F>
+void CoverageRaster::forEachRowPiece(std::int64_t j, std::int64_t i0, std::int64_t i1, F&& fn) const {
+    const std::int32_t ty = static_cast<std::int32_t>(j >> kTileShift);
+    const int brow = static_cast<int>((j >> kBlockShift) & (kBlocksPerSide - 1)) * kBlocksPerSide;
+    const int row_off = static_cast<int>(j & (kBlockCells - 1)) * kBlockCells;
+    std::int64_t i = i0;
+    while (i < i1) {
+        const std::int32_t tx = static_cast<std::int32_t>(i >> kTileShift);
+        const std::int64_t tile_end = std::min(i1, (static_cast<std::int64_t>(tx) + 1) << kTileShift);
+        const CoverageTile* t = tile(tx, ty);
+        if (t == nullptr) {
+            fn(i, tile_end, static_cast<const std::uint8_t*>(nullptr));
+            i = tile_end;
+            continue;
+        }
+        while (i < tile_end) {
+            const std::int64_t end = std::min(tile_end, (i | (kBlockCells - 1)) + 1);
+            const int b = brow + static_cast<int>((i >> kBlockShift) & (kBlocksPerSide - 1));
+            const CoverageBlock* blk = block(*t, b);
+            fn(i, end, blk == nullptr ? nullptr : blk->margin.data() + row_off + (i & (kBlockCells - 1)));
+            i = end;
+        }
+    }
+}
 
 }  // namespace sg::coverage

@@ -70,8 +70,6 @@ GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const
         const std::size_t row_begin = runs.size();
         const double yc = org.n_m + (static_cast<double>(j) + 0.5) * cell;
         rowCrossings(area, yc, xs);
-        const std::int32_t ty = static_cast<std::int32_t>(j >> kTileShift);
-        const int row_base = static_cast<int>((j & (kTileCells - 1)) << kTileShift);
         auto emit = [&](std::int64_t a, std::int64_t e) {
             if (runs.size() > row_begin && runs.back().i1 == a) {
                 runs.back().i1 = e;
@@ -84,25 +82,20 @@ GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const
             const std::int64_t i_end =
                 static_cast<std::int64_t>(std::ceil((xs[s + 1] - org.e_m) / cell - 0.5));
             rep.area_cells += std::max<std::int64_t>(0, i_end - i);
-            while (i < i_end) {
-                const std::int32_t tx = static_cast<std::int32_t>(i >> kTileShift);
-                const std::int64_t seg_end =
-                    std::min(i_end, (static_cast<std::int64_t>(tx) + 1) << kTileShift);
-                const CoverageTile* t = raster.tile(tx, ty);
-                if (t == nullptr) {
-                    emit(i, seg_end);
-                    i = seg_end;
-                    continue;
+            // Piece by piece: a piece no swath touched is one uncovered run without looking at cells.
+            raster.forEachRowPiece(j, i, i_end, [&](std::int64_t a, std::int64_t e, const std::uint8_t* codes) {
+                if (codes == nullptr) {
+                    emit(a, e);
+                    return;
                 }
-                for (; i < seg_end; ++i) {
-                    const auto q = t->margin[static_cast<std::size_t>(row_base + (i & (kTileCells - 1)))];
-                    if (q >= kCoveredCode) {
+                for (std::int64_t c = a; c < e; ++c) {
+                    if (codes[c - a] >= kCoveredCode) {
                         ++rep.covered_cells;
                     } else {
-                        emit(i, i + 1);
+                        emit(c, c + 1);
                     }
                 }
-            }
+            });
         }
         // 8-connectivity with the previous row: [a0,a1) and [b0,b1) touch when a0 <= b1 && b0 <= a1.
         std::size_t p = prev_begin;

@@ -167,21 +167,11 @@ double corridorCoveragePercent(const CoverageRaster& raster, const PlanLine& lin
             const auto i0 = static_cast<std::int64_t>(std::ceil((xs[s] - org.e_m) / cell - 0.5));
             const auto i1 = static_cast<std::int64_t>(std::ceil((xs[s + 1] - org.e_m) / cell - 0.5));
             total += std::max<std::int64_t>(0, i1 - i0);
-            // Walk the span tile by tile: an absent tile is uncovered without looking at cells.
-            const std::int32_t ty = static_cast<std::int32_t>(j >> kTileShift);
-            const int row_base = static_cast<int>((j & (kTileCells - 1)) << kTileShift);
-            for (std::int64_t i = i0; i < i1;) {
-                const std::int32_t tx = static_cast<std::int32_t>(i >> kTileShift);
-                const std::int64_t seg_end = std::min(i1, (static_cast<std::int64_t>(tx) + 1) << kTileShift);
-                if (const CoverageTile* t = raster.tile(tx, ty)) {
-                    for (std::int64_t k = i; k < seg_end; ++k) {
-                        if (t->margin[static_cast<std::size_t>(row_base + (k & (kTileCells - 1)))] >= kCoveredCode) {
-                            ++covered;
-                        }
-                    }
-                }
-                i = seg_end;
-            }
+            // Walk the span piece by piece: an untouched piece is uncovered without looking at cells.
+            raster.forEachRowPiece(j, i0, i1, [&](std::int64_t a, std::int64_t e, const std::uint8_t* codes) {
+                if (codes == nullptr) return;
+                for (std::int64_t k = a; k < e; ++k) covered += codes[k - a] >= kCoveredCode ? 1 : 0;
+            });
         }
     }
     return total > 0 ? 100.0 * static_cast<double>(covered) / static_cast<double>(total) : 0.0;

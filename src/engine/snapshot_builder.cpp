@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <span>
 
 #include <fmt/format.h>
 
@@ -130,14 +131,12 @@ void SnapshotBuilder::updateTiles() {
         v.origin_n = c0.n_m - cell / 2;
         v.generation = tile->generation;
         auto q = std::make_shared<std::vector<std::uint8_t>>(coverage::kCellsPerTile, 0);
-        for (int row = 0; row < coverage::kTileCells; ++row)
-            for (int col = 0; col < coverage::kTileCells; ++col) {
-                // Raster code = floor(16 * margin); covered from 16. Snapshot q = code - 15, so
-                // margin = 1 + (q - 1) / 16 (MarginScale lo 1, hi 1 + 254/16).
-                const auto code = raster.code(ix0 + col, iy0 + row);
-                (*q)[static_cast<std::size_t>(row * coverage::kTileCells + col)] =
-                    code >= coverage::kCoveredCode ? static_cast<std::uint8_t>(code - 15) : 0;
-            }
+        raster.tileCodes(*tile, std::span<std::uint8_t, coverage::kCellsPerTile>(q->data(), q->size()));
+        for (auto& code : *q) {
+            // Raster code = floor(16 * margin); covered from 16. Snapshot q = code - 15, so
+            // margin = 1 + (q - 1) / 16 (MarginScale lo 1, hi 1 + 254/16).
+            code = code >= coverage::kCoveredCode ? static_cast<std::uint8_t>(code - 15) : 0;
+        }
         v.margin_q = std::move(q);
         m_tiles[key] = std::move(v);
     }

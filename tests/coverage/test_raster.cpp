@@ -142,11 +142,13 @@ TEST(CoverageRaster, MergingDenseSamplesKeepsTheCoverage) {
     }
     EXPECT_GT(merged_samples, samples.size() / 2);
     std::uint64_t differ = 0;
+    std::array<std::uint8_t, kCellsPerTile> codes{};
     plain.forEachTile([&](TileKey key, const CoverageTile& t) {
+        plain.tileCodes(t, codes);
         for (int c = 0; c < kCellsPerTile; ++c) {
             const std::int64_t ix = static_cast<std::int64_t>(tileX(key)) * kTileCells + (c & (kTileCells - 1));
             const std::int64_t iy = static_cast<std::int64_t>(tileY(key)) * kTileCells + (c >> kTileShift);
-            const bool a = t.margin[static_cast<std::size_t>(c)] >= kCoveredCode;
+            const bool a = codes[static_cast<std::size_t>(c)] >= kCoveredCode;
             const bool b = merged.code(ix, iy) >= kCoveredCode;
             differ += a != b ? 1U : 0U;
         }
