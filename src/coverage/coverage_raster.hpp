@@ -93,6 +93,9 @@ struct CoverageTile {
     }
 };
 
+// Allocator header of one heap block (glibc malloc on 64-bit), counted in memoryBytes().
+inline constexpr std::size_t kMallocHeaderBytes = 16;
+
 // Fixed-size chunks of default-constructed T, addressed by a 32-bit index: no per-element
 // allocation, no moves when growing (indices and references stay valid), at most one partly used
 // chunk.
@@ -125,10 +128,9 @@ public:
     // Heap bytes: whole chunks (allocated and zeroed at once) with their allocator header, and
     // the chunk pointer array.
     std::size_t bytes() const {
-        return m_chunks.size() * (sizeof(T) * kChunk + kMallocHeader) +
+        return m_chunks.size() * (sizeof(T) * kChunk + kMallocHeaderBytes) +
                m_chunks.capacity() * sizeof(std::unique_ptr<T[]>);
     }
-    static constexpr std::size_t kMallocHeader = 16;  // glibc chunk header on 64-bit
 
 private:
     std::vector<std::unique_ptr<T[]>> m_chunks;
@@ -221,7 +223,7 @@ private:
         void insert(TileKey key, std::uint32_t value);  // key not present
         std::size_t bytes() const {
             return m_keys.capacity() * sizeof(TileKey) + m_values.capacity() * sizeof(std::uint32_t) +
-                   (m_keys.capacity() > 0 ? 2 * ChunkPool<int, 0>::kMallocHeader : 0);
+                   (m_keys.capacity() > 0 ? 2 * kMallocHeaderBytes : 0);
         }
 
     private:

@@ -287,19 +287,126 @@ TEST(CoverageRaster, DirtyGenerationsMarkOnlyChangedTiles) {
     EXPECT_TRUE(r.tilesChangedSince(g1).empty());
 }
 
-TEST(CoverageRaster, MemoryStaysNearOneAndAHalfBytesPerCell) {
-    // Adjacent lines whose swaths overlap: nearly every cell of an allocated tile is touched.
+TEST(CoverageRaster, MemoryUnderTwoBytesPerTouchedCellOverlappingLines) {
+    // Adjacent lines whose swaths overlap by 1 m: blocks along the overlaps hold two runs and get
+    // a run plane; nearly every cell of an allocated block is touched.
     CoverageRaster r(kCell, kOrigin);
     SwathPainter p(r);
     for (int k = 0; k < 20; ++k) {
-        for (const auto& s : test::samplesAlong({at(8.0 * k, 0), at(8.0 * k, 400)}, 1.0, 4.5, 4.5, 2.0F)) {
+        for (const auto& s : test::samplesAlong({at(8.0 * k, 0), at(8.0 * k, 400)}, 1.0, 4.5, 4.5, 2.0F, 0, k)) {
             p.add(s);
         }
         p.reset();
     }
+    EXPECT_GT(r.runPlaneCount(), 0U);
     const double per_touched = static_cast<double>(r.memoryBytes()) / static_cast<double>(r.touchedCells());
     EXPECT_LT(per_touched, 2.0);
-    EXPECT_GT(per_touched, 1.5);  // the cells alone take 1.5 bytes
+    EXPECT_GT(per_touched, 1.0);  // the margin codes alone take one byte per touched cell
+}
+
+TEST(CoverageRaster, MemoryUnderTwoBytesPerTouchedCellIsolatedSwaths) {
+    // Swaths 20 m wide, 200 m apart, steering +-3 m (a small copy of the 20 km benchmark): blocks
+    // follow the swath edges, whole tiles would be half empty. One run per block: no plane.
+    CoverageRaster r(kCell, kOrigin);
+    SwathPainter p(r);
+    for (int k = 0; k < 4; ++k) {
+        std::vector<Point> path;
+        for (int m = 0; m <= 2000; m += 5) {
+            path.push_back(at(13.7 + 200.0 * k + 3.0 * std::sin(2.0 * std::numbers::pi * m / 200.0), 21.3 + m));
+        }
+        for (const auto& s : test::samplesAlong(path, 1.0, 10.0, 10.0, 3.0F, 0, k)) p.add(s);
+        p.reset();
+    }
+    EXPECT_EQ(r.runPlaneCount(), 0U);
+    const double per_touched = static_cast<double>(r.memoryBytes()) / static_cast<double>(r.touchedCells());
+    EXPECT_LT(per_touched, 2.0);
+    // Touched cells: 4 swaths of 20 m x 2000 m (the wobble does not change a swept band's area).
+    EXPECT_NEAR(static_cast<double>(r.touchedCells()) * kCell * kCell, 4 * 20.0 * 2000.0, 0.01 * 4 * 20.0 * 2000.0);
+}
+
+TEST(CoverageRaster, RunsPerCellAcrossBlocksAndPlanes) {
+    // Run 4 paints a 6 m band, run 6 a stronger 2 m band inside it, run 8 a weaker band over all
+    // (no change), run 9 an equal band beside (tie: run 4 stays). Blocks holding both runs 4 and
+    // 6 need a plane; others keep one index.
+    CoverageRaster r(kCell, kOrigin);
+    paint(r, test::samplesAlong({at(0.0, 0), at(0.0, 40)}, 1.0, 3.0, 3.0, 2.0F, 0, 4));
+    EXPECT_EQ(r.runPlaneCount(), 0U);
+    const auto blocks = r.blockCount();
+    paint(r, test::samplesAlong({at(0.0, 10), at(0.0, 30)}, 1.0, 1.0, 1.0, 5.0F, 0, 6));
+    EXPECT_EQ(r.blockCount(), blocks);  // inside painted blocks only
+    EXPECT_GT(r.runPlaneCount(), 0U);
+    paint(r, test::samplesAlong({at(0.0, 0), at(0.0, 40)}, 1.0, 3.0, 3.0, 1.5F, 0, 8));
+    paint(r, test::samplesAlong({at(0.0, 0), at(0.0, 40)}, 1.0, 3.0, 3.0, 2.0F, 0, 9));
+    for (double n = 0.25; n < 40.0; n += 0.5) {
+        for (double e = -3.75; e < 4.0; e += 0.5) {
+            const auto c = r.cellAt(at(e, n));
+            // Run 6 wins only at |e| = 0.25 m: there 5 (1 + 1.924 * 0.0625)^-1.5 = 4.2 > 2; at
+            // 0.75 m its 5 (1 + 1.924 * 0.5625)^-1.5 = 1.66 is below run 4's 2 (1 + 0.587 * 0.0625)^-1.5
+            // = 1.89 (k = M0^(2/3) - 1 of each pass; see MarginProfileCentreToEdge).
+            const bool inner = n > 10.0 && n < 30.0 && std::abs(e) < 0.5;
+            const bool band = std::abs(e) < 3.0;
+            if (inner) {
+                EXPECT_EQ(c.run, 6) << e << " " << n;
+            } else if (band) {
+                EXPECT_EQ(c.run, 4) << e << " " << n;
+            } else {
+                EXPECT_EQ(c.run, kRunNone) << e << " " << n;
+                EXPECT_EQ(c.margin, 0.0);
+            }
+        }
+    }
+}
+
+TEST(CoverageRaster, RowPiecesAndTileCodesAgreeWithCellLookups) {
+    CoverageRaster r(kCell, kOrigin);
+    paint(r, test::samplesAlong({at(3.1, 2.9), at(97.3, 61.7)}, 1.0, 6.0, 4.0, 3.0F, 0, 1));
+    paint(r, test::samplesAlong({at(-20.0, 50.0), at(60.0, -5.0)}, 1.0, 3.0, 3.0, 2.0F, 0, 2));
+    std::uint64_t covered = 0;
+    for (std::int64_t j = -40; j < 160; ++j) {
+        std::int64_t next = -90;
+        r.forEachRowPiece(j, -90, 230, [&](std::int64_t a, std::int64_t e, const std::uint8_t* codes) {
+            EXPECT_EQ(a, next);  // pieces are contiguous, in order, non-empty
+            EXPECT_LT(a, e);
+            next = e;
+            for (std::int64_t i = a; i < e; ++i) {
+                const std::uint8_t q = codes == nullptr ? 0 : codes[i - a];
+                ASSERT_EQ(q, r.code(i, j)) << i << " " << j;
+                covered += q >= kCoveredCode ? 1U : 0U;
+            }
+        });
+        EXPECT_EQ(next, 230);
+    }
+    EXPECT_EQ(covered, r.coveredCells());  // the window holds both passes
+    std::array<std::uint8_t, kCellsPerTile> codes{};
+    std::size_t tiles = 0;
+    r.forEachTile([&](TileKey key, const CoverageTile& t) {
+        ++tiles;
+        EXPECT_EQ(r.tile(tileX(key), tileY(key)), &t);
+        r.tileCodes(t, codes);
+        for (int c = 0; c < kCellsPerTile; ++c) {
+            const std::int64_t ix = static_cast<std::int64_t>(tileX(key)) * kTileCells + (c & (kTileCells - 1));
+            const std::int64_t iy = static_cast<std::int64_t>(tileY(key)) * kTileCells + (c >> kTileShift);
+            ASSERT_EQ(codes[static_cast<std::size_t>(c)], r.code(ix, iy));
+            ASSERT_EQ(r.runAt(t, c), r.cell(ix, iy).run);
+        }
+    });
+    EXPECT_EQ(tiles, r.tileCount());
+}
+
+TEST(CoverageRaster, CopyIsIndependent) {
+    // flyInfill paints a copy: the original must not change.
+    CoverageRaster r(kCell, kOrigin);
+    paint(r, test::samplesAlong({at(0.25, 0), at(0.25, 100)}, 1.0, 5.0, 5.0, 2.0F, 0, 1));
+    const auto hash = r.contentHash();
+    const auto covered = r.coveredCells();
+    CoverageRaster copy = r;
+    paint(copy, test::samplesAlong({at(0.25, 50), at(0.25, 150)}, 1.0, 5.0, 5.0, 3.0F, 0, 2));
+    paint(copy, test::samplesAlong({at(300.25, 0), at(300.25, 100)}, 1.0, 5.0, 5.0, 3.0F, 0, 3));
+    EXPECT_EQ(r.contentHash(), hash);
+    EXPECT_EQ(r.coveredCells(), covered);
+    EXPECT_EQ(r.cellAt(at(0.25, 75)).run, 1);
+    EXPECT_EQ(copy.cellAt(at(0.25, 75)).run, 2);
+    EXPECT_GT(copy.coveredCells(), covered);
 }
 
 }  // namespace
