@@ -38,15 +38,18 @@ void PdfDoc::finish() {
 void PdfDoc::footer() {
     font(7.0);
     cairo_set_source_rgb(m_cr, 0.35, 0.35, 0.35);
-    text(kMargin, kHeight - kMargin + 8.0, m_footer);
+    text(kMargin, m_h - kMargin + 8.0, m_footer);
     const std::string p = fmt::format("page {}", m_page);
-    text(kWidth - kMargin - textAdvance(p), kHeight - kMargin + 8.0, p);
+    text(m_w - kMargin - textAdvance(p), m_h - kMargin + 8.0, p);
     cairo_set_source_rgb(m_cr, 0, 0, 0);
 }
 
-void PdfDoc::newPage() {
+void PdfDoc::newPage(bool landscape) {
     footer();
     cairo_show_page(m_cr);
+    m_w = landscape ? kHeight : kWidth;
+    m_h = landscape ? kWidth : kHeight;
+    cairo_pdf_surface_set_size(m_surface, m_w, m_h);
     ++m_page;
     m_y = kMargin;
 }
@@ -106,7 +109,7 @@ void PdfDoc::heading(const std::string& s) {
     text(kMargin, m_y + 13, s);
     cairo_set_line_width(m_cr, 0.6);
     cairo_move_to(m_cr, kMargin, m_y + 17);
-    cairo_line_to(m_cr, kWidth - kMargin, m_y + 17);
+    cairo_line_to(m_cr, m_w - kMargin, m_y + 17);
     cairo_stroke(m_cr);
     cairo_set_source_rgb(m_cr, 0, 0, 0);
     m_y += 24;

@@ -25,11 +25,13 @@ public:
     double y() const { return m_y; }
     void setY(double y) { m_y = y; }
     double left() const { return kMargin; }
-    double textWidth() const { return kWidth - 2 * kMargin; }
-    double bottom() const { return kHeight - kMargin - 14.0; }  // above the footer
+    double textWidth() const { return m_w - 2 * kMargin; }
+    double bottom() const { return m_h - kMargin - 14.0; }  // above the footer
+    bool landscape() const { return m_w > m_h; }
     int pages() const { return m_page; }
 
-    void newPage();
+    // Starts a new A4 page, portrait or landscape.
+    void newPage(bool landscape = false);
     // Starts a new page unless `height` more points fit below the cursor.
     void ensure(double height);
 
@@ -68,6 +70,7 @@ private:
     cairo_t* m_cr = nullptr;
     std::string m_footer;
     double m_y = kMargin;
+    double m_w = kWidth, m_h = kHeight;  // current page size
     int m_page = 1;
     bool m_finished = false;
 };

@@ -202,11 +202,13 @@ void frontPage(PdfDoc& d, const SurveySummary& s, const engine::SurveyEngine& e)
 }
 
 void mapPage(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
-    d.newPage();
+    // A site wider than tall gets a landscape page.
+    const auto window = surveyWindow(in);
+    d.newPage(window.max_e - window.min_e > 1.2 * (window.max_n - window.min_n));
     d.heading("Coverage map");
     const double legend_h = 92;
     const double h = d.bottom() - d.y() - legend_h;
-    const auto frame = fitFrame(surveyWindow(in), d.left(), d.y(), d.textWidth(), h);
+    const auto frame = fitFrame(window, d.left(), d.y(), d.textWidth(), h);
     MapOptions o;
     o.pixels_per_unit = 2.5;  // about 180 dpi
     o.line_scale = 0.8;
@@ -215,7 +217,7 @@ void mapPage(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
     const double y0 = d.y();
     drawLegend(d.cr(), d.left(), y0, 8, false);
     d.font(7.5);
-    const double tx = d.left() + 200;
+    const double tx = d.left() + (d.landscape() ? 330 : 200);
     double ty = y0 + 7;
     for (const auto& line :
          {fmt::format("Coverage {:.2f} % of the area; {} gap(s), {} small; {} infill line(s).", s.coverage_pct,
@@ -238,7 +240,7 @@ void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
     const double cell_w = (d.textWidth() - 12) / 2, cell_h = 215;
     for (std::size_t i = 0; i < gaps.size(); ++i) {
         if (i % 6 == 0) {
-            d.newPage();
+            d.newPage(false);
             d.heading(i == 0 ? "Gap details" : "Gap details (continued)");
         }
         const auto& g = *gaps[i];
@@ -266,7 +268,7 @@ void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
 }
 
 void lineTables(PdfDoc& d, const SurveySummary& s) {
-    d.newPage();
+    d.newPage(false);
     d.heading("Coverage per planned line");
     d.para(fmt::format("Corridor of each line: the line +- {:.1f} m (half the line spacing). A line flown in several "
                        "runs counts once; coverage from neighbouring lines counts too.",
@@ -295,12 +297,12 @@ void lineTables(PdfDoc& d, const SurveySummary& s) {
              {"line", 58},
              {"dir", 24},
              {"start UTC", 46},
-             {"min", 32, true},
+             {"min", 30, true},
              {"alt mean", 42, true},
              {"alt worst", 42, true},
              {"dev worst", 42, true},
-             {"noise mean nT", 56, true},
-             {"noise worst", 48, true},
+             {"noise nT", 52, true},
+             {"noise max", 52, true},
              {"cov %", 38, true},
              {"alarms", 34, true}},
             rows, 7);
@@ -421,7 +423,7 @@ void modelPage(PdfDoc& d, const SurveySummary& s) {
     d.table({{"target class", 130}, {"model", 60}, {"size", 250}, {"burial m", 60, true}}, rows);
     d.keyValue("Ambient field", fmt::format("inclination {:g} deg, declination {:g} deg, {:g} nT", det.field.inclination_deg,
                                             det.field.declination_deg, det.field.intensity_nT));
-    d.keyValue("Threshold", fmt::format("max({:g} nT, {:g} x noise); noise = fourth difference over {} samples / sqrt(70)",
+    d.keyValue("Threshold", fmt::format("max({:g} nT, {:g} x noise); noise = std of the fourth difference over {} samples / sqrt(70)",
                                         det.settings.min_anomaly_nT, det.settings.k, det.settings.noise_window));
     d.keyValue("Mass-rule constant", fmt::format("C = {:.3f} nT m3/kg", det.settings.mass_rule_C));
     d.keyValue("Sensors", fmt::format("{}", det.sensors));

@@ -61,6 +61,7 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
     engine.flushCoverage();
     s.cell_size_m = engine.raster().cellSize();
     s.raster_hash = engine.raster().contentHash();
+    s.raster_covered_cells = engine.raster().coveredCells();
     if (engine.coverage() != nullptr) {
         s.gaps = engine.gapReport();
         s.area_m2 = s.gaps.areaM2();
@@ -121,6 +122,7 @@ nlohmann::json toJson(const SurveySummary& s) {
     j["gap_count"] = s.significant_gaps;
     j["small_gap_count"] = s.small_gaps;
     j["raster_hash"] = fmt::format("{:016x}", s.raster_hash);
+    j["raster_covered_cells"] = s.raster_covered_cells;
     j["lines_processed"] = s.lines_processed;
     json gaps = json::array();
     for (const auto& g : s.gaps.gaps)

@@ -83,6 +83,7 @@ struct SurveySummary {
     std::vector<std::string> line_names;  // by plan line index
     std::vector<AlarmSummary> alarms;
     std::uint64_t raster_hash = 0;
+    std::uint64_t raster_covered_cells = 0;  // every covered cell, inside the area or not
     std::uint64_t lines_processed = 0;
     InvalidCounts invalid;
     std::string log_path;
