@@ -128,6 +128,8 @@ void frontPage(PdfDoc& d, const SurveySummary& s, const engine::SurveyEngine& e)
     d.keyValue("Coverage class", fmt::format("'{}' (the smallest target the survey must find)", s.coverage_class));
     d.keyValue("Raster cell", fmt::format("{:g} m", s.cell_size_m));
     d.keyValue("Lines processed", fmt::format("{}", s.lines_processed));
+    // Traceability: the same log and config give the same raster hash on any replay.
+    d.keyValue("Raster hash", fmt::format("{:016x} (equal on every replay of this log and config)", s.raster_hash));
     const auto now = std::chrono::system_clock::now().time_since_epoch();
     d.keyValue("Report written", utcDateTime(std::chrono::duration_cast<std::chrono::nanoseconds>(now).count()) + " UTC");
 
@@ -297,10 +299,10 @@ void lineTables(PdfDoc& d, const SurveySummary& s) {
              {"line", 58},
              {"dir", 24},
              {"start UTC", 46},
-             {"min", 30, true},
-             {"alt mean", 42, true},
-             {"alt worst", 42, true},
-             {"dev worst", 42, true},
+             {"minutes", 36, true},
+             {"alt mean", 40, true},
+             {"alt max", 40, true},
+             {"dev max", 40, true},
              {"noise nT", 52, true},
              {"noise max", 52, true},
              {"cov %", 38, true},
