@@ -167,7 +167,7 @@ int runReplay(const ReplayOptions& o) {
         std::printf("replay: %llu lines in %.2f s wall for %.0f s of survey (%.0fx real time)\n",
                     static_cast<unsigned long long>(replay.linesFed()), wall_s, log_s,
                     wall_s > 0 ? log_s / wall_s : 0.0);
-        auto summary = engine::summarise(replay.pipeline().engine(), replay.linesFed());
+        auto summary = engine::summarise(replay.pipeline().engine(), replay.linesFed(), replay.context());
         std::printf("%s", engine::toText(summary).c_str());
         std::printf("raster hash %016llx\n", static_cast<unsigned long long>(summary.raster_hash));
         return 0;
@@ -178,7 +178,7 @@ int runGaps(const ReplayOptions& o) {
     engine::LogReplay replay(o.log, configOverride(o));
     replay.runToEnd();
     auto& eng = replay.pipeline().engine();
-    auto summary = engine::summarise(eng, replay.linesFed());
+    auto summary = engine::summarise(eng, replay.linesFed(), replay.context());
     std::vector<std::string> written;
     if (!o.export_dir.empty()) written = engine::writeExports(summary, eng, o.export_dir);
     if (o.json) {

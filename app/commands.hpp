@@ -12,8 +12,9 @@ void addRecordCommand(CLI::App& app);  // cmd_record.cpp
 void addImportCommand(CLI::App& app);  // cmd_import.cpp
 void addSwathCommand(CLI::App& app);  // cmd_swath.cpp
 
-void addInspectCommand(CLI::App& app);
-void addReplayCommands(CLI::App& app);
-void addDemoCommand(CLI::App& app);  // cmd_demo.cpp: simulator -> core in one process  // cmd_replay.cpp: replay and gaps  // cmd_inspect.cpp: decode a capture file to JSON lines
+void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture file to JSON lines
+void addReplayCommands(CLI::App& app);  // cmd_replay.cpp: replay and gaps
+void addDemoCommand(CLI::App& app);     // cmd_demo.cpp: simulator -> core in one process
+void addReportCommand(CLI::App& app);   // cmd_report.cpp: the end-of-site report
 
 }  // namespace sg::app

@@ -17,6 +17,7 @@ int main(int argc, char** argv) {
     sg::app::addInspectCommand(app);
     sg::app::addReplayCommands(app);
     sg::app::addDemoCommand(app);
+    sg::app::addReportCommand(app);
 
     try {
         app.parse(argc, argv);

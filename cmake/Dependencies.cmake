@@ -10,6 +10,9 @@ find_package(spdlog REQUIRED)
 find_package(tomlplusplus REQUIRED)
 find_package(CLI11 REQUIRED)
 find_package(nlohmann_json 3.11 REQUIRED)
+# The end-of-site report: Cairo for the PDF and PNG maps, GDAL for the GeoTIFF.
+pkg_check_modules(CAIRO REQUIRED IMPORTED_TARGET cairo)
+find_package(GDAL CONFIG REQUIRED)
 
 if(SG_BUILD_TESTS)
   find_package(GTest REQUIRED)

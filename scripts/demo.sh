@@ -3,7 +3,8 @@
 # invented demo survey "Harrowmere Flats": the simulator sends every instrument to its own UDP
 # port on loopback at 20x real time, `swathguard record` acquires them into a SQLite survey log
 # (with the screen when a display exists, a status line otherwise), and at the end `swathguard
-# gaps` prints the coverage, the gap list and the infill lines and writes the exports.
+# gaps` prints the coverage, the gap list and the infill lines and writes the exports, and
+# `swathguard report` writes the end-of-site report (PDF, maps, GeoTIFF, CSV) into out/demo/report.
 # Usage: bash scripts/demo.sh [SPEED]      (SPEED: simulated seconds per wall second, default 20)
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -31,6 +32,8 @@ trap - EXIT
 
 echo
 ./build/app/swathguard gaps "$OUT/demo.sglog" --export "$OUT"
+echo
+./build/app/swathguard report "$OUT/demo.sglog" --out "$OUT/report"
 echo
 echo "demo: survey log $OUT/demo.sglog (open it with sqlite3; replay it with"
 echo "      ./build/app/swathguard replay $OUT/demo.sglog --speed 20)"

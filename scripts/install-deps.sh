@@ -10,7 +10,7 @@ pkgs=(
   libtomlplusplus-dev libcli11-dev nlohmann-json3-dev
   libimgui-dev libstb-dev libglfw3-dev libgl-dev libgl1-mesa-dev libgl1-mesa-dri libglx-mesa0
   mesa-utils xvfb xauth x11-apps imagemagick
-  socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev
+  socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev libgdal-dev fonts-dejavu-core
   clang libclang-rt-14-dev
   gpsd-clients
 )

@@ -132,6 +132,14 @@ void LineTracker::addAlarm(int run) {
     if (run >= 0 && run < static_cast<int>(m_runs.size())) ++m_runs[static_cast<std::size_t>(run)].alarms;
 }
 
+void LineTracker::addNoise(int run, double noise_nT) {
+    if (run < 0 || run >= static_cast<int>(m_runs.size())) return;
+    LineRun& r = m_runs[static_cast<std::size_t>(run)];
+    r.noise_sum_nT += noise_nT;
+    ++r.noise_samples;
+    r.worst_noise_nT = std::max(r.worst_noise_nT, noise_nT);
+}
+
 void LineTracker::refreshRun(const CoverageRaster& raster, int run) {
     if (run < 0 || run >= static_cast<int>(m_runs.size())) return;
     LineRun& r = m_runs[static_cast<std::size_t>(run)];

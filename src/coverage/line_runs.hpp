@@ -35,9 +35,15 @@ struct LineRun {
     double worst_altitude_m = 0.0;      // highest sensor altitude seen (m)
     double worst_deviation_m = 0.0;     // signed deviation of largest magnitude (m, starboard +)
     int alarms = 0;
+    double noise_sum_nT = 0.0;          // fourth-difference noise of the sensors' samples (nT)
+    std::int64_t noise_samples = 0;
+    double worst_noise_nT = 0.0;
     double corridor_covered_pct = 0.0;  // of the line +- spacing/2 corridor, at the last refresh
     double meanAltitude_m() const {
         return altitude_samples > 0 ? altitude_sum_m / static_cast<double>(altitude_samples) : 0.0;
+    }
+    double meanNoise_nT() const {
+        return noise_samples > 0 ? noise_sum_nT / static_cast<double>(noise_samples) : 0.0;
     }
 };
 
@@ -59,6 +65,8 @@ public:
 
     // Counts an alarm against run `run` (ignored for kRunNone or an unknown run).
     void addAlarm(int run);
+    // Adds one sensor sample's noise estimate (nT) to run `run`'s statistics (same rule).
+    void addNoise(int run, double noise_nT);
     // Closes the open run (end of survey).
     void closeRun(std::int64_t t_ns);
     // Recomputes corridor coverage of every run from the raster (flush the painter first).

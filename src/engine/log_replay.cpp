@@ -15,7 +15,7 @@ SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::strin
 }
 
 LogReplay::LogReplay(const std::string& log_path, const std::optional<std::string>& config_override)
-    : m_reader(log_path), m_config(configForLog(m_reader, config_override)) {
+    : m_path(log_path), m_reader(log_path), m_config(configForLog(m_reader, config_override)) {
     m_total = m_reader.rawCount();
     // First and last receive times, for the seek bar.
     {
@@ -26,6 +26,10 @@ LogReplay::LogReplay(const std::string& log_path, const std::optional<std::strin
         if (auto last = probe.store().lastRawUtc()) m_last_ns = *last;
     }
     restart();
+}
+
+LogContext LogReplay::context() {
+    return {m_path, m_reader.events(), m_first_ns, m_last_ns};
 }
 
 void LogReplay::restart() {

@@ -10,6 +10,7 @@
 
 #include "engine/pipeline.hpp"
 #include "engine/survey_config.hpp"
+#include "engine/survey_summary.hpp"
 #include "log/log_reader.hpp"
 
 namespace sg::engine {
@@ -38,6 +39,9 @@ public:
     std::int64_t totalLines() const { return m_total; }
     std::uint64_t linesFed() const { return m_fed; }
 
+    // The log's own contribution to a summary: path, events (link outages), first/last times.
+    LogContext context();
+
     Pipeline& pipeline() { return *m_pipeline; }
     const SurveyConfig& config() const { return m_config; }
     log::LogReader& reader() { return m_reader; }
@@ -45,6 +49,7 @@ public:
 private:
     void prime();
 
+    std::string m_path;
     log::LogReader m_reader;
     SurveyConfig m_config;
     std::unique_ptr<Pipeline> m_pipeline;

@@ -289,7 +289,12 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         m_last_ref_pos.reset();
     }
 
-    if (m_cov) m_cov->addSample(swathSample(s));
+    if (m_cov) {
+        m_cov->addSample(swathSample(s));
+        // Per-run noise (for the report's line table): warmed-up estimates only.
+        if (s.field_nT && m_noise[slot].differences() >= needed)
+            m_cov->lines().addNoise(m_run_of_last_sample, s.noise_nT);
+    }
 }
 
 coverage::SwathSample SurveyEngine::swathSample(const SensorState& s) const {

@@ -1,6 +1,7 @@
 // Survey summary: one computation for every report; see survey_summary.hpp.
 #include "engine/survey_summary.hpp"
 
+#include <algorithm>
 #include <filesystem>
 
 #include <fmt/format.h>
@@ -9,8 +10,45 @@
 
 namespace sg::engine {
 
-SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed) {
+namespace {
+
+// Silence checks whose alarm episodes are data outages.
+bool isSilenceCheck(const std::string& name) {
+    return name == "gnss_silence" || name == "mag_silence" || name == "altitude_lost";
+}
+
+std::vector<OutageSummary> outages(const SurveyEngine& engine, const LogContext& log) {
+    std::vector<OutageSummary> out;
+    const TimeNs end_of_log = std::max(log.last_ns, engine.clock_ns());
+    const auto duration = [&](TimeNs start, std::optional<TimeNs> end) {
+        return toSeconds(std::max<TimeNs>(0, end.value_or(end_of_log) - start));
+    };
+    for (const auto& e : log.events)
+        if (e.kind == "outage")
+            out.push_back({"link", e.source, e.start_utc_ns, e.end_utc_ns,
+                           duration(e.start_utc_ns, e.end_utc_ns), e.detail});
+    for (const auto& ep : engine.checks().episodes())
+        if (isSilenceCheck(ep.check))
+            out.push_back({ep.check, "", ep.start_ns, ep.end_ns, duration(ep.start_ns, ep.end_ns),
+                           fmt::format("peak {:.1f} s without data", ep.peak_value)});
+    std::stable_sort(out.begin(), out.end(),
+                     [](const OutageSummary& a, const OutageSummary& b) { return a.start_ns < b.start_ns; });
+    return out;
+}
+
+}  // namespace
+
+std::string lineName(const SurveySummary& s, int line) {
+    return line >= 0 && static_cast<std::size_t>(line) < s.line_names.size()
+               ? s.line_names[static_cast<std::size_t>(line)]
+               : std::string();
+}
+
+SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log) {
     SurveySummary s;
+    s.log_path = log.path;
+    s.first_ns = log.first_ns;
+    s.last_ns = log.last_ns;
     const auto& cfg = engine.config();
     s.survey_name = cfg.survey.name;
     if (engine.crs()) {
@@ -23,6 +61,7 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed) {
     engine.flushCoverage();
     s.cell_size_m = engine.raster().cellSize();
     s.raster_hash = engine.raster().contentHash();
+    s.raster_covered_cells = engine.raster().coveredCells();
     if (engine.coverage() != nullptr) {
         s.gaps = engine.gapReport();
         s.area_m2 = s.gaps.areaM2();
@@ -37,7 +76,31 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed) {
         }
         s.runs = engine.lines()->runs();
         for (const auto& l : engine.lines()->lines()) s.line_names.push_back(l.name);
+        // Corridor of each planned line: +- half the planned spacing (else the planned swath).
+        const auto* plan = engine.plan();
+        const double half = plan->line_spacing_m > 0 ? 0.5 * plan->line_spacing_m
+                                                     : std::max(0.1, engine.plannedHalfWidth_m());
+        const auto& lines = engine.lines()->lines();
+        for (std::size_t i = 0; i < lines.size(); ++i) {
+            LineCoverage lc{lines[i].name, lines[i].length_m(), half,
+                            coverage::corridorCoveragePercent(engine.raster(), lines[i], half), 0};
+            for (const auto& r : s.runs) lc.runs += r.line == static_cast<int>(i) ? 1 : 0;
+            s.line_coverage.push_back(std::move(lc));
+        }
     }
+    auto& d = s.detection;
+    d.field = cfg.detection.field;
+    d.settings = cfg.detection.detection;
+    d.targets = cfg.detection.targets;
+    d.sensors = engine.sensors().size();
+    if (const auto* plan = engine.plan()) {
+        d.line_spacing_m = plan->line_spacing_m;
+        d.planned_altitude_m = plan->planned_altitude_m;
+        d.planned_half_width_m = engine.plannedHalfWidth_m();
+        d.survey_heading_deg = plan->surveyHeadingDeg();
+    }
+    d.max_overlap_altitude_m = engine.maxOverlapAltitude_m();
+    s.outages = outages(engine, log);
     for (const auto& ep : engine.checks().episodes()) {
         const auto& c = engine.checks().check(ep.check);
         s.alarms.push_back({ep.check, c.unit(), ep.start_ns, ep.end_ns,
@@ -59,6 +122,7 @@ nlohmann::json toJson(const SurveySummary& s) {
     j["gap_count"] = s.significant_gaps;
     j["small_gap_count"] = s.small_gaps;
     j["raster_hash"] = fmt::format("{:016x}", s.raster_hash);
+    j["raster_covered_cells"] = s.raster_covered_cells;
     j["lines_processed"] = s.lines_processed;
     json gaps = json::array();
     for (const auto& g : s.gaps.gaps)
@@ -88,9 +152,7 @@ nlohmann::json toJson(const SurveySummary& s) {
                    {"error", s.infill_error}};
     json runs = json::array();
     for (const auto& r : s.runs) {
-        const std::string name = r.line >= 0 && static_cast<std::size_t>(r.line) < s.line_names.size()
-                                     ? s.line_names[static_cast<std::size_t>(r.line)]
-                                     : std::string();
+        const std::string name = lineName(s, r.line);
         runs.push_back({{"id", r.id},
                         {"line", name},
                         {"reversed", r.reversed},
@@ -100,6 +162,8 @@ nlohmann::json toJson(const SurveySummary& s) {
                         {"mean_altitude_m", r.meanAltitude_m()},
                         {"worst_altitude_m", r.worst_altitude_m},
                         {"worst_deviation_m", r.worst_deviation_m},
+                        {"mean_noise_nT", r.meanNoise_nT()},
+                        {"worst_noise_nT", r.worst_noise_nT},
                         {"alarms", r.alarms}});
     }
     j["runs"] = runs;
@@ -112,6 +176,49 @@ nlohmann::json toJson(const SurveySummary& s) {
         alarms.push_back(std::move(x));
     }
     j["alarms"] = alarms;
+    j["log"] = {{"path", s.log_path}, {"first_ns", s.first_ns}, {"last_ns", s.last_ns}};
+    json lines = json::array();
+    for (const auto& l : s.line_coverage)
+        lines.push_back({{"name", l.name},
+                         {"length_m", l.length_m},
+                         {"corridor_half_width_m", l.corridor_half_width_m},
+                         {"corridor_covered_pct", l.corridor_covered_pct},
+                         {"runs", l.runs}});
+    j["lines"] = lines;
+    json outs = json::array();
+    for (const auto& o : s.outages) {
+        json x{{"kind", o.kind}, {"source", o.source}, {"start_ns", o.start_ns},
+               {"duration_s", o.duration_s}, {"detail", o.detail}};
+        x["end_ns"] = o.end_ns ? json(*o.end_ns) : json(nullptr);
+        outs.push_back(std::move(x));
+    }
+    j["outages"] = outs;
+    const auto& d = s.detection;
+    json targets = json::array();
+    for (const auto& t : d.targets)
+        targets.push_back({{"name", t.name},
+                           {"model", detect::modelName(t.model)},
+                           {"mass_kg", t.mass_kg},
+                           {"moment_Am2", t.moment_Am2},
+                           {"radius_m", t.radius_m},
+                           {"susceptibility", t.susceptibility},
+                           {"burial_m", t.burial_m},
+                           {"orientation", detect::orientationName(t.orientation)}});
+    j["detection"] = {{"inclination_deg", d.field.inclination_deg},
+                      {"declination_deg", d.field.declination_deg},
+                      {"intensity_nT", d.field.intensity_nT},
+                      {"k", d.settings.k},
+                      {"min_anomaly_nT", d.settings.min_anomaly_nT},
+                      {"noise_window", d.settings.noise_window},
+                      {"mass_rule_C", d.settings.mass_rule_C},
+                      {"targets", targets},
+                      {"sensors", d.sensors},
+                      {"line_spacing_m", d.line_spacing_m},
+                      {"planned_altitude_m", d.planned_altitude_m},
+                      {"planned_half_width_m", d.planned_half_width_m},
+                      {"survey_heading_deg", d.survey_heading_deg}};
+    j["detection"]["max_overlap_altitude_m"] =
+        d.max_overlap_altitude_m ? json(*d.max_overlap_altitude_m) : json(nullptr);
     j["invalid_samples"] = {{"no_field", s.invalid.no_field},       {"pose", s.invalid.pose},
                             {"no_altitude", s.invalid.no_altitude}, {"noise_warmup", s.invalid.noise_warmup},
                             {"noisy", s.invalid.noisy},             {"low_quality", s.invalid.low_quality}};

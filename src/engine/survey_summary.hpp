@@ -11,6 +11,7 @@
 #include "coverage/gaps.hpp"
 #include "coverage/survey_coverage.hpp"
 #include "engine/survey_engine.hpp"
+#include "log/log_schema.hpp"
 
 namespace sg::engine {
 
@@ -22,6 +23,46 @@ struct AlarmSummary {
     std::string peak_level;
     double peak_value = 0.0;
     std::optional<TimeNs> ack_ns;
+};
+
+// A stretch of time without data: a link outage logged by the reader (port lost, reconnect) or
+// a silence the live checks raised an alarm for (GNSS, magnetometer, altitude).
+struct OutageSummary {
+    std::string kind;     // "link" (from the log's events) or the silence check's name
+    std::string source;   // input name for a link outage; empty for a check
+    TimeNs start_ns = 0;
+    std::optional<TimeNs> end_ns;  // nullopt: still open at the end of the log
+    double duration_s = 0.0;       // to end_ns, or to the end of the log when still open
+    std::string detail;
+};
+
+// Coverage of one planned line's corridor (line +- half the line spacing) at the end.
+struct LineCoverage {
+    std::string name;
+    double length_m = 0.0;
+    double corridor_half_width_m = 0.0;
+    double corridor_covered_pct = 0.0;
+    int runs = 0;  // line runs flown on it
+};
+
+// The detection model behind the coverage, as configured: what the numbers assume.
+struct DetectionSummary {
+    detect::GeomagneticField field;
+    detect::DetectionSettings settings;
+    std::vector<detect::TargetClass> targets;
+    std::size_t sensors = 0;
+    double line_spacing_m = 0.0;
+    double planned_altitude_m = 0.0;
+    double planned_half_width_m = 0.0;             // coverage class, at the planned altitude
+    std::optional<double> max_overlap_altitude_m;  // highest altitude keeping swaths overlapping
+    double survey_heading_deg = 0.0;
+};
+
+// What the log adds to the engine's state (optional: the demo and tests have no log reader).
+struct LogContext {
+    std::string path;
+    std::vector<log::EventRow> events;  // the log's events table (link outages among them)
+    TimeNs first_ns = 0, last_ns = 0;   // UTC receive times of the first and last lines
 };
 
 struct SurveySummary {
@@ -42,12 +83,20 @@ struct SurveySummary {
     std::vector<std::string> line_names;  // by plan line index
     std::vector<AlarmSummary> alarms;
     std::uint64_t raster_hash = 0;
+    std::uint64_t raster_covered_cells = 0;  // every covered cell, inside the area or not
     std::uint64_t lines_processed = 0;
     InvalidCounts invalid;
+    std::string log_path;
+    TimeNs first_ns = 0, last_ns = 0;
+    std::vector<LineCoverage> line_coverage;  // by plan line index
+    std::vector<OutageSummary> outages;       // by start time
+    DetectionSummary detection;
 };
 
 // Flushes the engine's coverage and computes everything above.
-SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed);
+SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log = {});
+// The name of plan line `line` (empty when out of range).
+std::string lineName(const SurveySummary& s, int line);
 
 nlohmann::json toJson(const SurveySummary& s);
 // A few lines for the terminal: coverage, gaps, infill.

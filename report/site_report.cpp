@@ -1,0 +1,574 @@
+// The end-of-site report; see site_report.hpp.
+#include "report/site_report.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <ctime>
+#include <filesystem>
+#include <map>
+
+#include <fmt/format.h>
+
+#include "coverage/exports.hpp"
+#include "report/map_render.hpp"
+#include "report/pdf_doc.hpp"
+
+namespace sg::report {
+
+namespace {
+
+using engine::SurveySummary;
+
+std::string csvField(const std::string& v) {
+    if (v.find_first_of(",\"\n\r") == std::string::npos) return v;
+    std::string out = "\"";
+    for (char c : v) {
+        if (c == '"') out += '"';
+        out += c;
+    }
+    return out + "\"";
+}
+
+std::string csvRow(const std::vector<std::string>& fields) {
+    std::string out;
+    for (std::size_t i = 0; i < fields.size(); ++i) {
+        if (i > 0) out += ',';
+        out += csvField(fields[i]);
+    }
+    return out + "\r\n";
+}
+
+std::string optTime(const std::optional<TimeNs>& t) { return t ? utcDateTime(*t) : std::string(); }
+
+std::string duration(double s) {
+    if (s < 60) return fmt::format("{:.0f} s", s);
+    if (s < 3600) return fmt::format("{:.1f} min", s / 60);
+    return fmt::format("{:.2f} h", s / 3600);
+}
+
+std::string area(double m2) {
+    return m2 >= 1e6 ? fmt::format("{:.3f} km2", m2 / 1e6) : fmt::format("{:.0f} m2", m2);
+}
+
+double planLength_m(const engine::SurveyEngine& e) {
+    double sum = 0;
+    if (const auto* p = e.plan())
+        for (const auto& l : p->lines) sum += l.length_m();
+    return sum;
+}
+
+// Infill lines that cover each gap, by gap id.
+std::map<int, std::vector<std::string>> closers(const SurveySummary& s) {
+    std::map<int, std::vector<std::string>> out;
+    for (const auto& l : s.infill.plan.lines)
+        for (int g : l.gap_ids) out[g].push_back(l.name);
+    return out;
+}
+
+std::string join(const std::vector<std::string>& v, const char* sep = " ") {
+    std::string out;
+    for (const auto& x : v) out += (out.empty() ? "" : sep) + x;
+    return out;
+}
+
+std::string targetSize(const detect::TargetClass& t) {
+    switch (t.model) {
+    case detect::ModelKind::MassRule: return fmt::format("{:g} kg of steel", t.mass_kg);
+    case detect::ModelKind::Dipole: return fmt::format("moment {:g} A m2, {}", t.moment_Am2, detect::orientationName(t.orientation));
+    case detect::ModelKind::Sphere:
+        return fmt::format("radius {:g} m, susceptibility {:g}, {}", t.radius_m, t.susceptibility,
+                           detect::orientationName(t.orientation));
+    }
+    return "";
+}
+
+const char* modelSource(detect::ModelKind k) {
+    switch (k) {
+    case detect::ModelKind::MassRule:
+        return "empirical mass rule A = C W / r^3, C set so one short ton gives about 1 nT at 100 ft (common practice)";
+    case detect::ModelKind::Dipole: return "point dipole, total-field anomaly (Blakely 1995)";
+    case detect::ModelKind::Sphere: return "induced sphere with demagnetisation (Blakely 1995)";
+    }
+    return "";
+}
+
+struct AlarmGroup {
+    int episodes = 0, alarm_level = 0, open = 0;
+    double total_s = 0, worst = 0;
+    std::string unit;
+};
+
+std::map<std::string, AlarmGroup> groupAlarms(const SurveySummary& s) {
+    std::map<std::string, AlarmGroup> g;
+    for (const auto& a : s.alarms) {
+        auto& x = g[a.check];
+        ++x.episodes;
+        if (a.peak_level == "alarm") ++x.alarm_level;
+        if (!a.end_ns) ++x.open;
+        x.total_s += toSeconds(a.end_ns.value_or(std::max(s.last_ns, a.start_ns)) - a.start_ns);
+        x.worst = x.episodes == 1 ? a.peak_value : std::max(x.worst, a.peak_value);
+        x.unit = a.unit;
+    }
+    return g;
+}
+
+// ------------------------------------------------------------------------------------------------
+// PDF pages
+
+void frontPage(PdfDoc& d, const SurveySummary& s, const engine::SurveyEngine& e) {
+    d.title("Site coverage report");
+    d.para(s.survey_name.empty() ? "(unnamed survey)" : s.survey_name, 12, true);
+    d.space(4);
+    d.keyValue("Survey log", s.log_path.empty() ? "(in-process run, no log)" : s.log_path);
+    if (s.last_ns > s.first_ns)
+        d.keyValue("Period (UTC)", fmt::format("{} to {} ({})", utcDateTime(s.first_ns), utcDateTime(s.last_ns),
+                                               duration(toSeconds(s.last_ns - s.first_ns))));
+    d.keyValue("Survey CRS", fmt::format("EPSG:{} {}", s.epsg, s.crs_name));
+    d.keyValue("Coverage class", fmt::format("'{}' (the smallest target the survey must find)", s.coverage_class));
+    d.keyValue("Raster cell", fmt::format("{:g} m", s.cell_size_m));
+    d.keyValue("Lines processed", fmt::format("{}", s.lines_processed));
+    // Traceability: the same log and config give the same raster hash on any replay.
+    d.keyValue("Raster hash", fmt::format("{:016x} (equal on every replay of this log and config)", s.raster_hash));
+    const auto now = std::chrono::system_clock::now().time_since_epoch();
+    d.keyValue("Report written", utcDateTime(std::chrono::duration_cast<std::chrono::nanoseconds>(now).count()) + " UTC");
+
+    // Headline box.
+    d.space(8);
+    const double box_y = d.y();
+    auto* cr = d.cr();
+    cairo_set_source_rgb(cr, 0.93, 0.95, 0.96);
+    cairo_rectangle(cr, d.left(), box_y, d.textWidth(), 100);
+    cairo_fill(cr);
+    cairo_set_source_rgb(cr, 0, 0, 0);
+    d.setY(box_y + 6);
+    d.para(fmt::format("Coverage of the area: {:.2f} % ({} covered of {})", s.coverage_pct, area(s.covered_m2),
+                       area(s.area_m2)),
+           12, true);
+    d.para(fmt::format("Gaps: {} (plus {} narrower than {:g} m, listed apart)", s.significant_gaps, s.small_gaps,
+                       s.gaps.min_width_m),
+           10.5, true);
+    if (s.infill_error.empty())
+        d.para(fmt::format("Infill: {} line(s), {:.0f} m in all; gaps left after flying them as planned: {}",
+                           s.infill.plan.lines.size(), s.infill.plan.totalLength_m(), s.infill.after.significantCount()),
+               10.5, true);
+    else
+        d.para("Infill: not planned: " + s.infill_error, 10.5, true);
+    int open = 0;
+    for (const auto& a : s.alarms) open += a.end_ns ? 0 : 1;
+    d.para(fmt::format("Alarm episodes: {} ({} still open at the end of the log); data outages: {}", s.alarms.size(),
+                       open, s.outages.size()),
+           10.5);
+    d.setY(std::max(d.y(), box_y + 100) + 8);
+
+    d.heading("Plan");
+    const auto& det = s.detection;
+    d.keyValue("Area of interest", area(s.area_m2) + (e.plan() ? "  (" + e.plan()->area_file + ")" : ""));
+    d.keyValue("Planned lines", fmt::format("{} lines, {:.2f} km{}", s.line_names.size(), planLength_m(e) / 1000,
+                                            e.plan() && !e.plan()->lines_file.empty() ? "  (" + e.plan()->lines_file + ")" : ""));
+    d.keyValue("Line spacing", det.line_spacing_m > 0 ? fmt::format("{:g} m", det.line_spacing_m) : "not set");
+    d.keyValue("Planned altitude", det.planned_altitude_m > 0 ? fmt::format("{:g} m", det.planned_altitude_m) : "not set");
+    d.keyValue("Survey heading", fmt::format("{:.1f} deg (grid)", det.survey_heading_deg));
+    d.keyValue("Planned swath", fmt::format("+- {:.1f} m of the coverage class at the planned altitude", det.planned_half_width_m));
+    d.keyValue("Altitude limit", det.max_overlap_altitude_m
+                                     ? fmt::format("{:.1f} m (highest altitude at which adjacent swaths still meet)", *det.max_overlap_altitude_m)
+                                     : std::string("not derived (no line spacing)"));
+
+    d.heading("Cautions");
+    d.bullet("The coverage in this report is an estimate from a detection model (section 'Detection model and "
+             "assumptions'), the measured noise and the logged navigation. A covered cell means the model predicts "
+             "that the configured target class would produce an anomaly above the threshold there; it is not a "
+             "guarantee that an object is absent.");
+    d.bullet("Clearance of unexploded ordnance follows the project's risk assessment, local regulations and "
+             "licensed specialists. This report supports, and does not replace, their decisions.");
+    d.bullet("Infill lines are proposals computed from the coverage raster. The vessel's master decides on "
+             "navigation and on whether and how they are run.");
+
+    d.heading("Sign-off");
+    d.ensure(70);
+    const double y0 = d.y();
+    const double w = (d.textWidth() - 20) / 2;
+    for (int i = 0; i < 2; ++i) {
+        const double x = d.left() + i * (w + 20);
+        cairo_set_line_width(cr, 0.6);
+        cairo_rectangle(cr, x, y0, w, 64);
+        cairo_stroke(cr);
+        d.font(8.5, true);
+        d.text(x + 5, y0 + 12, i == 0 ? "Party chief" : "Client representative");
+        d.font(8);
+        d.text(x + 5, y0 + 30, "Name:");
+        d.text(x + 5, y0 + 44, "Signature:");
+        d.text(x + 5, y0 + 58, "Date:");
+    }
+    d.setY(y0 + 72);
+}
+
+void mapPage(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
+    // A site wider than tall gets a landscape page.
+    const auto window = surveyWindow(in);
+    d.newPage(window.max_e - window.min_e > 1.2 * (window.max_n - window.min_n));
+    d.heading("Coverage map");
+    const double legend_h = 92;
+    const double h = d.bottom() - d.y() - legend_h;
+    const auto frame = fitFrame(window, d.left(), d.y(), d.textWidth(), h);
+    MapOptions o;
+    o.pixels_per_unit = 2.5;  // about 180 dpi
+    o.line_scale = 0.8;
+    drawMap(d.cr(), in, frame, o);
+    d.setY(d.y() + h + 6);
+    const double y0 = d.y();
+    drawLegend(d.cr(), d.left(), y0, 8, false);
+    d.font(7.5);
+    const double tx = d.left() + (d.landscape() ? 330 : 200);
+    double ty = y0 + 7;
+    for (const auto& line :
+         {fmt::format("Coverage {:.2f} % of the area; {} gap(s), {} small; {} infill line(s).", s.coverage_pct,
+                      s.significant_gaps, s.small_gaps, s.infill.plan.lines.size()),
+          fmt::format("Cells of {:g} m; each pixel shows the weakest cell under it,", s.cell_size_m),
+          std::string("so a gap narrower than a pixel still shows. Outside the area the"),
+          std::string("coverage is drawn faded. Grid north up; survey CRS ") + fmt::format("EPSG:{}.", s.epsg)}) {
+        d.text(tx, ty, line);
+        ty += 10;
+    }
+    d.setY(y0 + legend_h);
+}
+
+void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
+    std::vector<const coverage::Gap*> gaps;
+    for (const auto& g : s.gaps.gaps)
+        if (!g.small && gaps.size() < kMaxGapMaps) gaps.push_back(&g);
+    if (gaps.empty()) return;
+    const auto close = closers(s);
+    const double cell_w = (d.textWidth() - 12) / 2, cell_h = 215;
+    for (std::size_t i = 0; i < gaps.size(); ++i) {
+        if (i % 6 == 0) {
+            d.newPage(false);
+            d.heading(i == 0 ? "Gap details" : "Gap details (continued)");
+        }
+        const auto& g = *gaps[i];
+        const double x = d.left() + static_cast<double>(i % 2) * (cell_w + 12);
+        const double y = d.y() + static_cast<double>((i % 6) / 2) * (cell_h + 30);
+        const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
+        const coverage::Box w{g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
+        MapOptions o;
+        o.pixels_per_unit = 2.5;
+        o.line_scale = 0.7;
+        o.highlight_gap = g.id;
+        drawMap(d.cr(), in, fitFrame(w, x, y, cell_w, cell_h), o);
+        d.font(7.5, true);
+        const auto it = close.find(g.id);
+        d.text(x, y + cell_h + 10,
+               fmt::format("G{}: {:.0f} m2, {:.1f} m along x {:.1f} m across", g.id, g.area_m2, g.along_length_m,
+                           g.across_width_m));
+        d.font(7.5);
+        d.text(x, y + cell_h + 20,
+               fmt::format("centre E {:.1f} N {:.1f}; infill: {}", g.centroid.e_m, g.centroid.n_m,
+                           it == close.end() ? std::string("none planned") : join(it->second)));
+        if (i % 6 == 5 || i + 1 == gaps.size())
+            d.setY(d.y() + static_cast<double>((i % 6) / 2 + 1) * (cell_h + 30));
+    }
+}
+
+void lineTables(PdfDoc& d, const SurveySummary& s) {
+    d.newPage(false);
+    d.heading("Coverage per planned line");
+    d.para(fmt::format("Corridor of each line: the line +- {:.1f} m (half the line spacing). A line flown in several "
+                       "runs counts once; coverage from neighbouring lines counts too.",
+                       s.line_coverage.empty() ? 0.0 : s.line_coverage.front().corridor_half_width_m),
+           8.5);
+    std::vector<std::vector<std::string>> rows;
+    for (const auto& l : s.line_coverage)
+        rows.push_back({l.name, fmt::format("{:.0f}", l.length_m), fmt::format("{:.1f}", l.corridor_covered_pct),
+                        fmt::format("{}", l.runs)});
+    d.table({{"line", 150}, {"length (m)", 80, true}, {"corridor covered (%)", 110, true}, {"runs", 60, true}}, rows);
+
+    d.heading("Line runs");
+    d.para("One row per pass along a planned line (automatic or operator choice). Altitude is the sensor's height "
+           "above the seabed; deviation is cross-track from the line (starboard positive); noise is the "
+           "fourth-difference estimate of the sensors.",
+           8.5);
+    rows.clear();
+    for (const auto& r : s.runs)
+        rows.push_back({fmt::format("{}", r.id), engine::lineName(s, r.line), r.reversed ? "rev" : "fwd",
+                        utcClock(r.start_t_ns), fmt::format("{:.1f}", toSeconds(r.end_t_ns - r.start_t_ns) / 60),
+                        fmt::format("{:.1f}", r.meanAltitude_m()), fmt::format("{:.1f}", r.worst_altitude_m),
+                        fmt::format("{:+.1f}", r.worst_deviation_m), fmt::format("{:.3f}", r.meanNoise_nT()),
+                        fmt::format("{:.3f}", r.worst_noise_nT), fmt::format("{:.1f}", r.corridor_covered_pct),
+                        fmt::format("{}", r.alarms)});
+    d.table({{"run", 26, true},
+             {"line", 58},
+             {"dir", 24},
+             {"start UTC", 46},
+             {"minutes", 36, true},
+             {"alt mean", 40, true},
+             {"alt max", 40, true},
+             {"dev max", 40, true},
+             {"noise nT", 52, true},
+             {"noise max", 52, true},
+             {"cov %", 38, true},
+             {"alarms", 34, true}},
+            rows, 7);
+}
+
+void alarmPages(PdfDoc& d, const SurveySummary& s) {
+    d.heading("Alarms");
+    if (s.alarms.empty()) {
+        d.para("No alarm episode was raised.", 9);
+        return;
+    }
+    std::vector<std::vector<std::string>> rows;
+    for (const auto& [check, g] : groupAlarms(s))
+        rows.push_back({check, fmt::format("{}", g.episodes), fmt::format("{}", g.alarm_level), fmt::format("{}", g.open),
+                        duration(g.total_s), fmt::format("{:.2f} {}", g.worst, g.unit)});
+    d.table({{"check", 110}, {"episodes", 55, true}, {"at alarm", 55, true}, {"open", 45, true}, {"total time", 70, true},
+             {"worst peak", 90, true}},
+            rows);
+    constexpr std::size_t kMaxRows = 80;
+    d.subheading(s.alarms.size() > kMaxRows
+                     ? fmt::format("Episodes (first {} of {}; all in alarms.csv)", kMaxRows, s.alarms.size())
+                     : std::string("Episodes"));
+    rows.clear();
+    for (std::size_t i = 0; i < s.alarms.size() && i < kMaxRows; ++i) {
+        const auto& a = s.alarms[i];
+        rows.push_back({a.check, utcClock(a.start_ns), a.end_ns ? utcClock(*a.end_ns) : "open",
+                        a.end_ns ? duration(toSeconds(*a.end_ns - a.start_ns)) : "", a.peak_level,
+                        fmt::format("{:.2f} {}", a.peak_value, a.unit), a.ack_ns ? utcClock(*a.ack_ns) : "no"});
+    }
+    d.table({{"check", 95}, {"start UTC", 55}, {"end UTC", 55}, {"duration", 55, true}, {"peak level", 55},
+             {"peak value", 80, true}, {"acknowledged", 60}},
+            rows);
+}
+
+void gapPages(PdfDoc& d, const SurveySummary& s) {
+    d.heading("Gaps");
+    d.para(fmt::format("Connected groups of uncovered cells inside the area (8-connectivity). Gaps narrower than "
+                       "{:g} m are flagged small and listed after the others, never dropped. Along/across: extent "
+                       "along and across the survey direction ({:.1f} deg grid).",
+                       s.gaps.min_width_m, s.gaps.survey_heading_deg),
+           8.5);
+    const auto close = closers(s);
+    std::vector<std::vector<std::string>> rows;
+    constexpr std::size_t kMaxRows = 120;
+    for (std::size_t i = 0; i < s.gaps.gaps.size() && i < kMaxRows; ++i) {
+        const auto& g = s.gaps.gaps[i];
+        const auto it = close.find(g.id);
+        rows.push_back({fmt::format("G{}", g.id), g.small ? "small" : "", fmt::format("{:.1f}", g.area_m2),
+                        fmt::format("{:.1f}", g.centroid.e_m), fmt::format("{:.1f}", g.centroid.n_m),
+                        fmt::format("{:.1f}", g.along_length_m), fmt::format("{:.1f}", g.across_width_m),
+                        fmt::format("{:.2f}", g.width_m), it == close.end() ? "" : join(it->second)});
+    }
+    if (rows.empty()) d.para("No gap: every cell of the area is covered.", 9);
+    else
+        d.table({{"gap", 34}, {"kind", 34}, {"area m2", 50, true}, {"E (m)", 62, true}, {"N (m)", 66, true},
+                 {"along m", 46, true}, {"across m", 46, true}, {"width m", 42, true}, {"infill", 120}},
+                rows);
+    if (s.gaps.gaps.size() > kMaxRows)
+        d.para(fmt::format("{} more gaps in gaps.csv.", s.gaps.gaps.size() - kMaxRows), 8.5);
+
+    d.heading("Infill plan");
+    if (!s.infill_error.empty()) {
+        d.para("No infill planned: " + s.infill_error, 9, true);
+        return;
+    }
+    const auto& opt = s.infill.plan.options;
+    d.para(fmt::format("{} line(s), {:.0f} m in all, along {:.1f} deg (grid), swath +- {:.1f} m at the planned altitude, "
+                       "run-in {:g} m and run-out {:g} m included. Flying them as planned over the present coverage "
+                       "leaves {} gap(s). Coordinates in EPSG:{}; the same lines are in infill.gpx, infill.geojson "
+                       "and infill.csv.",
+                       s.infill.plan.lines.size(), s.infill.plan.totalLength_m(), opt.heading_deg, opt.half_width_m,
+                       opt.run_in_m, opt.run_out_m, s.infill.after.significantCount(), s.epsg),
+           8.5);
+    rows.clear();
+    for (const auto& l : s.infill.plan.lines) {
+        std::vector<std::string> ids;
+        for (int g : l.gap_ids) ids.push_back(fmt::format("G{}", g));
+        rows.push_back({l.name, fmt::format("{}", l.rank), fmt::format("{:.1f}", l.start.e_m), fmt::format("{:.1f}", l.start.n_m),
+                        fmt::format("{:.1f}", l.end.e_m), fmt::format("{:.1f}", l.end.n_m), fmt::format("{:.0f}", l.length_m),
+                        join(ids), fmt::format("{:.0f}", l.area_closed_m2)});
+    }
+    if (!rows.empty())
+        d.table({{"line", 50}, {"rank", 30, true}, {"start E", 58, true}, {"start N", 64, true}, {"end E", 58, true},
+                 {"end N", 64, true}, {"length m", 46, true}, {"gaps", 75}, {"area m2", 46, true}},
+                rows);
+}
+
+void outagePage(PdfDoc& d, const SurveySummary& s) {
+    d.heading("Data outages");
+    d.para("Link outages are logged by the readers (port lost, then reconnected); silences are the alarm episodes of "
+           "the GNSS, magnetometer and altitude silence checks. Samples without data cover nothing.",
+           8.5);
+    if (s.outages.empty()) {
+        d.para("No data outage was logged.", 9);
+    } else {
+        std::vector<std::vector<std::string>> rows;
+        for (const auto& o : s.outages)
+            rows.push_back({o.kind, o.source, utcDateTime(o.start_ns), o.end_ns ? utcClock(*o.end_ns) : "open",
+                            duration(o.duration_s), o.detail});
+        d.table({{"kind", 70}, {"source", 70}, {"start UTC", 90}, {"end UTC", 50}, {"duration", 55, true}, {"detail", 170}},
+                rows);
+    }
+    const auto& v = s.invalid;
+    d.subheading("Samples that covered nothing, by reason");
+    d.table({{"no field (dropout)", 85, true}, {"no position/heading", 90, true}, {"no altitude", 70, true},
+             {"noise warm-up", 70, true}, {"noise too high", 70, true}, {"low signal", 65, true}},
+            {{fmt::format("{}", v.no_field), fmt::format("{}", v.pose), fmt::format("{}", v.no_altitude),
+              fmt::format("{}", v.noise_warmup), fmt::format("{}", v.noisy), fmt::format("{}", v.low_quality)}});
+}
+
+void modelPage(PdfDoc& d, const SurveySummary& s) {
+    const auto& det = s.detection;
+    d.heading("Detection model and assumptions");
+    std::vector<std::vector<std::string>> rows;
+    for (const auto& t : det.targets)
+        rows.push_back({t.name + (t.name == s.coverage_class ? " (coverage)" : ""), detect::modelName(t.model), targetSize(t),
+                        fmt::format("{:g}", t.burial_m)});
+    d.table({{"target class", 130}, {"model", 60}, {"size", 250}, {"burial m", 60, true}}, rows);
+    d.keyValue("Ambient field", fmt::format("inclination {:g} deg, declination {:g} deg, {:g} nT", det.field.inclination_deg,
+                                            det.field.declination_deg, det.field.intensity_nT));
+    d.keyValue("Threshold", fmt::format("max({:g} nT, {:g} x noise); noise = std of the fourth difference over {} samples / sqrt(70)",
+                                        det.settings.min_anomaly_nT, det.settings.k, det.settings.noise_window));
+    d.keyValue("Mass-rule constant", fmt::format("C = {:.3f} nT m3/kg", det.settings.mass_rule_C));
+    d.keyValue("Sensors", fmt::format("{}", det.sensors));
+    d.space(4);
+    d.subheading("Assumptions");
+    for (const auto& t : det.targets)
+        if (t.name == s.coverage_class) d.bullet(std::string("Coverage class model: ") + modelSource(t.model) + ".");
+    d.bullet("A cell's margin is the peak anomaly of the coverage class at that cross-track offset divided by the "
+             "threshold at that sample; the cell is covered when the best margin over all passes is at least 1. "
+             "Margins are kept rounded down to 1/16.");
+    d.bullet("The swath is swept between consecutive valid samples of each sensor; a sample with no field, no "
+             "position or heading, no altitude, noise above its alarm limit or low signal covers nothing.");
+    d.bullet("Sensor positions come from the GNSS antenna through the configured offsets and a straight-cable "
+             "layback placed along the path the tow point travelled; errors in offsets, cable out or sensor depth "
+             "move the painted swath.");
+    d.bullet("Altitude is the sensor's height above the seabed from the altimeter, else water depth minus sensor "
+             "depth; the target lies at the configured burial depth below the seabed.");
+    d.bullet("Geology, remanent magnetisation and the target's orientation can make a real anomaly smaller than the "
+             "model's; margins close to 1 deserve the least trust.");
+}
+
+}  // namespace
+
+std::string utcDateTime(TimeNs t) {
+    const std::time_t secs = static_cast<std::time_t>(t / 1'000'000'000);
+    std::tm tm{};
+    gmtime_r(&secs, &tm);
+    char buf[32];
+    std::strftime(buf, sizeof buf, "%Y-%m-%d %H:%M:%S", &tm);
+    return buf;
+}
+
+std::string utcClock(TimeNs t) { return utcDateTime(t).substr(11); }
+
+std::string linesCsv(const SurveySummary& s) {
+    std::string out = csvRow({"line", "length_m", "corridor_half_width_m", "corridor_covered_pct", "runs"});
+    for (const auto& l : s.line_coverage)
+        out += csvRow({l.name, fmt::format("{:.2f}", l.length_m), fmt::format("{:.2f}", l.corridor_half_width_m),
+                       fmt::format("{:.2f}", l.corridor_covered_pct), fmt::format("{}", l.runs)});
+    return out;
+}
+
+std::string runsCsv(const SurveySummary& s) {
+    std::string out = csvRow({"run", "line", "reversed", "start_utc", "end_utc", "duration_s", "mean_altitude_m",
+                              "worst_altitude_m", "worst_deviation_m", "mean_noise_nT", "worst_noise_nT",
+                              "corridor_covered_pct", "alarms"});
+    for (const auto& r : s.runs)
+        out += csvRow({fmt::format("{}", r.id), engine::lineName(s, r.line), r.reversed ? "1" : "0", utcDateTime(r.start_t_ns),
+                       utcDateTime(r.end_t_ns), fmt::format("{:.1f}", toSeconds(r.end_t_ns - r.start_t_ns)),
+                       fmt::format("{:.2f}", r.meanAltitude_m()), fmt::format("{:.2f}", r.worst_altitude_m),
+                       fmt::format("{:.2f}", r.worst_deviation_m), fmt::format("{:.4f}", r.meanNoise_nT()),
+                       fmt::format("{:.4f}", r.worst_noise_nT), fmt::format("{:.2f}", r.corridor_covered_pct),
+                       fmt::format("{}", r.alarms)});
+    return out;
+}
+
+std::string alarmsCsv(const SurveySummary& s) {
+    std::string out = csvRow({"check", "start_utc", "end_utc", "peak_level", "peak_value", "unit", "ack_utc"});
+    for (const auto& a : s.alarms)
+        out += csvRow({a.check, utcDateTime(a.start_ns), optTime(a.end_ns), a.peak_level, fmt::format("{:.4f}", a.peak_value),
+                       a.unit, optTime(a.ack_ns)});
+    return out;
+}
+
+std::string outagesCsv(const SurveySummary& s) {
+    std::string out = csvRow({"kind", "source", "start_utc", "end_utc", "duration_s", "detail"});
+    for (const auto& o : s.outages)
+        out += csvRow({o.kind, o.source, utcDateTime(o.start_ns), optTime(o.end_ns), fmt::format("{:.1f}", o.duration_s),
+                       o.detail});
+    return out;
+}
+
+ReportResult writeSiteReport(const SurveySummary& s, const engine::SurveyEngine& e, const std::string& dir,
+                             const Progress& progress) {
+    namespace fs = std::filesystem;
+    const auto step = [&](const std::string& name, double f) {
+        if (progress) progress(name, f);
+    };
+    fs::create_directories(dir);
+    ReportResult res;
+    const auto path = [&](const std::string& name) { return (fs::path(dir) / name).string(); };
+    const auto put = [&](const std::string& name, const std::string& text) {
+        coverage::writeTextFile(path(name), text);
+        res.files.push_back(path(name));
+    };
+
+    step("tables", 0.0);
+    put("summary.json", engine::toJson(s).dump(2) + "\n");
+    put("lines.csv", linesCsv(s));
+    put("runs.csv", runsCsv(s));
+    put("alarms.csv", alarmsCsv(s));
+    put("outages.csv", outagesCsv(s));
+    for (auto& f : engine::writeExports(s, e, dir)) res.files.push_back(std::move(f));
+
+    const auto outlines = coverage::gapOutlines(s.gaps);
+    MapInput in;
+    in.raster = &e.raster();
+    in.area = e.plan() ? &e.plan()->area : nullptr;
+    in.lines = e.plan() ? &e.plan()->lines : nullptr;
+    in.gaps = &s.gaps;
+    in.gap_outlines = &outlines;
+    in.infill = &s.infill.plan;
+
+    step("GeoTIFF", 0.1);
+    if (s.epsg > 0 && (e.raster().tileCount() > 0 || in.area != nullptr)) {
+        res.geotiff = writeMarginGeoTiff(e.raster(), s.epsg, in.area ? coverage::bounds(*in.area) : coverage::Box{1, 1, 0, 0},
+                                         path("coverage_margin.tif"));
+        res.files.push_back(path("coverage_margin.tif"));
+    }
+
+    step("maps", 0.3);
+    const std::string name = s.survey_name.empty() ? "survey" : s.survey_name;
+    writeMapPng(in, surveyWindow(in), 2400, name + ": coverage " + fmt::format("{:.2f} %", s.coverage_pct),
+                path("coverage_map.png"));
+    res.files.push_back(path("coverage_map.png"));
+    std::size_t maps = 0;
+    for (const auto& g : s.gaps.gaps) {
+        if (g.small || maps >= kMaxGapMaps) continue;
+        ++maps;
+        const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
+        const coverage::Box w{g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
+        const auto file = path(fmt::format("gap_G{}.png", g.id));
+        writeMapPng(in, w, 1000, fmt::format("{}: gap G{}, {:.0f} m2", name, g.id, g.area_m2), file, g.id);
+        res.files.push_back(file);
+    }
+
+    step("PDF", 0.6);
+    {
+        PdfDoc d(path("report.pdf"), fmt::format("swathguard site coverage report - {} - coverage {:.2f} %", name, s.coverage_pct));
+        frontPage(d, s, e);
+        mapPage(d, s, in);
+        gapMaps(d, s, in);
+        lineTables(d, s);
+        alarmPages(d, s);
+        gapPages(d, s);
+        outagePage(d, s);
+        modelPage(d, s);
+        res.pdf_pages = d.pages();
+        d.finish();
+    }
+    res.files.push_back(path("report.pdf"));
+    step("done", 1.0);
+    return res;
+}
+
+}  // namespace sg::report
