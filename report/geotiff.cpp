@@ -2,6 +2,7 @@
 #include "report/geotiff.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <map>
 #include <memory>
@@ -112,16 +113,20 @@ GeoTiffInfo writeMarginGeoTiff(const coverage::CoverageRaster& raster, int epsg,
         blocks[{row / kBlock, col / kBlock}].push_back(k);
     }
     std::vector<float> buf(static_cast<std::size_t>(kBlock) * kBlock);
+    std::array<std::uint8_t, coverage::kCellsPerTile> codes{};  // one tile, row-major, row = north
     for (const auto& [bk, tiles] : blocks) {
         std::fill(buf.begin(), buf.end(), static_cast<float>(kMarginNoData));
         bool any = false;
         for (auto k : tiles) {
+            const auto* tile = raster.tile(coverage::tileX(k), coverage::tileY(k));
+            if (tile == nullptr) continue;
+            raster.tileCodes(*tile, codes);
             const std::int64_t tx0 = static_cast<std::int64_t>(coverage::tileX(k)) * kTileCells;
             const std::int64_t ty0 = static_cast<std::int64_t>(coverage::tileY(k)) * kTileCells;
             for (std::int64_t iy = ty0; iy < ty0 + kTileCells; ++iy) {
                 const std::int64_t row = iy1 - 1 - iy - bk.first * kBlock;  // row within the block
                 for (std::int64_t ix = tx0; ix < tx0 + kTileCells; ++ix) {
-                    const std::uint8_t q = raster.code(ix, iy);
+                    const std::uint8_t q = codes[static_cast<std::size_t>((iy - ty0) * kTileCells + (ix - tx0))];
                     if (q == 0) continue;
                     const std::int64_t col = ix - ix0 - bk.second * kBlock;
                     buf[static_cast<std::size_t>(row * kBlock + col)] =

@@ -2,6 +2,7 @@
 #include "report/map_render.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <memory>
 #include <stdexcept>
@@ -109,19 +110,23 @@ Surface marginImage(const coverage::CoverageRaster& raster, const MapFrame& f, d
         for (int j = 0; j < H; ++j)
             rowc[static_cast<std::size_t>(j)] = centresIn(f.world.max_n - (j + 1) * pm, f.world.max_n - j * pm, oy);
         const double tile_m = cell * coverage::kTileCells;
+        std::array<std::uint8_t, coverage::kCellsPerTile> codes{};  // one tile, row-major, row = north
         for (auto k : raster.sortedTileKeys()) {
             const std::int64_t tx0 = static_cast<std::int64_t>(coverage::tileX(k)) * coverage::kTileCells;
             const std::int64_t ty0 = static_cast<std::int64_t>(coverage::tileY(k)) * coverage::kTileCells;
             const double e0 = ox + static_cast<double>(tx0) * cell, n0 = oy + static_cast<double>(ty0) * cell;
             if (e0 > f.world.max_e || e0 + tile_m < f.world.min_e || n0 > f.world.max_n || n0 + tile_m < f.world.min_n)
                 continue;
+            const auto* tile = raster.tile(coverage::tileX(k), coverage::tileY(k));
+            if (tile == nullptr) continue;
+            raster.tileCodes(*tile, codes);
             for (std::int64_t iy = ty0; iy < ty0 + coverage::kTileCells; ++iy) {
                 const double cn = oy + (static_cast<double>(iy) + 0.5) * cell;
                 const double fj = std::floor((f.world.max_n - cn) / pm);
                 if (fj < 0 || fj >= H) continue;
                 const auto j = static_cast<std::size_t>(fj);
                 for (std::int64_t ix = tx0; ix < tx0 + coverage::kTileCells; ++ix) {
-                    const std::uint8_t q = raster.code(ix, iy);
+                    const std::uint8_t q = codes[static_cast<std::size_t>((iy - ty0) * coverage::kTileCells + (ix - tx0))];
                     if (q == 0) continue;
                     const double fi = std::floor((ox + (static_cast<double>(ix) + 0.5) * cell - f.world.min_e) / pm);
                     if (fi < 0 || fi >= W) continue;
