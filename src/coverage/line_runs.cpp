@@ -11,11 +11,14 @@ LineTracker::LineTracker(std::vector<PlanLine> lines, const LineTrackerOptions& 
     : m_lines(std::move(lines)), m_opt(options) {
     if (m_opt.max_offset_m <= 0.0) m_opt.max_offset_m = m_opt.line_spacing_m;
     if (m_opt.hysteresis_m <= 0.0) m_opt.hysteresis_m = 0.25 * m_opt.line_spacing_m;
+    // update() looks at every line at every epoch: the per-line constants are worked out once.
+    m_cos_max_angle = std::cos(m_opt.max_angle_deg * std::numbers::pi / 180.0);
+    for (const auto& l : m_lines) m_length_m.push_back(l.length_m());
 }
 
 double LineTracker::crossTrack(int index, Point pos, double dir_e, double dir_n) const {
     const PlanLine& l = m_lines[static_cast<std::size_t>(index)];
-    const double len = l.length_m();
+    const double len = m_length_m[static_cast<std::size_t>(index)];
     const double ue = (l.end.e_m - l.start.e_m) / len, un = (l.end.n_m - l.start.n_m) / len;
     // Starboard of the line direction is (un, -ue); flip when travelling the other way.
     double d = (pos.e_m - l.start.e_m) * un - (pos.n_m - l.start.n_m) * ue;
@@ -25,17 +28,17 @@ double LineTracker::crossTrack(int index, Point pos, double dir_e, double dir_n)
 
 double LineTracker::alongTrack(int index, Point pos) const {
     const PlanLine& l = m_lines[static_cast<std::size_t>(index)];
-    const double len = l.length_m();
+    const double len = m_length_m[static_cast<std::size_t>(index)];
     return ((pos.e_m - l.start.e_m) * (l.end.e_m - l.start.e_m) +
             (pos.n_m - l.start.n_m) * (l.end.n_m - l.start.n_m)) / len;
 }
 
 bool LineTracker::directionMatches(int index, double dir_e, double dir_n, bool& reversed) const {
     const PlanLine& l = m_lines[static_cast<std::size_t>(index)];
-    const double len = l.length_m();
+    const double len = m_length_m[static_cast<std::size_t>(index)];
     const double c = (dir_e * (l.end.e_m - l.start.e_m) + dir_n * (l.end.n_m - l.start.n_m)) / len;
     reversed = c < 0.0;
-    return std::abs(c) >= std::cos(m_opt.max_angle_deg * std::numbers::pi / 180.0);
+    return std::abs(c) >= m_cos_max_angle;
 }
 
 void LineTracker::startRun(int line, bool reversed, std::int64_t t_ns, Point pos) {
@@ -77,7 +80,7 @@ int LineTracker::update(std::int64_t t_ns, Point pos, double dir_e, double dir_n
             if (!directionMatches(i, dir_e, dir_n, rev)) continue;
             const double room = (i == m_active_line) ? m_opt.hysteresis_m : 0.0;
             const double a = alongTrack(i, pos);
-            if (a < -m_opt.end_margin_m - room || a > m_lines[static_cast<std::size_t>(i)].length_m() + m_opt.end_margin_m + room) {
+            if (a < -m_opt.end_margin_m - room || a > m_length_m[static_cast<std::size_t>(i)] + m_opt.end_margin_m + room) {
                 continue;
             }
             const double d = std::abs(crossTrack(i, pos, dir_e, dir_n));

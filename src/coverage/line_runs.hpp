@@ -97,6 +97,8 @@ private:
 
     std::vector<PlanLine> m_lines;
     LineTrackerOptions m_opt;
+    std::vector<double> m_length_m;  // length_m() of each line
+    double m_cos_max_angle = 0.0;    // cos(max_angle_deg)
     std::vector<LineRun> m_runs;
     int m_active_line = -1;
     int m_open_run = kRunNone;

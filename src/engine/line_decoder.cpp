@@ -1,6 +1,7 @@
 // Line -> decoder -> rows and counters; see line_decoder.hpp.
 #include "engine/line_decoder.hpp"
 
+#include <string_view>
 #include <variant>
 
 #include <fmt/format.h>
@@ -26,21 +27,23 @@ LineDecoder::LineDecoder(std::vector<config::InputConfig> inputs, std::vector<de
                 throw config::ConfigError(
                     fmt::format("input '{}': no [fieldmap.{}] table", in.name, in.fieldmap));
         }
+        x.counters = &m_counters[in.name];
         m_by_name.emplace(in.name, x);
-        m_counters[in.name];
     }
 }
 
 void LineDecoder::onLine(const ReceivedLine& line) {
     log::RawRow raw;
-    raw.source = line.source;
-    raw.mono_ns = line.mono_ns;
-    raw.utc_ns = line.utc_ns;
-    raw.bytes = line.bytes;
-    raw.flags = line.flags;
-    auto& c = m_counters[line.source];
-    ++c.lines;
+    if (m_log_rows) {
+        raw.source = line.source;
+        raw.mono_ns = line.mono_ns;
+        raw.utc_ns = line.utc_ns;
+        raw.bytes = line.bytes;
+        raw.flags = line.flags;
+    }
     const auto it = m_by_name.find(line.source);
+    auto& c = it != m_by_name.end() ? *it->second.counters : m_counters[line.source];
+    ++c.lines;
     if (line.flags & kLineContinued) {
         // The tail of a line cut at the framer's limit: no decoder can use half a line.
         raw.status = log::DecodeStatus::NotDecoded;
@@ -49,9 +52,9 @@ void LineDecoder::onLine(const ReceivedLine& line) {
         raw.status = log::DecodeStatus::NotDecoded;
         raw.reason = "unknown_source";
     } else if (it->second.map != nullptr) {
-        decodeFields(line, *it->second.map, raw, c);
+        decodeFields(line, it->second, raw, c);
     } else {
-        decodeNmea(line, raw, c);
+        decodeNmea(line, it->second, raw, c);
     }
     switch (raw.status) {
     case log::DecodeStatus::Ok: ++c.ok; break;
@@ -60,11 +63,17 @@ void LineDecoder::onLine(const ReceivedLine& line) {
     case log::DecodeStatus::NotDecoded: ++c.not_decoded; break;
     }
     // Count by the reason code alone (the stored reason text may add a detail after ": ").
-    ++c.by_reason[raw.reason.empty() ? std::string("ok") : raw.reason.substr(0, raw.reason.find(':'))];
-    m_batch.raw.push_back(std::move(raw));
+    const std::string_view reason = raw.reason.empty()
+                                        ? std::string_view("ok")
+                                        : std::string_view(raw.reason).substr(0, raw.reason.find(':'));
+    auto r = c.by_reason.find(reason);
+    if (r == c.by_reason.end()) r = c.by_reason.emplace(std::string(reason), 0).first;
+    ++r->second;
+    if (m_log_rows) m_batch.raw.push_back(std::move(raw));
 }
 
-void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCounters& c) {
+void LineDecoder::decodeNmea(const ReceivedLine& line, const Input& in, log::RawRow& raw,
+                             SourceCounters& c) {
     const auto s = decode::decodeNmea(line.bytes);
     raw.status = statusOf(s.reason);
     if (s.reason != decode::Reason::Ok) {
@@ -83,7 +92,7 @@ void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceC
             s.data);
         std::optional<TimeNs> utc;
         if (tod) utc = m_clock.toUtc(*tod);
-        m_sink->onNmea(*m_by_name.find(line.source)->second.cfg, line, s, utc);
+        m_sink->onNmea(*in.cfg, line, s, utc);
     }
     auto utcOf = [this](const std::optional<double>& tod) -> std::optional<TimeNs> {
         return tod ? m_clock.toUtc(*tod) : std::nullopt;
@@ -91,6 +100,9 @@ void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceC
     auto addFix = [&](const std::optional<double>& tod, const std::optional<double>& lat,
                       const std::optional<double>& lon) -> log::FixRow* {
         if (!lat || !lon) return nullptr;  // no position (e.g. quality 0): nothing to tabulate
+        c.last_lat_deg = lat;
+        c.last_lon_deg = lon;
+        if (!m_log_rows) return nullptr;
         log::FixRow f;
         f.raw_index = idx;
         f.source = line.source;
@@ -99,8 +111,6 @@ void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceC
         f.time_utc_ns = utcOf(tod);
         f.lat_deg = *lat;
         f.lon_deg = *lon;
-        c.last_lat_deg = lat;
-        c.last_lon_deg = lon;
         m_batch.fixes.push_back(std::move(f));
         return &m_batch.fixes.back();
     };
@@ -129,23 +139,23 @@ void LineDecoder::decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceC
     } else if (const auto* l = std::get_if<decode::Gll>(&s.data)) {
         if (auto* f = addFix(l->tod_s, l->lat_deg, l->lon_deg)) f->valid = l->valid;
     } else if (const auto* h = std::get_if<decode::Hdt>(&s.data)) {
-        m_batch.headings.push_back({idx, line.source, s.type, h->heading_deg, {}, {}});
+        if (m_log_rows) m_batch.headings.push_back({idx, line.source, s.type, h->heading_deg, {}, {}});
         c.last_value = {"heading_deg", h->heading_deg};
     } else if (const auto* v = std::get_if<decode::Vtg>(&s.data)) {
-        m_batch.headings.push_back({idx, line.source, s.type, {}, v->cog_true_deg, v->sog_mps});
+        if (m_log_rows) m_batch.headings.push_back({idx, line.source, s.type, {}, v->cog_true_deg, v->sog_mps});
     } else if (const auto* d = std::get_if<decode::Dpt>(&s.data)) {
-        m_batch.depths.push_back({idx, line.source, s.type, d->depth_m, d->offset_m});
+        if (m_log_rows) m_batch.depths.push_back({idx, line.source, s.type, d->depth_m, d->offset_m});
         c.last_value = {"depth_m", d->depth_m};
     } else if (const auto* b = std::get_if<decode::Dbt>(&s.data)) {
-        m_batch.depths.push_back({idx, line.source, s.type, b->depth_m, {}});
+        if (m_log_rows) m_batch.depths.push_back({idx, line.source, s.type, b->depth_m, {}});
         c.last_value = {"depth_m", b->depth_m};
     }
     // ZDA and GST decode ok and set the clock / stay in the raw table; no decoded table yet.
 }
 
-void LineDecoder::decodeFields(const ReceivedLine& line, const decode::FieldMap& map,
-                              log::RawRow& raw, SourceCounters& c) {
-    const auto r = decode::decodeFieldMap(map, line.bytes);
+void LineDecoder::decodeFields(const ReceivedLine& line, const Input& in, log::RawRow& raw,
+                               SourceCounters& c) {
+    const auto r = decode::decodeFieldMap(*in.map, line.bytes);
     raw.status = statusOf(r.reason);
     if (r.reason != decode::Reason::Ok) {
         raw.reason = std::string(decode::reasonName(r.reason));
@@ -155,8 +165,10 @@ void LineDecoder::decodeFields(const ReceivedLine& line, const decode::FieldMap&
     const std::size_t idx = m_batch.raw.size();
     std::optional<TimeNs> utc = r.utc_ns;
     if (!utc && r.tod_s) utc = m_clock.toUtc(*r.tod_s);
-    if (m_sink != nullptr) m_sink->onFields(*m_by_name.find(line.source)->second.cfg, line, r, utc);
+    if (m_sink != nullptr) m_sink->onFields(*in.cfg, line, r, utc);
     if (r.field_nT) {
+        c.last_field_nT = r.field_nT;
+        if (!m_log_rows) return;
         log::MagRow m;
         m.raw_index = idx;
         m.source = line.source;
@@ -168,12 +180,11 @@ void LineDecoder::decodeFields(const ReceivedLine& line, const decode::FieldMap&
         m.depth_m = r.depth_m;
         m.altitude_m = r.altitude_m;
         m_batch.mags.push_back(std::move(m));
-        c.last_field_nT = r.field_nT;
         return;
     }
     auto aux = [&](const char* kind, const std::optional<double>& v) {
         if (!v) return;
-        m_batch.aux.push_back({idx, line.source, kind, utc, r.tod_s, *v});
+        if (m_log_rows) m_batch.aux.push_back({idx, line.source, kind, utc, r.tod_s, *v});
         c.last_value = {kind, *v};
     };
     aux("altitude_m", r.altitude_m);

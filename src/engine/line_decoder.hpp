@@ -27,7 +27,7 @@ struct SourceCounters {
     std::uint64_t rejected = 0;     // malformed (status rejected)
     std::uint64_t unsupported = 0;  // well formed, not used (status unsupported)
     std::uint64_t not_decoded = 0;  // continuation pieces of over-long lines
-    std::map<std::string, std::uint64_t> by_reason;  // reason name -> count (all statuses)
+    std::map<std::string, std::uint64_t, std::less<>> by_reason;  // reason name -> count (all statuses)
     bool in_outage = false;
     std::uint64_t outages = 0;
     // Latest values, for the status line.
@@ -58,6 +58,11 @@ public:
 
     // Decoded values also go to `sink` (may be null; must outlive the decoder).
     void setSink(DecodedSink* sink) { m_sink = sink; }
+    // false: no rows are gathered for the log (a replay, which writes none: without this its
+    // batch would grow by every line of the log, gigabytes for a long day). Statuses, counters
+    // and the sink are the same either way. Default true.
+    void setLogRows(bool keep) { m_log_rows = keep; }
+    bool logRows() const { return m_log_rows; }
     // Decodes one line and adds its raw row (always) and decoded row (if any) to the batch.
     void onLine(const ReceivedLine& line);
     // Outage start/end become events (start row, later an end with the duration in s).
@@ -76,10 +81,10 @@ private:
     struct Input {
         const config::InputConfig* cfg = nullptr;
         const decode::FieldMap* map = nullptr;
+        SourceCounters* counters = nullptr;  // this input's entry in m_counters (map: stable)
     };
-    void decodeNmea(const ReceivedLine& line, log::RawRow& raw, SourceCounters& c);
-    void decodeFields(const ReceivedLine& line, const decode::FieldMap& map, log::RawRow& raw,
-                      SourceCounters& c);
+    void decodeNmea(const ReceivedLine& line, const Input& in, log::RawRow& raw, SourceCounters& c);
+    void decodeFields(const ReceivedLine& line, const Input& in, log::RawRow& raw, SourceCounters& c);
 
     std::vector<config::InputConfig> m_inputs;
     std::vector<decode::FieldMap> m_maps;
@@ -90,6 +95,7 @@ private:
     decode::InstrumentClock m_clock;  // dates from any RMC/ZDA; times of day from every input
     log::Batch m_batch;
     DecodedSink* m_sink = nullptr;
+    bool m_log_rows = true;
 };
 
 // Map a decoder reason to the stored status.

@@ -36,6 +36,8 @@ void LogReplay::restart() {
     m_reader.seek(0);
     m_next_event_id = 1;
     m_pipeline = std::make_unique<Pipeline>(m_config, [this] { return m_next_event_id++; });
+    // A replay writes no log: gathering its rows would only grow memory by every line.
+    m_pipeline->decoder().setLogRows(false);
     m_fed = 0;
     prime();
 }

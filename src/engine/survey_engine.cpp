@@ -123,8 +123,7 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
         return;
     }
     ensureCrs(lon_deg, lat_deg);
-    m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);
-    const auto en = m_crs->forward(lon_deg, lat_deg);
+    const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
     if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
     // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
     m_last_fix_ns = m_clock_ns;
@@ -212,6 +211,12 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
     if (!m_positioner) {
         s.pose = nav::SensorPose{};
         s.pose.flags = nav::kNoFix;
+    } else if (slot == 0) {
+        // Slot 0 also needs every sensor's pose at its time (the array reference below): one
+        // posesAt gives both. Slots follow the order of [[sensor]], as the Positioner's poses do,
+        // and posesAt places each sensor exactly as poseAt would.
+        m_positioner->posesAt(t_ns, m_poses);
+        s.pose = m_poses[slot];
     } else {
         s.pose = m_positioner->poseAt(t_ns, s.index);
     }
@@ -255,11 +260,9 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
 
     // The array reference (mean of the sensors) drives line runs and deviation, on sensor slot 0.
     if (slot == 0 && m_positioner && s.pose.ok()) {
-        std::vector<nav::SensorPose> poses;
-        m_positioner->posesAt(t_ns, poses);
         coverage::Point ref{0.0, 0.0};
         int n = 0;
-        for (const auto& p : poses)
+        for (const auto& p : m_poses)
             if (p.ok()) {
                 ref.e_m += p.easting_m;
                 ref.n_m += p.northing_m;

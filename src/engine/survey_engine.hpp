@@ -152,6 +152,7 @@ private:
     std::size_t m_coverage_model = 0;
     std::vector<detect::FourthDifferenceNoise> m_noise;
     std::vector<SensorState> m_sensors;
+    std::vector<nav::SensorPose> m_poses;  // every sensor's pose at slot 0's latest sample
     std::map<int, std::size_t> m_sensor_slot;  // sensor index -> slot in m_sensors
     std::unique_ptr<coverage::SurveyCoverage> m_cov;
     coverage::CoverageRaster m_no_raster;

@@ -3,6 +3,9 @@
 
 namespace sg::log {
 
+// No memory-mapped reads (PRAGMA mmap_size): measured on the 12-hour day they saved about 0.2 s
+// of system time in 5.5 s, within the noise, while the mapped log pages (537 MB) counted in the
+// replay's resident memory (394 MB instead of 37 MB).
 LogReader::LogReader(const std::string& path) : m_store(path, OpenMode::ReadOnly) { seek(0); }
 
 void LogReader::seek(std::int64_t after_id) {
@@ -11,6 +14,11 @@ void LogReader::seek(std::int64_t after_id) {
         "WHERE id > ?1 ORDER BY id");
     m_cursor->reset();
     m_cursor->bind(1, after_id);
+    // Replay reads only what a ReceivedLine holds (not status and reason: less work per row).
+    m_line_cursor = &m_store.statement(
+        "SELECT source, mono_ns, utc_ns, bytes, flags FROM raw_lines WHERE id > ?1 ORDER BY id");
+    m_line_cursor->reset();
+    m_line_cursor->bind(1, after_id);
 }
 
 bool LogReader::next(std::int64_t& id, RawRow& r) {
@@ -27,14 +35,13 @@ bool LogReader::next(std::int64_t& id, RawRow& r) {
 }
 
 bool LogReader::next(ReceivedLine& line) {
-    std::int64_t id = 0;
-    RawRow r;
-    if (!next(id, r)) return false;
-    line.source = std::move(r.source);
-    line.mono_ns = r.mono_ns;
-    line.utc_ns = r.utc_ns;
-    line.bytes = std::move(r.bytes);
-    line.flags = r.flags;
+    if (!m_line_cursor->step()) return false;
+    // Assigned in place: the caller's buffers are reused from one line to the next.
+    line.source.assign(m_line_cursor->columnTextView(0));
+    line.mono_ns = m_line_cursor->columnInt(1);
+    line.utc_ns = m_line_cursor->columnInt(2);
+    line.bytes.assign(m_line_cursor->columnBlobView(3));
+    line.flags = static_cast<std::uint8_t>(m_line_cursor->columnInt(4));
     return true;
 }
 

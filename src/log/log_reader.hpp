@@ -22,8 +22,10 @@ public:
     std::int64_t rawCount() { return m_store.rawCount(); }
     std::vector<EventRow> events() { return m_store.events(); }
 
-    // Next raw line in id order; false at the end. `id` is raw_lines.id.
+    // Next raw line in id order; false at the end. `id` is raw_lines.id. The two forms keep a
+    // cursor each (both start at the last seek): use one of them per pass.
     bool next(std::int64_t& id, RawRow& row);
+    // Only what the core was fed live (for replay; cheaper than the full row).
     bool next(ReceivedLine& line);
     // Restarts so that the next line is the first with id > after_id.
     void seek(std::int64_t after_id);
@@ -31,7 +33,8 @@ public:
 
 private:
     LogStore m_store;
-    Statement* m_cursor = nullptr;  // owned by m_store's statement cache
+    Statement* m_cursor = nullptr;       // owned by m_store's statement cache
+    Statement* m_line_cursor = nullptr;  // the same, for next(ReceivedLine&)
 };
 
 }  // namespace sg::log

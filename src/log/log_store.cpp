@@ -209,6 +209,17 @@ std::string Statement::columnBlob(int i) const {
     return p == nullptr ? std::string() : std::string(static_cast<const char*>(p), static_cast<std::size_t>(n));
 }
 
+std::string_view Statement::columnTextView(int i) const {
+    const auto* p = sqlite3_column_text(m_stmt, i);
+    const int n = sqlite3_column_bytes(m_stmt, i);
+    return p == nullptr ? std::string_view() : std::string_view(reinterpret_cast<const char*>(p), static_cast<std::size_t>(n));
+}
+std::string_view Statement::columnBlobView(int i) const {
+    const void* p = sqlite3_column_blob(m_stmt, i);
+    const int n = sqlite3_column_bytes(m_stmt, i);
+    return p == nullptr ? std::string_view() : std::string_view(static_cast<const char*>(p), static_cast<std::size_t>(n));
+}
+
 // ---------------------------------------------------------------- LogStore
 
 LogStore::LogStore(const std::string& path, OpenMode mode, StoreOptions options) : m_path(path) {

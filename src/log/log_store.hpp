@@ -55,6 +55,9 @@ public:
     bool columnIsNull(int i) const;
     std::string columnText(int i) const;
     std::string columnBlob(int i) const;
+    // The same without a copy: valid until the next step, reset or destruction.
+    std::string_view columnTextView(int i) const;
+    std::string_view columnBlobView(int i) const;
 
 private:
     sqlite3* m_db;

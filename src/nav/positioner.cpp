@@ -47,8 +47,12 @@ bool TimedSeries::add(std::int64_t t_ns, double v) {
 
 std::optional<double> TimedSeries::at(std::int64_t t_ns, std::int64_t max_age_ns) const {
     if (m_v.empty()) return std::nullopt;
-    auto next = std::upper_bound(m_v.begin(), m_v.end(), t_ns,
-                                 [](std::int64_t t, const Item& it) { return t < it.t_ns; });
+    // Queries are nearly always at or after the newest value (data arrive in time order): no
+    // search then (upper_bound would return end() too).
+    auto next = t_ns >= m_v.back().t_ns
+                    ? m_v.end()
+                    : std::upper_bound(m_v.begin(), m_v.end(), t_ns,
+                                       [](std::int64_t t, const Item& it) { return t < it.t_ns; });
     const bool has_next = next != m_v.end();
     const bool has_prev = next != m_v.begin();
     const std::int64_t age_prev = has_prev ? t_ns - std::prev(next)->t_ns : 0;
@@ -91,18 +95,19 @@ Positioner::Positioner(NavConfig config, const SurveyCrs* crs)
     if (m_cfg.sensors.empty()) m_cfg.sensors.push_back(SensorOffset{});
 }
 
-void Positioner::addFix(std::int64_t t_ns, double lon_deg, double lat_deg, int quality) {
+EastNorth Positioner::addFix(std::int64_t t_ns, double lon_deg, double lat_deg, int quality) {
     if (m_crs == nullptr) {
         ++m_rejected_fixes;
-        return;
+        return {kNaN, kNaN};
     }
     const EastNorth en = m_crs->forward(lon_deg, lat_deg);
     if (!std::isfinite(en.easting_m)) {
         ++m_rejected_fixes;
-        return;
+        return en;
     }
     addFixProjected(t_ns, en.easting_m, en.northing_m, quality,
                     m_crs->convergence_deg(lon_deg, lat_deg) * kDegToRad);
+    return en;
 }
 
 std::optional<double> Positioner::vesselHeadingGrid(std::int64_t t_ns, double convergence,
@@ -232,10 +237,7 @@ Positioner::PathPos Positioner::pointAtLength(double s) const {
         } else if (h >= 1 && brackets(h - 1)) {
             h -= 1;
         } else {
-            h = static_cast<std::size_t>(
-                std::lower_bound(m_path.begin(), m_path.end(), s,
-                                 [](const PathPoint& p, double v) { return p.s < v; }) -
-                m_path.begin());
+            h = lowerBoundNear(s, h);
         }
     }
     m_length_hint = h;
@@ -245,6 +247,39 @@ Positioner::PathPos Positioner::pointAtLength(double s) const {
     return {a.e + w * (b.e - a.e), a.n + w * (b.n - a.n),
             static_cast<double>(a.t_ns) + w * static_cast<double>(b.t_ns - a.t_ns),
             w < 0.5 ? a.heading_grid : b.heading_grid, a.convergence, a.flags | b.flags};
+}
+
+// First path index with s_m <= its length, for first.s < s_m <= last.s (so 1 <= index < size).
+// The queries of one pose (fish, sensor, the two ends of the direction baseline) lie a few metres
+// apart: searching outward from the previous answer (doubling steps, then a binary search in the
+// bracket) costs a few steps where a search of the whole history costs about log2(size). Path
+// lengths never decrease, so the answer is the same as std::lower_bound's.
+std::size_t Positioner::lowerBoundNear(double s_m, std::size_t hint) const {
+    const std::size_t n = m_path.size();
+    hint = std::clamp<std::size_t>(hint, 1, n - 1);
+    std::size_t lo = 0;      // m_path[lo].s < s_m
+    std::size_t hi = n - 1;  // m_path[hi].s >= s_m
+    std::size_t step = 1;
+    if (m_path[hint].s < s_m) {
+        lo = hint;
+        while (lo + step < n - 1 && m_path[lo + step].s < s_m) {
+            lo += step;
+            step *= 2;
+        }
+        hi = std::min(lo + step, n - 1);
+    } else {
+        hi = hint;
+        while (hi > step && m_path[hi - step].s >= s_m) {
+            hi -= step;
+            step *= 2;
+        }
+        lo = hi > step ? hi - step : 0;
+    }
+    const auto first = m_path.begin() + static_cast<std::ptrdiff_t>(lo + 1);
+    const auto last = m_path.begin() + static_cast<std::ptrdiff_t>(hi);
+    return static_cast<std::size_t>(
+        std::lower_bound(first, last, s_m, [](const PathPoint& p, double v) { return p.s < v; }) -
+        m_path.begin());
 }
 
 // Direction (grid, rad) of the travelled path around length s, from the chord over the configured

@@ -96,7 +96,9 @@ public:
     // Inputs. Times are the instruments' UTC stamps in ns; each instrument's configured latency is
     // subtracted. A value older than the previous one of its kind is rejected and counted.
     // quality: GGA fix quality (0 = invalid: the fix is ignored and counted).
-    void addFix(std::int64_t t_ns, double lon_deg, double lat_deg, int quality);
+    // Returns the antenna position in the survey CRS (NaN when it cannot be projected), so that a
+    // caller needing it too does not project again.
+    EastNorth addFix(std::int64_t t_ns, double lon_deg, double lat_deg, int quality);
     void addFixProjected(std::int64_t t_ns, double easting_m, double northing_m, int quality,
                          double convergence_rad);
     void addHeading(std::int64_t t_ns, double true_heading_deg);  // HDT, degrees from true N
@@ -135,6 +137,7 @@ private:
     std::optional<double> vesselHeadingGrid(std::int64_t t_ns, double convergence,
                                             std::uint32_t& flags) const;
     PathPos pointAtLength(double s) const;
+    std::size_t lowerBoundNear(double s_m, std::size_t hint) const;
     double directionAtLength(double s, double fallback) const;
     SensorPose fishReference(std::int64_t t_ns, double& s_fish, PathPos& fish) const;
     void placeSensor(const SensorOffset& o, const SensorPose& ref, double s_fish,

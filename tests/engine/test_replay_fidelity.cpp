@@ -5,6 +5,8 @@
 #include <gtest/gtest.h>
 
 #include <filesystem>
+#include <map>
+#include <string>
 
 #include "drivers_sim/pipeline_feed.hpp"
 #include "drivers_sim/simulator.hpp"
@@ -28,6 +30,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     std::uint64_t live_hash = 0;
     std::vector<sg::checks::Episode> live_episodes;
     std::uint64_t live_lines = 0;
+    std::map<std::string, sg::engine::SourceCounters> live_counters;
     {
         sg::io::LogWriter writer(log_path, {200, false},
                                  {{"config_text", cfg.text}, {"config_file", dir + "survey.toml"}});
@@ -41,6 +44,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         live_hash = live.engine().raster().contentHash();
         live_episodes = live.engine().checks().episodes();
         live_lines = live.linesFed();
+        live_counters = live.decoder().counters();
     }
     ASSERT_GT(live_lines, 30000u);
     ASSERT_FALSE(live_episodes.empty());  // the demo's faults raise alarms in the first 10 min
@@ -60,6 +64,27 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         EXPECT_EQ(eps[i].peak_level, live_episodes[i].peak_level);
         EXPECT_DOUBLE_EQ(eps[i].peak_value, live_episodes[i].peak_value);
     }
+    // The same decode counters, although the replay gathers no log rows (it writes no log).
+    const auto& counters = replay.pipeline().decoder().counters();
+    ASSERT_EQ(counters.size(), live_counters.size());
+    for (const auto& [source, live_c] : live_counters) {
+        SCOPED_TRACE(source);
+        const auto& c = counters.at(source);
+        EXPECT_EQ(c.lines, live_c.lines);
+        EXPECT_EQ(c.ok, live_c.ok);
+        EXPECT_EQ(c.rejected, live_c.rejected);
+        EXPECT_EQ(c.unsupported, live_c.unsupported);
+        EXPECT_EQ(c.not_decoded, live_c.not_decoded);
+        EXPECT_EQ(c.by_reason, live_c.by_reason);
+        EXPECT_EQ(c.last_field_nT, live_c.last_field_nT);
+        EXPECT_EQ(c.last_lat_deg, live_c.last_lat_deg);
+        EXPECT_EQ(c.last_value, live_c.last_value);
+    }
+    EXPECT_GT(counters.at("mag").ok, 0u);
+    const auto batch = replay.pipeline().takeBatch();
+    EXPECT_TRUE(batch.raw.empty());
+    EXPECT_TRUE(batch.mags.empty());
+    EXPECT_TRUE(batch.fixes.empty());
     // Seeking back rebuilds the same state.
     replay.restart();
     replay.runToEnd();

@@ -345,4 +345,103 @@ TEST(Offsets, StoppedVesselWithoutHeadingCannotOrientTheArray) {
     EXPECT_NEAR(pose.northing_m, 198.0, 1e-9);
 }
 
+// The search of the travelled path starts from the previous answer (a speed-up for replay). The
+// pose must not depend on it: the same queries in time order, in reverse order, in a scattered
+// order and each on a fresh Positioner (no previous answer) give bit-identical poses. The track
+// has a stop (points of equal path length) and a turn; sensors ahead of and behind the fish
+// reference query other lengths. Sensors without a cross offset sit on the path itself: they are
+// also checked against a plain linear scan of the fed points (a wrong segment shows on the turn).
+TEST(Placement, PoseDoesNotDependOnQueryOrder) {
+    NavConfig c = basic();
+    c.tow.cable_out_m = 40.0;
+    c.tow.sensor_depth_m = 10.0;
+    c.sensors = {SensorOffset{0, -1.5, 0.0}, SensorOffset{1, 1.5, 0.0}, SensorOffset{2, 0.0, 3.0},
+                 SensorOffset{3, 0.0, -6.0}, SensorOffset{4, 0.0, 0.0}};
+    struct Fed {
+        std::int64_t t;
+        double e, n, s;  // s: travelled length
+    };
+    std::vector<Fed> fed;
+    auto feed = [&fed](Positioner& p) {
+        fed.clear();
+        double e = 500000.0, n = 6000000.0, heading = 0.0;
+        for (int i = 0; i <= 3000; ++i) {  // 300 s at 10 Hz
+            const double t_s = i * 0.1;
+            const bool stopped = t_s >= 100.0 && t_s < 130.0;
+            if (t_s >= 180.0 && t_s < 240.0) heading += 0.1 * (kPi / 60.0);  // a 180 degree turn
+            if (!stopped) {
+                e += 0.25 * std::sin(heading);
+                n += 0.25 * std::cos(heading);
+            }
+            p.addFixProjected(i * kS / 10, e, n, 4, 0.0);
+            const double s_m = fed.empty() ? 0.0 : fed.back().s + std::hypot(e - fed.back().e, n - fed.back().n);
+            fed.push_back({i * kS / 10, e, n, s_m});
+        }
+    };
+    // Reference: the point at travelled length s by a linear scan (first point at or beyond s).
+    auto onPath = [&fed](double s_m) {
+        std::size_t i = 1;
+        while (i + 1 < fed.size() && fed[i].s < s_m) ++i;
+        const double w = (s_m - fed[i - 1].s) / (fed[i].s - fed[i - 1].s);
+        return std::pair{fed[i - 1].e + w * (fed[i].e - fed[i - 1].e), fed[i - 1].n + w * (fed[i].n - fed[i - 1].n)};
+    };
+    auto lengthAt = [&fed](std::int64_t t) {  // tow point (= antenna here) length at time t
+        std::size_t i = 1;
+        while (i + 1 < fed.size() && fed[i].t <= t) ++i;
+        const double w = static_cast<double>(t - fed[i - 1].t) / static_cast<double>(fed[i].t - fed[i - 1].t);
+        return fed[i - 1].s + w * (fed[i].s - fed[i - 1].s);
+    };
+    std::vector<std::int64_t> times;
+    for (std::int64_t t = 20 * kS; t < 300 * kS; t += 37 * kS / 100) times.push_back(t);
+    auto posesIn = [&](const std::vector<std::size_t>& order) {
+        Positioner p(c, nullptr);
+        feed(p);
+        std::vector<std::vector<SensorPose>> out(times.size());
+        for (std::size_t k : order) p.posesAt(times[k], out[k]);
+        return out;
+    };
+    std::vector<std::size_t> forward(times.size()), backward, scattered;
+    for (std::size_t k = 0; k < times.size(); ++k) forward[k] = k;
+    backward.assign(forward.rbegin(), forward.rend());
+    for (std::size_t k = 0; k < times.size(); ++k) scattered.push_back((k * 389) % times.size());
+    const auto a = posesIn(forward);
+    const auto b = posesIn(backward);
+    const auto d = posesIn(scattered);
+    auto same = [](double x, double y) { return (std::isnan(x) && std::isnan(y)) || x == y; };
+    Positioner fresh_feed(c, nullptr);
+    feed(fresh_feed);
+    int checked = 0;
+    for (std::size_t k = 0; k < times.size(); ++k) {
+        std::vector<SensorPose> fresh;
+        Positioner f(fresh_feed);  // a copy: same path, but the search hints of a fresh start
+        f.posesAt(times[k], fresh);
+        const std::vector<SensorPose>* others[] = {&b[k], &d[k], &fresh};
+        for (const auto* other : others) {
+            for (std::size_t i = 0; i < c.sensors.size(); ++i) {
+                const SensorPose& x = a[k][i];
+                const SensorPose& y = (*other)[i];
+                ASSERT_TRUE(same(x.easting_m, y.easting_m) && same(x.northing_m, y.northing_m) &&
+                            same(x.heading_grid_rad, y.heading_grid_rad) && x.flags == y.flags)
+                    << "time " << times[k] << " sensor " << i;
+                ++checked;
+            }
+        }
+    }
+    EXPECT_EQ(checked, static_cast<int>(3 * c.sensors.size() * times.size()));
+    int on_turn = 0;
+    for (std::size_t k = 0; k < times.size(); ++k) {
+        const double s_fish = lengthAt(times[k]) - d[k][4].layback_m;
+        if (s_fish <= fed.front().s + 1.0) continue;  // before the kept history: extrapolated
+        for (const auto& [i, along] : {std::pair{4, 0.0}, std::pair{2, 3.0}, std::pair{3, -6.0}}) {
+            const auto [e, n] = onPath(s_fish + along);
+            EXPECT_NEAR(d[k][static_cast<std::size_t>(i)].easting_m, e, 1e-6) << "time " << times[k];
+            EXPECT_NEAR(d[k][static_cast<std::size_t>(i)].northing_m, n, 1e-6) << "time " << times[k];
+        }
+        if (times[k] > 200 * kS && times[k] < 240 * kS) ++on_turn;
+    }
+    EXPECT_GT(on_turn, 50);
+    // The stop and the turn are inside the queried stretch (the fish passes both).
+    EXPECT_GT(times.size(), 700u);
+}
+
 }  // namespace

@@ -13,17 +13,23 @@
 #include "coverage/survey_plan.hpp"
 #include "decode/field_map.hpp"
 #include "detect/target_model.hpp"
+#include "drivers_sim/run.hpp"
 #include "nav/nav_config.hpp"
 #include "sim_test_util.hpp"
 
 namespace sg::sim::test {
 namespace {
 
-void checkSurveyConfig(const std::string& file, bool udp) {
-    SCOPED_TRACE(file);
-    const Scenario sc = loadScenario(demoPath("scenario.toml"));
-    const toml::table tbl = config::parseFile(demoPath(file));
-    const config::Section root(tbl, demoPath(file));
+std::string logsPath(const std::string& dir, const std::string& name) {
+    return std::string(SG_SOURCE_DIR) + "/replay_logs/" + dir + "/" + name;
+}
+
+// `dir`: the folder under replay_logs/ (demo, day12h).
+void checkSurveyConfig(const std::string& dir, const std::string& file, bool udp) {
+    SCOPED_TRACE(dir + "/" + file);
+    const Scenario sc = loadScenario(logsPath(dir, "scenario.toml"));
+    const toml::table tbl = config::parseFile(logsPath(dir, file));
+    const config::Section root(tbl, logsPath(dir, file));
 
     const auto inputs = config::parseInputs(root);
     ASSERT_EQ(inputs.size(), static_cast<std::size_t>(kChannelCount));
@@ -121,8 +127,32 @@ TEST(Demo, CoreReadsThePlanGeoJson) {
     EXPECT_NO_THROW(coverage::checkLinesAgainstArea(plan.area, plan.lines, plan.lines_file));
 }
 
-TEST(Demo, UdpSurveyConfigMatchesTheScenario) { checkSurveyConfig("survey.toml", true); }
-TEST(Demo, FileSurveyConfigMatchesTheScenario) { checkSurveyConfig("survey_files.toml", false); }
+TEST(Demo, UdpSurveyConfigMatchesTheScenario) { checkSurveyConfig("demo", "survey.toml", true); }
+TEST(Demo, FileSurveyConfigMatchesTheScenario) { checkSurveyConfig("demo", "survey_files.toml", false); }
+
+// The 12-hour survey day of the replay benchmark (bench/bench_replay_day.sh): its config agrees
+// with its scenario, its committed plan files are current, and it is a full day's work: 4
+// sensors at 10 Hz, GNSS at 10 Hz, and a route of at least 12 hours at the planned speed
+// (the benchmark prints the simulated duration, 43 254 s when measured).
+TEST(Day12h, SurveyConfigMatchesTheScenario) { checkSurveyConfig("day12h", "survey.toml", true); }
+
+TEST(Day12h, IsATwelveHourDayWithItsPlanFiles) {
+    const Scenario sc = loadScenario(logsPath("day12h", "scenario.toml"));
+    EXPECT_EQ(sc.mag.sensors.size(), 4u);
+    EXPECT_DOUBLE_EQ(sc.mag.rate_hz, 10.0);
+    EXPECT_DOUBLE_EQ(sc.gnss.rate_hz, 10.0);
+    EXPECT_DOUBLE_EQ(sc.gyro.rate_hz, 10.0);
+    const Simulator sim(sc, SimOptions{});
+    EXPECT_EQ(readFile(logsPath("day12h", sc.plan.area_file)), planAreaGeoJson(sim));
+    EXPECT_EQ(readFile(logsPath("day12h", sc.plan.lines_file)), planLinesGeoJson(sim));
+    // Lines alone at the speed through the water (5 kn = 2.572 m/s): 10.6 h, before run-ins,
+    // turns and current; the whole route lasts a little over 12 h.
+    double line_m = 0.0;
+    for (const auto& l : sc.plan.lines) line_m += length(l.end_m - l.start_m);
+    // knot = 1852 m / h (the simulator rounds it to 0.514444 m/s)
+    EXPECT_NEAR(sc.vessel.speed_mps, 5.0 * 1852.0 / 3600.0, 1e-5);
+    EXPECT_GT(line_m / sc.vessel.speed_mps, 10.5 * 3600.0);
+}
 
 TEST(Demo, IsSmallAndShowsItsFaults) {
     const Scenario sc = loadScenario(demoPath("scenario.toml"));

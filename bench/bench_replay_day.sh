@@ -1,0 +1,129 @@
+#!/usr/bin/env bash
+# Replays a whole invented 12-hour survey day (replay_logs/day12h: 4 sensors at 10 Hz, GNSS GGA/RMC/
+# VTG at 10 Hz, gyro HDT at 10 Hz, sounder, altimeter, cable counter) at full speed and prints, side
+# by side in one run: the wall and CPU time of `swathguard replay LOG --speed max --headless` and
+# of `swathguard gaps LOG --json`, the log's duration and line count, the speed-up over real time
+# and the peak RSS (/usr/bin/time -v). Target (issue #4): the replay in under 20 s on one core.
+#
+# The log (about 3.9 million lines, about 560 MB) is built once with `swathguard demo` into
+# out/day12h/ (not committed) and rebuilt only when the scenario or survey files change.
+#
+# Usage: bench/bench_replay_day.sh [build-dir] [baseline-swathguard]
+#   build-dir            default build (needs app/swathguard)
+#   baseline-swathguard  optional older binary: measured on the same log in the same run,
+#                        interleaved, its results compared with ours (must be identical) and the
+#                        time ratios printed
+#   RUNS=n               runs per binary and command, the fastest kept (default 2)
+set -euo pipefail
+BUILD=${1:-build}
+BASE=${2:-}
+RUNS=${RUNS:-2}
+BIN="$BUILD/app/swathguard"
+[[ -x "$BIN" ]] || { echo "build swathguard first: cmake --build $BUILD --target swathguard" >&2; exit 2; }
+[[ -z "$BASE" || -x "$BASE" ]] || { echo "baseline binary '$BASE' is not executable" >&2; exit 2; }
+[[ -x /usr/bin/time ]] || { echo "needs /usr/bin/time (Debian package time)" >&2; exit 2; }
+
+SRC=replay_logs/day12h
+OUTDIR=out/day12h
+LOG="$OUTDIR/demo.sglog"
+TMP=$(mktemp -d)
+trap 'rm -rf "$TMP"' EXIT
+
+# --- the log, built once -------------------------------------------------------------------
+stamp=$(cat "$SRC/scenario.toml" "$SRC/survey.toml" "$SRC/plan_area.geojson" "$SRC/plan_lines.geojson" |
+        sha256sum | cut -c1-16)
+if [[ -f "$LOG" && -f "$OUTDIR/inputs.stamp" && "$(cat "$OUTDIR/inputs.stamp")" == "$stamp" ]]; then
+  echo "log: $LOG (cached, inputs $stamp)"
+else
+  echo "log: building $LOG with swathguard demo (once; about a minute) ..."
+  rm -rf "$OUTDIR"
+  mkdir -p "$OUTDIR"
+  t0=$(date +%s.%N)
+  "$BIN" demo --scenario "$SRC/scenario.toml" --config "$SRC/survey.toml" --out "$OUTDIR" \
+    --headless > "$OUTDIR/demo.txt"
+  t1=$(date +%s.%N)
+  grep -E '^demo: [0-9]+ lines' "$OUTDIR/demo.txt" || true
+  awk -v a="$t0" -v b="$t1" 'BEGIN { printf "log: built in %.1f s\n", b - a }'
+  echo "$stamp" > "$OUTDIR/inputs.stamp"
+fi
+LOG_MB=$(du -m "$LOG" | cut -f1)
+
+# --- measuring ----------------------------------------------------------------------------
+# measure NAME BINARY CMD... : runs it RUNS times under /usr/bin/time -v, keeps the fastest (wall)
+# and writes NAME.wall, NAME.cpu, NAME.rss_mb and NAME.out (stdout of the fastest run).
+measure() {
+  local name=$1; shift
+  local bin=$1; shift
+  local tv="$TMP/$name.tv" out="$TMP/$name.stdout"
+  "/usr/bin/time" -v -o "$tv" "$bin" "$@" > "$out"
+  local wall user sys rss
+  wall=$(awk -F': ' '/Elapsed \(wall clock\)/ { n = split($2, p, ":"); s = 0;
+           for (i = 1; i <= n; ++i) s = s * 60 + p[i]; print s }' "$tv")
+  user=$(awk -F': ' '/User time/ { print $2 }' "$tv")
+  sys=$(awk -F': ' '/System time/ { print $2 }' "$tv")
+  rss=$(awk -F': ' '/Maximum resident/ { printf "%.0f", $2 / 1024 }' "$tv")
+  if [[ ! -f "$TMP/$name.wall" ]] || awk -v a="$wall" -v b="$(cat "$TMP/$name.wall")" 'BEGIN { exit !(a < b) }'; then
+    echo "$wall" > "$TMP/$name.wall"
+    awk -v u="$user" -v s="$sys" 'BEGIN { printf "%.2f\n", u + s }' > "$TMP/$name.cpu"
+    echo "$rss" > "$TMP/$name.rss_mb"
+    cp "$out" "$TMP/$name.out"
+  fi
+}
+
+labels=(new)
+bins=("$BIN")
+if [[ -n "$BASE" ]]; then labels=(base new); bins=("$BASE" "$BIN"); fi
+
+echo "machine: $(nproc) cores, $(lscpu | awk -F': +' '/Model name/ { print $2; exit }'), load $(cut -d' ' -f1-3 /proc/loadavg)"
+for ((r = 1; r <= RUNS; ++r)); do
+  for i in "${!labels[@]}"; do
+    measure "${labels[$i]}.replay" "${bins[$i]}" replay "$LOG" --speed max --headless
+    measure "${labels[$i]}.gaps" "${bins[$i]}" gaps "$LOG" --json
+  done
+done
+echo "load after: $(cut -d' ' -f1-3 /proc/loadavg)"
+
+# --- figures ------------------------------------------------------------------------------
+v() { cat "$TMP/$1"; }
+rep="$TMP/new.replay.out"
+LINES=$(awk '/^replay: [0-9]+ lines in/ { print $2 }' "$rep")
+LOG_S=$(awk '/^replay: [0-9]+ lines in/ { for (i = 1; i <= NF; ++i) if ($i == "for") print $(i + 1) }' "$rep")
+HASH=$(awk '/^raster hash/ { print $3 }' "$rep")
+printf '\nlog: %s, %s lines, %s MB, %.2f h of survey (%s s)\n' "$LOG" "$LINES" "$LOG_MB" \
+  "$(awk -v s="$LOG_S" 'BEGIN { print s / 3600 }')" "$LOG_S"
+printf '%-6s %-7s %9s %9s %12s %12s %9s\n' binary command "wall s" "cpu s" "x real time" "lines/s" "RSS MB"
+for l in "${labels[@]}"; do
+  for c in replay gaps; do
+    w=$(v "$l.$c.wall"); cpu=$(v "$l.$c.cpu")
+    printf '%-6s %-7s %9.2f %9.2f %12.0f %12.0f %9s\n' "$l" "$c" "$w" "$cpu" \
+      "$(awk -v a="$LOG_S" -v b="$w" 'BEGIN { print a / b }')" \
+      "$(awk -v a="$LINES" -v b="$w" 'BEGIN { print a / b }')" "$(v "$l.$c.rss_mb")"
+  done
+done
+status=0
+if [[ -n "$BASE" ]]; then
+  for c in replay gaps; do
+    printf 'ratio base/new, %s: wall %.2fx, cpu %.2fx, RSS %.2fx\n' "$c" \
+      "$(awk -v a="$(v base.$c.wall)" -v b="$(v new.$c.wall)" 'BEGIN { print a / b }')" \
+      "$(awk -v a="$(v base.$c.cpu)" -v b="$(v new.$c.cpu)" 'BEGIN { print a / b }')" \
+      "$(awk -v a="$(v base.$c.rss_mb)" -v b="$(v new.$c.rss_mb)" 'BEGIN { print a / b }')"
+  done
+  # Same results: the replay's summary and raster hash, and the gaps JSON, byte for byte
+  # (only the timing line differs).
+  if diff <(grep -v '^replay: ' "$TMP/base.replay.out" | grep -v '^ *[0-9]* %') \
+          <(grep -v '^replay: ' "$TMP/new.replay.out" | grep -v '^ *[0-9]* %') > /dev/null &&
+     cmp -s "$TMP/base.gaps.out" "$TMP/new.gaps.out"; then
+    echo "results: identical (replay summary, raster hash $HASH, gaps JSON)"
+  else
+    echo "FAIL: baseline and new results differ" >&2
+    status=1
+  fi
+fi
+w=$(v new.replay.wall)
+if awk -v a="$w" 'BEGIN { exit !(a < 20) }'; then
+  echo "target: replay of the 12-hour day in $w s < 20 s: met"
+else
+  echo "target: replay of the 12-hour day in $w s: NOT met (20 s)"
+  status=1
+fi
+exit $status
