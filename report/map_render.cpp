@@ -147,6 +147,12 @@ Surface marginImage(const coverage::CoverageRaster& raster, const MapFrame& f, d
     return img;
 }
 
+// True when a label anchored at (x, y), about `width` long, fits inside the frame (a label
+// outside would be clipped from the picture but still be text in a PDF).
+bool inside(const MapFrame& f, double x, double y, double width) {
+    return x >= f.x && x + width <= f.x + f.w && y - 8 >= f.y && y <= f.y + f.h;
+}
+
 // 1, 2 or 5 times a power of ten, at most `max_m`.
 double niceLength(double max_m) {
     const double p = std::pow(10.0, std::floor(std::log10(max_m)));
@@ -321,9 +327,9 @@ void drawMap(cairo_t* cr, const MapInput& in, const MapFrame& f, const MapOption
         if (o.label_gaps) {
             font(cr, 8 * ls, true);
             for (const auto& gap : in.gaps->gaps) {
-                if (gap.small) continue;
-                haloText(cr, f.toX(gap.bbox.max_e) + 2 * ls, f.toY(gap.bbox.max_n) + 4 * ls,
-                         fmt::format("G{}", gap.id), kGap);
+                const double lx = f.toX(gap.bbox.max_e) + 2 * ls, ly = f.toY(gap.bbox.max_n) + 4 * ls;
+                if (gap.small || !inside(f, lx, ly, 20 * ls)) continue;
+                haloText(cr, lx, ly, fmt::format("G{}", gap.id), kGap);
             }
         }
     }
@@ -346,7 +352,7 @@ void drawMap(cairo_t* cr, const MapInput& in, const MapFrame& f, const MapOption
             cairo_line_to(cr, x1 - s * std::cos(a + 0.4), y1 - s * std::sin(a + 0.4));
             cairo_close_path(cr);
             cairo_fill(cr);
-            if (o.label_infill) {
+            if (o.label_infill && inside(f, x0 + 3 * ls, y0 - 3 * ls, 40 * ls)) {
                 font(cr, 8 * ls, true);
                 haloText(cr, x0 + 3 * ls, y0 - 3 * ls, l.name, kInfill);
             }

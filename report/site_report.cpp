@@ -93,6 +93,20 @@ const char* modelSource(detect::ModelKind k) {
     return "";
 }
 
+// The cause text of gap `id` (see engine::GapCause).
+std::string causeOf(const SurveySummary& s, int id) {
+    for (const auto& gc : s.gap_causes)
+        if (gc.gap_id == id) return gc.text;
+    return "";
+}
+
+// `text` cut to `width` points at the current font, with "..." when cut.
+std::string fitText(PdfDoc& d, std::string text, double width) {
+    if (d.textAdvance(text) <= width) return text;
+    while (text.size() > 3 && d.textAdvance(text + "...") > width) text.pop_back();
+    return text + "...";
+}
+
 struct AlarmGroup {
     int episodes = 0, alarm_level = 0, open = 0;
     double total_s = 0, worst = 0;
@@ -239,15 +253,16 @@ void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
         if (!g.small && gaps.size() < kMaxGapMaps) gaps.push_back(&g);
     if (gaps.empty()) return;
     const auto close = closers(s);
-    const double cell_w = (d.textWidth() - 12) / 2, cell_h = 215;
+    const double cell_h = 195;
     for (std::size_t i = 0; i < gaps.size(); ++i) {
         if (i % 6 == 0) {
             d.newPage(false);
             d.heading(i == 0 ? "Gap details" : "Gap details (continued)");
         }
         const auto& g = *gaps[i];
+        const double cell_w = (d.textWidth() - 12) / 2;  // after newPage: the map page may be landscape
         const double x = d.left() + static_cast<double>(i % 2) * (cell_w + 12);
-        const double y = d.y() + static_cast<double>((i % 6) / 2) * (cell_h + 30);
+        const double y = d.y() + static_cast<double>((i % 6) / 2) * (cell_h + 48);
         const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
         const coverage::Box w{g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
         MapOptions o;
@@ -264,8 +279,22 @@ void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
         d.text(x, y + cell_h + 20,
                fmt::format("centre E {:.1f} N {:.1f}; infill: {}", g.centroid.e_m, g.centroid.n_m,
                            it == close.end() ? std::string("none planned") : join(it->second)));
+        {
+            // The cause, on at most two lines under the map.
+            const std::string cause = causeOf(s, g.id);
+            const std::string first = fitText(d, cause, cell_w);
+            if (first.size() >= 3 && first.compare(first.size() - 3, 3, "...") == 0) {
+                std::size_t cut = first.size() - 3;
+                const std::size_t space = cause.rfind(' ', cut);
+                if (space != std::string::npos && space > cut / 2) cut = space;
+                d.text(x, y + cell_h + 30, cause.substr(0, cut));
+                d.text(x, y + cell_h + 40, fitText(d, cause.substr(cut + (cause[cut] == ' ' ? 1 : 0)), cell_w));
+            } else {
+                d.text(x, y + cell_h + 30, first);
+            }
+        }
         if (i % 6 == 5 || i + 1 == gaps.size())
-            d.setY(d.y() + static_cast<double>((i % 6) / 2 + 1) * (cell_h + 30));
+            d.setY(d.y() + static_cast<double>((i % 6) / 2 + 1) * (cell_h + 48));
     }
 }
 
@@ -339,6 +368,15 @@ void alarmPages(PdfDoc& d, const SurveySummary& s) {
             rows);
 }
 
+// Compact cause for the gap table: the checks near the passes, "none" or "not run".
+std::string shortCause(const engine::GapCause& gc) {
+    if (gc.passes.empty()) return "not run";
+    std::vector<std::string> v = gc.checks;
+    for (const auto& p : gc.passes)
+        for (const auto& o : p.outages) v.push_back(o);
+    return v.empty() ? "none" : join(v, ", ");
+}
+
 void gapPages(PdfDoc& d, const SurveySummary& s) {
     d.heading("Gaps");
     d.para(fmt::format("Connected groups of uncovered cells inside the area (8-connectivity). Gaps narrower than "
@@ -355,13 +393,18 @@ void gapPages(PdfDoc& d, const SurveySummary& s) {
         rows.push_back({fmt::format("G{}", g.id), g.small ? "small" : "", fmt::format("{:.1f}", g.area_m2),
                         fmt::format("{:.1f}", g.centroid.e_m), fmt::format("{:.1f}", g.centroid.n_m),
                         fmt::format("{:.1f}", g.along_length_m), fmt::format("{:.1f}", g.across_width_m),
-                        fmt::format("{:.2f}", g.width_m), it == close.end() ? "" : join(it->second)});
+                        fmt::format("{:.2f}", g.width_m), it == close.end() ? "" : join(it->second),
+                        i < s.gap_causes.size() ? shortCause(s.gap_causes[i]) : ""});
     }
     if (rows.empty()) d.para("No gap: every cell of the area is covered.", 9);
     else
-        d.table({{"gap", 34}, {"kind", 34}, {"area m2", 50, true}, {"E (m)", 62, true}, {"N (m)", 66, true},
-                 {"along m", 46, true}, {"across m", 46, true}, {"width m", 42, true}, {"infill", 120}},
+        d.table({{"gap", 28}, {"kind", 30}, {"area m2", 42, true}, {"E (m)", 54, true}, {"N (m)", 60, true},
+                 {"along m", 38, true}, {"across m", 40, true}, {"width m", 36, true}, {"infill", 66}, {"when passed", 117}},
                 rows);
+    d.para("When passed: the alarms (and link outages) active while the nearest line run was abreast of the gap "
+           "(times estimated along the run at its mean speed, +-15 s); 'none' means no alarm was raised and the "
+           "swaths simply did not meet there; 'not run' means no run passed within one line spacing.",
+           8);
     if (s.gaps.gaps.size() > kMaxRows)
         d.para(fmt::format("{} more gaps in gaps.csv.", s.gaps.gaps.size() - kMaxRows), 8.5);
 

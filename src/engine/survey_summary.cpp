@@ -2,6 +2,8 @@
 #include "engine/survey_summary.hpp"
 
 #include <algorithm>
+#include <cmath>
+#include <cstdint>
 #include <filesystem>
 
 #include <fmt/format.h>
@@ -33,6 +35,66 @@ std::vector<OutageSummary> outages(const SurveyEngine& engine, const LogContext&
                            fmt::format("peak {:.1f} s without data", ep.peak_value)});
     std::stable_sort(out.begin(), out.end(),
                      [](const OutageSummary& a, const OutageSummary& b) { return a.start_ns < b.start_ns; });
+    return out;
+}
+
+// Passes of each run by each gap, and the alarms and outages near them (see GapCause).
+std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m) {
+    std::vector<GapCause> out;
+    const double reach = std::max(spacing_m, 1.0);
+    for (const auto& g : s.gaps.gaps) {
+        GapCause gc;
+        gc.gap_id = g.id;
+        const auto c = g.centroid;
+        for (const auto& r : s.runs) {
+            const double dx = r.end_pos.e_m - r.start_pos.e_m, dy = r.end_pos.n_m - r.start_pos.n_m;
+            const double len2 = dx * dx + dy * dy;
+            if (len2 < 1.0 || r.end_t_ns <= r.start_t_ns) continue;
+            const double f = ((c.e_m - r.start_pos.e_m) * dx + (c.n_m - r.start_pos.n_m) * dy) / len2;
+            const double len = std::sqrt(len2);
+            // Abreast of the gap somewhere along the run (a gap's half-length of slack at the ends).
+            const double slack = 0.5 * g.along_length_m / len;
+            if (f < -slack || f > 1.0 + slack) continue;
+            const double offset = std::abs((c.e_m - r.start_pos.e_m) * dy - (c.n_m - r.start_pos.n_m) * dx) / len;
+            if (offset > reach) continue;
+            const auto t = r.start_t_ns + static_cast<TimeNs>(std::clamp(f, 0.0, 1.0) * static_cast<double>(r.end_t_ns - r.start_t_ns));
+            GapPass pass;
+            pass.run = r.id;
+            pass.line = lineName(s, r.line);
+            pass.t_ns = t;
+            pass.offset_m = offset;
+            gc.passes.push_back(std::move(pass));
+        }
+        std::sort(gc.passes.begin(), gc.passes.end(), [](const GapPass& a, const GapPass& b) { return a.offset_m < b.offset_m; });
+        // The window: the time to run the gap's length at the run's mean speed, plus 15 s either side
+        // (checks hold before they raise; a sensor's swath trails the vessel by the layback).
+        const auto add = [](std::vector<std::string>& v, std::string x) {
+            if (std::find(v.begin(), v.end(), x) == v.end()) v.push_back(std::move(x));
+        };
+        std::string text;
+        for (auto& p : gc.passes) {
+            const auto& r = s.runs[static_cast<std::size_t>(p.run)];
+            const double len = std::hypot(r.end_pos.e_m - r.start_pos.e_m, r.end_pos.n_m - r.start_pos.n_m);
+            const double speed = len / std::max(1e-9, toSeconds(r.end_t_ns - r.start_t_ns));
+            const double half_s = 0.5 * g.along_length_m / std::max(0.1, speed) + 15.0;
+            const TimeNs t0 = p.t_ns - static_cast<TimeNs>(half_s * 1e9), t1 = p.t_ns + static_cast<TimeNs>(half_s * 1e9);
+            for (const auto& a : s.alarms)
+                if (a.start_ns <= t1 && a.end_ns.value_or(INT64_MAX) >= t0) {
+                    add(p.checks, a.check + " (" + a.peak_level + ")");
+                    add(gc.checks, a.check);
+                }
+            for (const auto& o : s.outages)
+                if (o.kind == "link" && o.start_ns <= t1 && o.end_ns.value_or(INT64_MAX) >= t0)
+                    add(p.outages, "link " + o.source);
+            std::string what;
+            for (const auto& x : p.checks) what += (what.empty() ? "" : ", ") + x;
+            for (const auto& x : p.outages) what += (what.empty() ? "" : ", ") + x;
+            text += fmt::format("{}{} run {} ({:.0f} m off): {}", text.empty() ? "" : "; ", p.line, p.run, p.offset_m,
+                                what.empty() ? "no alarm" : what);
+        }
+        gc.text = gc.passes.empty() ? "no line run passed within one line spacing: ground not run over" : text;
+        out.push_back(std::move(gc));
+    }
     return out;
 }
 
@@ -106,6 +168,7 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
         s.alarms.push_back({ep.check, c.unit(), ep.start_ns, ep.end_ns,
                             checks::levelName(ep.peak_level), ep.peak_value, ep.ack_ns});
     }
+    s.gap_causes = gapCauses(s, d.line_spacing_m);  // needs the runs, alarms and outages above
     return s;
 }
 
@@ -125,7 +188,17 @@ nlohmann::json toJson(const SurveySummary& s) {
     j["raster_covered_cells"] = s.raster_covered_cells;
     j["lines_processed"] = s.lines_processed;
     json gaps = json::array();
-    for (const auto& g : s.gaps.gaps)
+    for (std::size_t gi = 0; gi < s.gaps.gaps.size(); ++gi) {
+        const auto& g = s.gaps.gaps[gi];
+        json passes = json::array();
+        json cause = nullptr;
+        if (gi < s.gap_causes.size()) {
+            const auto& gc = s.gap_causes[gi];
+            for (const auto& p : gc.passes)
+                passes.push_back({{"run", p.run}, {"line", p.line}, {"t_ns", p.t_ns}, {"offset_m", p.offset_m},
+                                  {"checks", p.checks}, {"outages", p.outages}});
+            cause = {{"passes", passes}, {"checks", gc.checks}, {"text", gc.text}};
+        }
         gaps.push_back({{"id", g.id},
                         {"area_m2", g.area_m2},
                         {"centroid_e", g.centroid.e_m},
@@ -134,7 +207,9 @@ nlohmann::json toJson(const SurveySummary& s) {
                         {"along_length_m", g.along_length_m},
                         {"across_width_m", g.across_width_m},
                         {"width_m", g.width_m},
-                        {"small", g.small}});
+                        {"small", g.small},
+                        {"cause", cause}});
+    }
     j["gaps"] = gaps;
     json infill = json::array();
     for (const auto& l : s.infill.plan.lines)

@@ -58,6 +58,25 @@ struct DetectionSummary {
     double survey_heading_deg = 0.0;
 };
 
+// Why a gap may be there: the line runs that passed within one line spacing of it, the time each
+// was abreast of it (interpolated along the run at its mean speed: an estimate), and the alarm
+// episodes and outages active within a window around those times. No pass means the ground was
+// never run over (off the plan, or the survey stopped short).
+struct GapPass {
+    int run = 0;
+    std::string line;
+    TimeNs t_ns = 0;       // when the run was abreast of the gap's centre (estimate)
+    double offset_m = 0.0; // distance of the gap's centre from the run's track (m)
+    std::vector<std::string> checks;   // alarm episodes active near t_ns, as "check (level)"
+    std::vector<std::string> outages;  // link outages active near t_ns, as "link source"
+};
+struct GapCause {
+    int gap_id = 0;
+    std::vector<GapPass> passes;       // nearest first
+    std::vector<std::string> checks;   // every check of the passes, without repeats
+    std::string text;                  // one line for people
+};
+
 // What the log adds to the engine's state (optional: the demo and tests have no log reader).
 struct LogContext {
     std::string path;
@@ -90,6 +109,7 @@ struct SurveySummary {
     TimeNs first_ns = 0, last_ns = 0;
     std::vector<LineCoverage> line_coverage;  // by plan line index
     std::vector<OutageSummary> outages;       // by start time
+    std::vector<GapCause> gap_causes;         // same order as gaps.gaps
     DetectionSummary detection;
 };
 

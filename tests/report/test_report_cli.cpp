@@ -129,6 +129,35 @@ TEST_F(ReportCli, PdfRendersEveryPage) {
     EXPECT_EQ(rendered, pages);
 }
 
+// Every word lies inside its page's margins (pdftotext -bbox gives each page's size and each
+// word's box): nothing is cut off, whatever the page's orientation.
+TEST_F(ReportCli, EveryWordLiesInsideItsPage) {
+    std::string html;
+    ASSERT_EQ(run("pdftotext -bbox " + dir + "/report/report.pdf -", &html), 0);
+    const auto attr = [](const std::string& tag, const std::string& name) {
+        const auto at = tag.find(name + "=\"");
+        return at == std::string::npos ? -1.0 : std::stod(tag.substr(at + name.size() + 2));
+    };
+    double page_w = 0, page_h = 0;
+    int pages = 0, words = 0;
+    std::istringstream in(html);
+    std::string line;
+    while (std::getline(in, line)) {
+        if (line.find("<page ") != std::string::npos) {
+            page_w = attr(line, "width");
+            page_h = attr(line, "height");
+            ++pages;
+        } else if (line.find("<word ") != std::string::npos) {
+            ++words;
+            EXPECT_GE(attr(line, "xMin"), 30.0) << "page " << pages << ": " << line;
+            EXPECT_LE(attr(line, "xMax"), page_w - 30.0) << "page " << pages << ": " << line;
+            EXPECT_LE(attr(line, "yMax"), page_h - 20.0) << "page " << pages << ": " << line;
+        }
+    }
+    EXPECT_GE(pages, 4);
+    EXPECT_GT(words, 500);
+}
+
 TEST_F(ReportCli, GeoTiffHasTheSurveyCrsAndTheCoresCoveredCells) {
     GDALAllRegister();
     std::unique_ptr<GDALDataset> ds(GDALDataset::Open((dir + "/report/coverage_margin.tif").c_str(), GDAL_OF_RASTER));
