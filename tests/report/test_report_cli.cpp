@@ -53,28 +53,57 @@ std::size_t csvRows(const std::string& path) {
     return n - 1;  // header
 }
 
-class ReportCli : public ::testing::Test {
-protected:
-    static void SetUpTestSuite() {
-        dir = (fs::temp_directory_path() / ("sg_report_" + std::to_string(::getpid()))).string();
-        fs::remove_all(dir);
+// The demo log, its `gaps --json` and its report, made once for every test below. A failure here
+// fails each test that needs it (a failed SetUpTestSuite would only mark them skipped).
+struct ReportRun {
+    std::string dir, log, report_out, error;
+    nlohmann::json gaps_json;
+    bool ok = false;
+};
+
+const ReportRun& reportRun() {
+    static const ReportRun r = [] {
+        ReportRun x;
+        x.dir = (fs::temp_directory_path() / ("sg_report_" + std::to_string(::getpid()))).string();
+        fs::remove_all(x.dir);
         const std::string bin = std::string(SG_BINARY_DIR) + "/app/swathguard";
         const std::string src = SG_SOURCE_DIR;
         std::string out;
-        ASSERT_EQ(run(bin + " demo --headless --scenario " + src + "/replay_logs/demo/scenario.toml --config " + src +
-                          "/replay_logs/demo/survey.toml --out " + dir + "/demo",
-                      &out),
-                  0)
-            << out;
-        log = dir + "/demo/demo.sglog";
-        ASSERT_EQ(run(bin + " gaps " + log + " --json 2>/dev/null", &out), 0) << out;
-        gaps_json = nlohmann::json::parse(out.substr(out.find('{')));
-        ASSERT_EQ(run(bin + " report " + log + " --out " + dir + "/report", &report_out), 0) << report_out;
-    }
-    static void TearDownTestSuite() { fs::remove_all(dir); }
+        if (run(bin + " demo --headless --scenario " + src + "/replay_logs/demo/scenario.toml --config " + src +
+                    "/replay_logs/demo/survey.toml --out " + x.dir + "/demo",
+                &out) != 0) {
+            x.error = "demo failed: " + out;
+            return x;
+        }
+        x.log = x.dir + "/demo/demo.sglog";
+        if (run(bin + " gaps " + x.log + " --json 2>/dev/null", &out) != 0 || out.find('{') == std::string::npos) {
+            x.error = "gaps failed: " + out;
+            return x;
+        }
+        x.gaps_json = nlohmann::json::parse(out.substr(out.find('{')));
+        if (run(bin + " report " + x.log + " --out " + x.dir + "/report", &x.report_out) != 0) {
+            x.error = "report failed: " + x.report_out;
+            return x;
+        }
+        x.ok = true;
+        return x;
+    }();
+    return r;
+}
 
-    static inline std::string dir, log, report_out;
-    static inline nlohmann::json gaps_json;
+class ReportCli : public ::testing::Test {
+protected:
+    void SetUp() override {
+        ASSERT_TRUE(reportRun().ok) << reportRun().error;
+        dir = reportRun().dir;
+        log = reportRun().log;
+        report_out = reportRun().report_out;
+        gaps_json = reportRun().gaps_json;
+    }
+    static void TearDownTestSuite() { fs::remove_all(reportRun().dir); }
+
+    std::string dir, log, report_out;
+    nlohmann::json gaps_json;
 };
 
 TEST_F(ReportCli, SummaryJsonIsWhatGapsPrints) {
