@@ -166,14 +166,17 @@ void PdfDoc::keyValue(const std::string& key, const std::string& value, double v
 void PdfDoc::table(const std::vector<Column>& columns, const std::vector<std::vector<std::string>>& rows,
                    double size) {
     const double row_h = size * 1.5;
-    const auto header = [&] {
-        ensure(2 * row_h);
-        cairo_set_source_rgb(m_cr, 0.88, 0.91, 0.93);
-        double w = 0;
-        for (const auto& c : columns) w += c.width;
-        cairo_rectangle(m_cr, kMargin, m_y, w, row_h);
+    double table_w = 0;
+    for (const auto& c : columns) table_w += c.width;
+    const auto shade = [&](double grey_r, double grey_g, double grey_b) {  // the current row's background
+        cairo_set_source_rgb(m_cr, grey_r, grey_g, grey_b);
+        cairo_rectangle(m_cr, kMargin, m_y, table_w, row_h);
         cairo_fill(m_cr);
         cairo_set_source_rgb(m_cr, 0, 0, 0);
+    };
+    const auto header = [&] {
+        ensure(2 * row_h);
+        shade(0.88, 0.91, 0.93);
         font(size, true);
         double x = kMargin;
         for (const auto& c : columns) {
@@ -189,14 +192,7 @@ void PdfDoc::table(const std::vector<Column>& columns, const std::vector<std::ve
             newPage();
             header();
         }
-        if (r % 2 == 1) {
-            cairo_set_source_rgb(m_cr, 0.96, 0.96, 0.96);
-            double w = 0;
-            for (const auto& c : columns) w += c.width;
-            cairo_rectangle(m_cr, kMargin, m_y, w, row_h);
-            cairo_fill(m_cr);
-            cairo_set_source_rgb(m_cr, 0, 0, 0);
-        }
+        if (r % 2 == 1) shade(0.96, 0.96, 0.96);
         font(size);
         double x = kMargin;
         for (std::size_t i = 0; i < columns.size(); ++i) {

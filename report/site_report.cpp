@@ -20,21 +20,11 @@ namespace {
 
 using engine::SurveySummary;
 
-std::string csvField(const std::string& v) {
-    if (v.find_first_of(",\"\n\r") == std::string::npos) return v;
-    std::string out = "\"";
-    for (char c : v) {
-        if (c == '"') out += '"';
-        out += c;
-    }
-    return out + "\"";
-}
-
 std::string csvRow(const std::vector<std::string>& fields) {
     std::string out;
     for (std::size_t i = 0; i < fields.size(); ++i) {
         if (i > 0) out += ',';
-        out += csvField(fields[i]);
+        out += coverage::csvField(fields[i]);
     }
     return out + "\r\n";
 }

@@ -53,8 +53,10 @@ std::string xmlEscape(const std::string& s) {
     return o;
 }
 
+}  // namespace
+
 std::string csvField(const std::string& s) {
-    if (s.find_first_of(",\"\n") == std::string::npos) return s;
+    if (s.find_first_of(",\"\n\r") == std::string::npos) return s;
     std::string o = "\"";
     for (char c : s) {
         if (c == '"') o += '"';
@@ -62,8 +64,6 @@ std::string csvField(const std::string& s) {
     }
     return o + "\"";
 }
-
-}  // namespace
 
 std::string gapsGeoJson(const GapReport& report, const GridToLonLat& to_lonlat) {
     json fc = {{"type", "FeatureCollection"}, {"features", json::array()}};

@@ -27,5 +27,7 @@ std::string gapsCsv(const GapReport& report);
 
 // Writes text to a file; throws std::runtime_error naming the file on failure.
 void writeTextFile(const std::string& path, const std::string& text);
+// One CSV field (RFC 4180): quoted when it holds a comma, quote or line break, quotes doubled.
+std::string csvField(const std::string& s);
 
 }  // namespace sg::coverage
