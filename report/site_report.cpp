@@ -125,9 +125,16 @@ void frontPage(PdfDoc& d, const SurveySummary& s, const engine::SurveyEngine& e)
     d.para(s.survey_name.empty() ? "(unnamed survey)" : s.survey_name, 12, true);
     d.space(4);
     d.keyValue("Survey log", s.log_path.empty() ? "(in-process run, no log)" : s.log_path);
+    // Survey time (instrument-aligned, as the runs and alarms are) and, when it differs, the time the
+    // log was received (a replayed or sped-up simulation is received on another clock).
+    if (!s.runs.empty()) {
+        const TimeNs t0 = s.runs.front().start_t_ns, t1 = s.runs.back().end_t_ns;
+        d.keyValue("Lines run (UTC)", fmt::format("{} to {} ({}, {} runs)", utcDateTime(t0), utcDateTime(t1),
+                                                  duration(toSeconds(t1 - t0)), s.runs.size()));
+    }
     if (s.last_ns > s.first_ns)
-        d.keyValue("Period (UTC)", fmt::format("{} to {} ({})", utcDateTime(s.first_ns), utcDateTime(s.last_ns),
-                                               duration(toSeconds(s.last_ns - s.first_ns))));
+        d.keyValue("Log received (UTC)", fmt::format("{} to {} ({})", utcDateTime(s.first_ns), utcDateTime(s.last_ns),
+                                                     duration(toSeconds(s.last_ns - s.first_ns))));
     d.keyValue("Survey CRS", fmt::format("EPSG:{} {}", s.epsg, s.crs_name));
     d.keyValue("Coverage class", fmt::format("'{}' (the smallest target the survey must find)", s.coverage_class));
     d.keyValue("Raster cell", fmt::format("{:g} m", s.cell_size_m));
