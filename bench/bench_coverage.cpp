@@ -128,6 +128,19 @@ long rssKiB() {
     return -1;
 }
 
+// The raster's tiles, blocks, run planes, touched cells and estimated memory as counters;
+// returns the touched cells.
+std::uint64_t memoryCounters(benchmark::State& state, const CoverageRaster& r) {
+    const auto touched = r.touchedCells();
+    state.counters["tiles"] = static_cast<double>(r.tileCount());
+    state.counters["blocks"] = static_cast<double>(r.blockCount());
+    state.counters["run_planes"] = static_cast<double>(r.runPlaneCount());
+    state.counters["touched_cells"] = static_cast<double>(touched);
+    state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
+    state.counters["est_B_per_touched"] = static_cast<double>(r.memoryBytes()) / static_cast<double>(touched);
+    return touched;
+}
+
 // 20 km x 20 km, 100 lines of 20 km (200 m apart), half-width 10 m, samples every 1 m, with a
 // 3 m steering wobble. Reports tiles, blocks, run planes, estimated bytes, bytes per touched cell
 // and measured RSS (the issue asks for at most 2 bytes per touched cell).
@@ -149,14 +162,8 @@ void BM_Memory20kmSurvey(benchmark::State& state) {
         }
         const long rss1 = rssKiB();
         state.PauseTiming();
-        const auto touched = r.touchedCells();
-        state.counters["tiles"] = static_cast<double>(r.tileCount());
-        state.counters["blocks"] = static_cast<double>(r.blockCount());
-        state.counters["run_planes"] = static_cast<double>(r.runPlaneCount());
-        state.counters["touched_cells"] = static_cast<double>(touched);
-        state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
+        const auto touched = memoryCounters(state, r);
         state.counters["rss_MiB"] = static_cast<double>(rss1 - rss0) / 1024.0;
-        state.counters["est_B_per_touched"] = static_cast<double>(r.memoryBytes()) / static_cast<double>(touched);
         state.counters["rss_B_per_touched"] = static_cast<double>(rss1 - rss0) * 1024.0 / static_cast<double>(touched);
         state.ResumeTiming();
     }
@@ -172,13 +179,7 @@ void BM_MemoryContiguousSurvey(benchmark::State& state) {
             for (const auto& s : survey(112, 2000.0, 18.0, 10.0, 1.0, 30.0, 1.0)) p.add(s);
         }
         state.PauseTiming();
-        const auto touched = r.touchedCells();
-        state.counters["tiles"] = static_cast<double>(r.tileCount());
-        state.counters["blocks"] = static_cast<double>(r.blockCount());
-        state.counters["run_planes"] = static_cast<double>(r.runPlaneCount());
-        state.counters["touched_cells"] = static_cast<double>(touched);
-        state.counters["est_MiB"] = static_cast<double>(r.memoryBytes()) / 1048576.0;
-        state.counters["est_B_per_touched"] = static_cast<double>(r.memoryBytes()) / static_cast<double>(touched);
+        memoryCounters(state, r);
         state.ResumeTiming();
     }
 }

@@ -281,25 +281,23 @@ void drawMap(cairo_t* cr, const MapInput& in, const MapFrame& f, const MapOption
     }
     if (in.raster != nullptr) {
         auto img = marginImage(*in.raster, f, o.pixels_per_unit);
-        cairo_save(cr);
-        cairo_translate(cr, f.x, f.y);
-        cairo_scale(cr, 1.0 / o.pixels_per_unit, 1.0 / o.pixels_per_unit);
-        cairo_set_source_surface(cr, img.get(), 0, 0);
-        cairo_pattern_set_filter(cairo_get_source(cr), CAIRO_FILTER_NEAREST);
-        cairo_paint_with_alpha(cr, in.area != nullptr ? 0.35 : 1.0);  // outside the area: faded
-        cairo_restore(cr);
-        if (in.area != nullptr) {
+        // Paints the image over the frame (cells crisp), clipped to the area when `clip`.
+        const auto paintImage = [&](double alpha, bool clip) {
             cairo_save(cr);
-            areaPath(cr, f, *in.area);
-            cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
-            cairo_clip(cr);
+            if (clip) {
+                areaPath(cr, f, *in.area);
+                cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
+                cairo_clip(cr);
+            }
             cairo_translate(cr, f.x, f.y);
             cairo_scale(cr, 1.0 / o.pixels_per_unit, 1.0 / o.pixels_per_unit);
             cairo_set_source_surface(cr, img.get(), 0, 0);
             cairo_pattern_set_filter(cairo_get_source(cr), CAIRO_FILTER_NEAREST);
-            cairo_paint(cr);
+            cairo_paint_with_alpha(cr, alpha);
             cairo_restore(cr);
-        }
+        };
+        paintImage(in.area != nullptr ? 0.35 : 1.0, false);  // outside the area: faded
+        if (in.area != nullptr) paintImage(1.0, true);
     }
     if (in.lines != nullptr) {
         setColour(cr, kPlanLine, 0.8);

@@ -83,6 +83,12 @@ const char* modelSource(detect::ModelKind k) {
     return "";
 }
 
+// The window of a gap's detail map: its box with a border of 60 % of its size, at least 30 m.
+coverage::Box gapWindow(const coverage::Gap& g) {
+    const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
+    return {g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
+}
+
 // The cause text of gap `id` (see engine::GapCause).
 std::string causeOf(const SurveySummary& s, int id) {
     for (const auto& gc : s.gap_causes)
@@ -260,13 +266,11 @@ void gapMaps(PdfDoc& d, const SurveySummary& s, const MapInput& in) {
         const double cell_w = (d.textWidth() - 12) / 2;  // after newPage: the map page may be landscape
         const double x = d.left() + static_cast<double>(i % 2) * (cell_w + 12);
         const double y = d.y() + static_cast<double>((i % 6) / 2) * (cell_h + 48);
-        const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
-        const coverage::Box w{g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
         MapOptions o;
         o.pixels_per_unit = 2.5;
         o.line_scale = 0.7;
         o.highlight_gap = g.id;
-        drawMap(d.cr(), in, fitFrame(w, x, y, cell_w, cell_h), o);
+        drawMap(d.cr(), in, fitFrame(gapWindow(g), x, y, cell_w, cell_h), o);
         d.font(7.5, true);
         const auto it = close.find(g.id);
         d.text(x, y + cell_h + 10,
@@ -585,10 +589,8 @@ ReportResult writeSiteReport(const SurveySummary& s, const engine::SurveyEngine&
     for (const auto& g : s.gaps.gaps) {
         if (g.small || maps >= kMaxGapMaps) continue;
         ++maps;
-        const double pad = std::max(30.0, 0.6 * std::max(g.bbox.max_e - g.bbox.min_e, g.bbox.max_n - g.bbox.min_n));
-        const coverage::Box w{g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
         const auto file = path(fmt::format("gap_G{}.png", g.id));
-        writeMapPng(in, w, 1000, fmt::format("{}: gap G{}, {:.0f} m2", name, g.id, g.area_m2), file, g.id);
+        writeMapPng(in, gapWindow(g), 1000, fmt::format("{}: gap G{}, {:.0f} m2", name, g.id, g.area_m2), file, g.id);
         res.files.push_back(file);
     }
 
