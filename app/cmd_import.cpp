@@ -1,5 +1,6 @@
 // `swathguard import`: builds a survey log from one capture file per instrument, merged by
 // instrument time, as if recorded live (see io/importer.hpp).
+#include <chrono>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
@@ -11,6 +12,10 @@
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
 #include "io/importer.hpp"
+#include "engine/survey_config.hpp"
+#include "site/session_summary.hpp"
+#include "site/site.hpp"
+#include "site/site_config.hpp"
 
 namespace sg::app {
 
@@ -20,6 +25,7 @@ struct ImportOptions {
     std::string config;
     std::vector<std::string> inputs;  // NAME=PATH
     std::string log;
+    std::string site;  // site folder: the new log goes to SITE/logs (named by the time of import)
     bool accept_disagreement = false;
 };
 
@@ -40,7 +46,25 @@ int runImport(const ImportOptions& o) {
             throw std::runtime_error(fmt::format("--input '{}': expected NAME=PATH", s));
         files.push_back({s.substr(0, eq), s.substr(eq + 1)});
     }
-    const auto r = io::importCaptures(inputs, maps, files, options, o.log, text.str(), o.config,
+    std::string log_path = o.log;
+    if (!o.site.empty()) {
+        if (!o.log.empty()) throw std::runtime_error("--log and --site: a site names its logs itself (SITE/logs/)");
+        // The same rule as record --site: the site-wide keys must match the site's config.
+        const auto cfg = engine::loadSurveyConfig(o.config);
+        const auto site = site::discoverSite({o.site}, std::nullopt);
+        const engine::SurveyConfig* ref = site.config_in_force ? &*site.config_in_force : nullptr;
+        for (const auto& l : site.logs)
+            if (ref == nullptr && !l.skipped && l.config) ref = &*l.config;
+        if (ref != nullptr)
+            if (auto d = site::firstSiteWideDifference(cfg, *ref))
+                throw config::ConfigError(fmt::format("{}: differs from the site's config {} in {} (docs/site.md)",
+                                                      o.config, ref->file, *d));
+        log_path = site::newLogPath(o.site, std::chrono::duration_cast<std::chrono::nanoseconds>(
+                                                std::chrono::system_clock::now().time_since_epoch()).count());
+    } else if (log_path.empty()) {
+        throw std::runtime_error("--log FILE or --site DIR is required");
+    }
+    const auto r = io::importCaptures(inputs, maps, files, options, log_path, text.str(), o.config,
                                       o.accept_disagreement);
     for (const auto& c : r.merged.captures)
         std::printf("%s: %zu lines (%zu with instrument time) from %s, clock shift %+.3f s\n",
@@ -53,7 +77,12 @@ int runImport(const ImportOptions& o) {
         return 3;
     }
     std::printf("import: %llu lines written to %s\n", static_cast<unsigned long long>(r.raw_lines),
-                o.log.c_str());
+                log_path.c_str());
+    if (!o.site.empty()) {
+        const auto sum = site::buildSessionSummary(log_path, engine::loadSurveyConfig(o.config));
+        site::writeSessionSummary(site::summaryPathFor(log_path), sum);
+        std::printf("import: session summary %s\n", site::summaryPathFor(log_path).c_str());
+    }
     return 0;
 }
 
@@ -65,7 +94,8 @@ void addImportCommand(CLI::App& app) {
     cmd->add_option("--config", opts->config, "Survey configuration (TOML)")->required();
     cmd->add_option("--input", opts->inputs, "NAME=PATH: capture file of the [[input]] NAME")
         ->required();
-    cmd->add_option("--log", opts->log, "Log file to create")->required();
+    cmd->add_option("--log", opts->log, "Log file to create");
+    cmd->add_option("--site", opts->site, "Site folder: the log goes to SITE/logs/ (instead of --log)");
     cmd->add_flag("--accept-clock-disagreement", opts->accept_disagreement,
                   "Merge even when a capture's clock disagrees (logged as an event)");
     cmd->callback([opts] {

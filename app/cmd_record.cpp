@@ -1,6 +1,7 @@
 // `swathguard record`: acquire from the configured inputs into a new survey log, printing a
 // status line every second. Stops on SIGINT/SIGTERM, after --duration, or when every input is a
 // file that has been read to its end.
+#include <chrono>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
@@ -11,6 +12,8 @@
 #include <fmt/format.h>
 
 #include "app/commands.hpp"
+#include "app/site_open.hpp"
+#include "site/site_config.hpp"
 #include "common/config_section.hpp"
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
@@ -28,12 +31,39 @@ namespace {
 struct RecordOptions {
     std::string config;
     std::string log;
+    std::string site;  // site folder: a new log in SITE/logs, the earlier logs joined first
     double duration_s = 0.0;
     ScreenArgs screen;
 };
 
-int runRecord(const RecordOptions& o) {
+int runRecord(RecordOptions o) {
+    std::optional<site::Site> site;
+    if (!o.site.empty()) {
+        const auto site_cfg = std::filesystem::path(o.site) / "survey.toml";
+        if (o.config.empty()) {
+            if (!std::filesystem::exists(site_cfg))
+                throw config::ConfigError(fmt::format(
+                    "{}: the site has no survey.toml: give --config FILE (the vessel's survey config)", o.site));
+            o.config = site_cfg.string();
+        }
+        if (!o.log.empty()) throw config::ConfigError("--log and --site: a site names its logs itself (SITE/logs/)");
+    }
+    if (o.config.empty()) throw config::ConfigError("--config FILE (or --site DIR holding survey.toml) is required");
     auto cfg = engine::loadSurveyConfig(o.config);
+    if (!o.site.empty()) {
+        std::filesystem::create_directories(o.site);
+        // Before the first new line: every earlier log of the site, summarised (on every core).
+        site = openSite({o.site}, std::nullopt, "", false);
+        const engine::SurveyConfig* ref = site->config_in_force ? &*site->config_in_force : nullptr;
+        const auto usable = site->usable();
+        if (ref == nullptr && !usable.empty()) ref = &*usable.front()->config;
+        if (ref != nullptr)
+            if (auto d = site::firstSiteWideDifference(cfg, *ref))
+                throw config::ConfigError(fmt::format(
+                    "{}: differs from the site's config {} in {}: the logs of one site share the CRS, target "
+                    "classes and coverage settings (docs/site.md)",
+                    o.config, ref->file, *d));
+    }
     const auto root = cfg.root();
     if (cfg.inputs.empty()) root.fail("input", "at least one [[input]] table");
     // Relative paths in the config start at the config file's folder (cfg.dir); paths on the
@@ -44,7 +74,10 @@ int runRecord(const RecordOptions& o) {
                    : (std::filesystem::path(cfg.dir) / p).string();
     };
     for (auto& i : cfg.inputs) i.path = fromConfig(i.path);
-    const std::string log_path = o.log.empty() ? fromConfig(cfg.log.path) : o.log;
+    const std::string log_path =
+        site ? site::newLogPath(o.site, std::chrono::duration_cast<std::chrono::nanoseconds>(
+                                            std::chrono::system_clock::now().time_since_epoch()).count())
+             : (o.log.empty() ? fromConfig(cfg.log.path) : o.log);
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
     // The config's own path is stored absolute so replay finds the plan files it names.
@@ -55,6 +88,13 @@ int runRecord(const RecordOptions& o) {
     const int rc = runWithScreen(o.screen, "swathguard record", [&](ScreenLink& link) {
     io::asio::io_context ctx;
     io::Recorder rec(ctx, cfg, writer);
+    if (site) {
+        auto& eng = rec.pipeline()->engine();
+        eng.seedSite(site::siteSeed(*site));
+        std::printf("record: site %s: %zu earlier log(s) joined, %zu runs; new log %s\n", o.site.c_str(),
+                    eng.priorSessions().size(), eng.lines() ? eng.lines()->runs().size() : std::size_t{0},
+                    log_path.c_str());
+    }
     engine::SnapshotBuilder builder(rec.pipeline()->engine());
     const auto export_dir = (std::filesystem::path(log_path).parent_path() / "exports").string();
     // Every flush (100 ms): the screen's commands, then a fresh snapshot for it.
@@ -114,6 +154,17 @@ int runRecord(const RecordOptions& o) {
                 static_cast<unsigned long long>(st.commits),
                 st.last_error.empty() ? "" : (" LAST ERROR: " + st.last_error).c_str());
     if (!st.last_error.empty()) exit_code = 2;
+    if (site && st.raw_committed > 0) {
+        // The new log's own summary, so that the next session opens the site without replaying it.
+        try {
+            const auto sum = site::buildSessionSummary(log_path, cfg);
+            site::writeSessionSummary(site::summaryPathFor(log_path), sum);
+            std::printf("record: session summary %s\n", site::summaryPathFor(log_path).c_str());
+        } catch (const std::exception& e) {
+            std::fprintf(stderr, "record: no session summary written (%s); the next opening of the site rebuilds it\n",
+                         e.what());
+        }
+    }
     return exit_code;
 }
 
@@ -122,8 +173,10 @@ int runRecord(const RecordOptions& o) {
 void addRecordCommand(CLI::App& app) {
     auto opts = std::make_shared<RecordOptions>();
     auto* cmd = app.add_subcommand("record", "Acquire from the configured inputs into a survey log");
-    cmd->add_option("--config", opts->config, "Survey configuration (TOML)")->required();
+    cmd->add_option("--config", opts->config, "Survey configuration (TOML); default SITE/survey.toml with --site");
     cmd->add_option("--log", opts->log, "Log file to create (default: [log] path)");
+    cmd->add_option("--site", opts->site,
+                    "Site folder: a new log in SITE/logs, with the coverage, runs and alarms of its earlier logs");
     cmd->add_option("--duration", opts->duration_s, "Stop after this many seconds")
         ->check(CLI::NonNegativeNumber);
     addScreenOptions(*cmd, opts->screen);

@@ -13,6 +13,7 @@
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/site_open.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
@@ -22,7 +23,8 @@ namespace sg::app {
 namespace {
 
 struct ReplayOptions {
-    std::string log;
+    std::vector<std::string> logs;  // one log, several logs, or a site folder
+    std::string log;                // the log replayed
     std::string config;
     std::string speed = "max";
     ScreenArgs screen;
@@ -49,9 +51,28 @@ std::optional<std::string> configOverride(const ReplayOptions& o) {
     return o.config.empty() ? std::nullopt : std::optional<std::string>(o.config);
 }
 
-int runReplay(const ReplayOptions& o) {
+// A site: the newest usable log is replayed on top of the earlier ones, as it was recorded.
+std::unique_ptr<engine::LogReplay> makeReplay(ReplayOptions& o) {
+    if (!namesSite(o.logs)) {
+        o.log = o.logs.front();
+        return std::make_unique<engine::LogReplay>(o.log, configOverride(o));
+    }
+    auto site = std::make_shared<site::Site>(openSite(o.logs, configOverride(o)));
+    const auto usable = site->usable();
+    const auto* last = usable.back();
+    o.log = last->path;
+    auto replay = std::make_unique<engine::LogReplay>(o.log, *last->config);
+    const std::size_t earlier = usable.size() - 1;
+    std::printf("replay: site %s: %zu earlier log(s) joined before %s\n",
+                site->dir.empty() ? "(logs given)" : site->dir.c_str(), earlier, o.log.c_str());
+    replay->setSiteSeed([site, earlier] { return site::siteSeed(*site, earlier); });
+    return replay;
+}
+
+int runReplay(ReplayOptions& o) {
     double speed = parseSpeed(o.speed);
-    engine::LogReplay replay(o.log, configOverride(o));
+    auto replay_ptr = makeReplay(o);
+    auto& replay = *replay_ptr;
     std::printf("replay: %s, %lld lines, %s .. %s, speed %s\n", o.log.c_str(),
                 static_cast<long long>(replay.totalLines()), utcText(replay.firstTime()).c_str(),
                 utcText(replay.lastTime()).c_str(), o.speed.c_str());
@@ -168,6 +189,7 @@ int runReplay(const ReplayOptions& o) {
                     static_cast<unsigned long long>(replay.linesFed()), wall_s, log_s,
                     wall_s > 0 ? log_s / wall_s : 0.0);
         auto summary = engine::summarise(replay.pipeline().engine(), replay.linesFed(), replay.context());
+        if (!summary.sessions.empty()) std::printf("%s", sessionsText(summary).c_str());
         std::printf("%s", engine::toText(summary).c_str());
         std::printf("raster hash %016llx\n", static_cast<unsigned long long>(summary.raster_hash));
         return 0;
@@ -175,17 +197,30 @@ int runReplay(const ReplayOptions& o) {
 }
 
 int runGaps(const ReplayOptions& o) {
-    engine::LogReplay replay(o.log, configOverride(o));
-    replay.runToEnd();
-    auto& eng = replay.pipeline().engine();
-    auto summary = engine::summarise(eng, replay.linesFed(), replay.context());
+    std::unique_ptr<engine::LogReplay> replay;
+    SiteView view;
+    engine::SurveyEngine* eng = nullptr;
+    engine::SurveySummary summary;
+    if (namesSite(o.logs)) {
+        // A site: the per-log summaries joined, no replay of logs whose summary is current.
+        const auto site = openSite(o.logs, configOverride(o));
+        view = summariseSite(site);
+        eng = view.engine.get();
+        summary = std::move(view.summary);
+    } else {
+        replay = std::make_unique<engine::LogReplay>(o.logs.front(), configOverride(o));
+        replay->runToEnd();
+        eng = &replay->pipeline().engine();
+        summary = engine::summarise(*eng, replay->linesFed(), replay->context());
+    }
     std::vector<std::string> written;
-    if (!o.export_dir.empty()) written = engine::writeExports(summary, eng, o.export_dir);
+    if (!o.export_dir.empty()) written = engine::writeExports(summary, *eng, o.export_dir);
     if (o.json) {
         auto j = engine::toJson(summary);
         j["exports"] = written;
         std::printf("%s\n", j.dump(2).c_str());
     } else {
+        if (!summary.sessions.empty()) std::printf("%s", sessionsText(summary).c_str());
         std::printf("%s", engine::toText(summary).c_str());
         for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
     }
@@ -197,7 +232,8 @@ int runGaps(const ReplayOptions& o) {
 void addReplayCommands(CLI::App& app) {
     auto ro = std::make_shared<ReplayOptions>();
     auto* replay = app.add_subcommand("replay", "Run a survey log through the core again");
-    replay->add_option("log", ro->log, "Survey log (SQLite)")->required()->check(CLI::ExistingFile);
+    replay->add_option("logs", ro->logs, "Survey log (SQLite), or a site folder, or several logs (the last is "
+                       "replayed on top of the others)")->required()->check(CLI::ExistingPath);
     replay->add_option("--speed", ro->speed, "Replay speed: a factor (1 = real time) or max")
         ->default_str("max");
     replay->add_option("--config", ro->config, "Survey config to use instead of the one in the log");
@@ -206,7 +242,8 @@ void addReplayCommands(CLI::App& app) {
 
     auto go = std::make_shared<ReplayOptions>();
     auto* gaps = app.add_subcommand("gaps", "Coverage, gap list and infill lines of a survey log");
-    gaps->add_option("log", go->log, "Survey log (SQLite)")->required()->check(CLI::ExistingFile);
+    gaps->add_option("logs", go->logs, "Survey log (SQLite), a site folder, or several logs of one site")
+        ->required()->check(CLI::ExistingPath);
     gaps->add_option("--export", go->export_dir,
                      "Write gaps.geojson, gaps.csv, infill.geojson, infill.gpx, infill.csv here");
     gaps->add_flag("--json", go->json, "Print the summary as JSON");

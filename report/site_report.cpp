@@ -130,7 +130,15 @@ void frontPage(PdfDoc& d, const SurveySummary& s, const engine::SurveyEngine& e)
     d.title("Site coverage report");
     d.para(s.survey_name.empty() ? "(unnamed survey)" : s.survey_name, 12, true);
     d.space(4);
-    d.keyValue("Survey log", s.log_path.empty() ? "(in-process run, no log)" : s.log_path);
+    if (s.sessions.empty()) {
+        d.keyValue("Survey log", s.log_path.empty() ? "(in-process run, no log)" : s.log_path);
+    } else {
+        // A site (docs/site.md): several logs, sessions and perhaps vessels in one coverage.
+        d.keyValue("Site", s.log_path);
+        d.keyValue("Logs, sessions, vessels",
+                   fmt::format("{} logs, {} sessions, {} vessel(s) (table 'Sessions of the site')", s.sessions.size(),
+                               s.sessions.size(), s.vessels));
+    }
     // Survey time (instrument-aligned, as the runs and alarms are) and, when it differs, the time the
     // log was received (a replayed or sped-up simulation is received on another clock).
     if (!s.runs.empty()) {
@@ -338,6 +346,34 @@ void lineTables(PdfDoc& d, const SurveySummary& s) {
              {"cov %", 38, true},
              {"alarms", 34, true}},
             rows, 7);
+}
+
+// A site: one row per log (session) with its vessel, span of survey time and what it added.
+void sessionTable(PdfDoc& d, const SurveySummary& s) {
+    if (s.sessions.empty()) return;
+    d.heading("Sessions of the site");
+    d.para("One row per acquisition session (log), in time order. 'Covered' is what the session covered alone; "
+           "'new' is the area that became covered when its coverage was joined after the earlier sessions' "
+           "(whole raster, run-in and run-out included). Times are survey (instrument) time.",
+           8.5);
+    std::vector<std::vector<std::string>> rows;
+    for (const auto& x : s.sessions)
+        rows.push_back({fmt::format("{}", x.index + 1), x.log, x.vessel.empty() ? "(unnamed)" : x.vessel,
+                        x.survey_first_ns > 0 ? utcDateTime(x.survey_first_ns) : "-",
+                        x.survey_last_ns > 0 ? utcDateTime(x.survey_last_ns) : "-", fmt::format("{}", x.runs),
+                        fmt::format("{:.0f}", x.own_covered_m2), fmt::format("{:.0f}", x.added_m2),
+                        x.recomputed ? "recomputed" : ""});
+    d.table({{"#", 16, true},
+             {"log", 98},
+             {"vessel", 70},
+             {"from UTC", 78},
+             {"to UTC", 78},
+             {"runs", 28, true},
+             {"covered m2", 50, true},
+             {"new m2", 46, true},
+             {"", 46}},
+            rows, 7);
+    for (const auto& m : s.site_messages) d.bullet(m);
 }
 
 void alarmPages(PdfDoc& d, const SurveySummary& s) {
@@ -601,6 +637,7 @@ ReportResult writeSiteReport(const SurveySummary& s, const engine::SurveyEngine&
         mapPage(d, s, in);
         gapMaps(d, s, in);
         lineTables(d, s);
+        sessionTable(d, s);
         alarmPages(d, s);
         gapPages(d, s);
         outagePage(d, s);

@@ -12,7 +12,7 @@ pkgs=(
   mesa-utils xvfb xauth x11-apps imagemagick
   socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev libgdal-dev fonts-dejavu-core
   clang libclang-rt-14-dev
-  gpsd-clients
+  gpsd-clients libxxhash-dev
 )
 missing=()
 for p in "${pkgs[@]}"; do

@@ -19,7 +19,7 @@ public:
         if (!s) return;
         const float sc = ctx.scale;
         ImGui::BeginChild("runs_scroll", ImGui::GetContentRegionAvail(), false);
-        if (ImGui::CollapsingHeader("Runs", ImGuiTreeNodeFlags_DefaultOpen)) drawRuns(ctx, *s, sc);
+        if (ImGui::CollapsingHeader("Runs", ImGuiTreeNodeFlags_DefaultOpen)) drawRuns(ctx, *s, sc, m_hide_earlier);
         if (ImGui::CollapsingHeader("Planned lines")) drawLines(ctx, *s);
         char head[64];
         std::snprintf(head, sizeof head, "Gaps (%zu)###gaps", s->gaps.size());
@@ -30,13 +30,24 @@ public:
     }
 
 private:
-    static void drawRuns(FrameContext&, const engine::Snapshot& s, float) {
+    bool m_hide_earlier = false;
+
+    static void drawRuns(FrameContext&, const engine::Snapshot& s, float, bool& hide_earlier) {
         if (s.runs.empty()) {
             ImGui::TextDisabled("No runs recorded yet.");
             return;
         }
-        if (!ImGui::BeginTable("runs", 7, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingStretchProp)) return;
+        // A site: runs of earlier logs come first; they can be hidden to see today's work only.
+        std::size_t earlier = 0;
+        for (const auto& r : s.runs) earlier += r.earlier_session ? 1 : 0;
+        if (earlier > 0) {
+            char label[96];
+            std::snprintf(label, sizeof label, "Hide the %zu runs of earlier sessions", earlier);
+            ImGui::Checkbox(label, &hide_earlier);
+        }
+        if (!ImGui::BeginTable("runs", 8, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingStretchProp)) return;
         ImGui::TableSetupColumn("run", ImGuiTableColumnFlags_WidthStretch, 2.0f);
+        ImGui::TableSetupColumn("log", ImGuiTableColumnFlags_WidthStretch, 2.0f);
         ImGui::TableSetupColumn("covered", ImGuiTableColumnFlags_WidthStretch, 2.0f);
         ImGui::TableSetupColumn("mean alt m", ImGuiTableColumnFlags_WidthStretch, 1.0f);
         ImGui::TableSetupColumn("worst alt m", ImGuiTableColumnFlags_WidthStretch, 1.0f);
@@ -45,9 +56,12 @@ private:
         ImGui::TableSetupColumn("time", ImGuiTableColumnFlags_WidthStretch, 1.0f);
         ImGui::TableHeadersRow();
         for (const auto& r : s.runs) {
+            if (hide_earlier && r.earlier_session) continue;
             ImGui::TableNextRow();
             ImGui::TableNextColumn();
             ImGui::Text("%s%s", r.name.c_str(), r.active ? " (now)" : "");
+            ImGui::TableNextColumn();
+            ImGui::TextUnformatted(r.log.c_str());
             ImGui::TableNextColumn();
             char pct[32];
             std::snprintf(pct, sizeof pct, "%.1f %%", r.percent_covered);

@@ -169,6 +169,7 @@ CoverageTile& CoverageRaster::tileFor(std::int32_t tx, std::int32_t ty) {
 }
 
 int CoverageRaster::paletteIndex(CoverageTile& t, int run) {
+    if (run == kRunOverflow) return kPaletteSize - 1;
     if (run < 0) return 0;
     for (int i = 1; i < t.palette_used; ++i) {
         if (t.palette[static_cast<std::size_t>(i - 1)] == run) return i;
@@ -333,7 +334,10 @@ void CoverageRaster::paintQuad(const std::array<Point, 4>& corners, const QuadPr
                     }
                     i = blk_end;
                 }
-                if (changed) t.generation = m_generation;
+                if (changed) {
+                    t.generation = m_generation;
+                    if (m_track_dirty) markDirty(t);
+                }
             }
         }
     }
@@ -403,6 +407,96 @@ std::uint64_t CoverageRaster::contentHash() const {
         }
     }
     return h;
+}
+
+// ---- merging ----------------------------------------------------------------------------------
+
+void CoverageRaster::markDirty(CoverageTile& t) {
+    if (t.dirty != 0) return;
+    t.dirty = 1;
+    m_dirty.push_back(m_index.find(t.key) - 1);
+}
+
+std::vector<TileKey> CoverageRaster::takeDirtyTiles() {
+    std::vector<TileKey> keys;
+    keys.reserve(m_dirty.size());
+    for (std::uint32_t i : m_dirty) {
+        m_tiles[i].dirty = 0;
+        keys.push_back(m_tiles[i].key);
+    }
+    m_dirty.clear();
+    return keys;
+}
+
+std::uint64_t CoverageRaster::mergeTile(TileKey key, std::uint16_t block_mask,
+                                        std::span<const std::uint8_t, kCellsPerTile> codes,
+                                        std::span<const std::int32_t, kCellsPerTile> runs) {
+    if (block_mask == 0) return 0;
+    ++m_generation;
+    CoverageTile& t = tileFor(tileX(key), tileY(key));
+    std::uint64_t newly = 0;
+    bool changed = false;
+    for (int b = 0; b < kBlocksPerTile; ++b) {
+        if ((block_mask & (1U << b)) == 0) continue;
+        const int row0 = (b / kBlocksPerSide) * kBlockCells, col0 = (b % kBlocksPerSide) * kBlockCells;
+        auto& slot = t.block[static_cast<std::size_t>(b)];
+        for (int off = 0; off < kCellsPerBlock; ++off) {
+            const int ci = (row0 + (off >> kBlockShift)) * kTileCells + col0 + (off & (kBlockCells - 1));
+            const std::uint8_t q = codes[static_cast<std::size_t>(ci)];
+            if (q == 0) continue;
+            const int run = runs[static_cast<std::size_t>(ci)];
+            if (slot == 0) {
+                const std::uint32_t idx = m_blocks.add();
+                m_blocks[idx].runs = static_cast<std::uint32_t>(paletteIndex(t, run));
+                slot = idx + 1;
+            }
+            CoverageBlock& blk = m_blocks[slot - 1];
+            const std::uint8_t cur = blk.margin[static_cast<std::size_t>(off)];
+            if (q < cur) continue;
+            if (q == cur) {
+                const RunPlane* plane = (blk.runs & CoverageBlock::kPlaneBit) != 0
+                                            ? &m_planes[blk.runs & ~CoverageBlock::kPlaneBit]
+                                            : nullptr;
+                const int cur_run = t.runOfIndex(runIndexIn(blk, plane, off));
+                if (mergeRank(run) >= mergeRank(cur_run)) continue;
+            }
+            if (cur < kCoveredCode && q >= kCoveredCode) ++newly;
+            blk.margin[static_cast<std::size_t>(off)] = q;
+            const int pal = paletteIndex(t, run);
+            if (blk.runs != static_cast<std::uint32_t>(pal)) setRuns(blk, off, 1U, pal);
+            changed = true;
+        }
+    }
+    if (changed) {
+        t.generation = m_generation;
+        if (m_track_dirty) markDirty(t);
+    }
+    return newly;
+}
+
+std::uint64_t CoverageRaster::mergeFrom(const CoverageRaster& other, int run_offset) {
+    if (other.m_cell_m != m_cell_m || other.m_origin.e_m != m_origin.e_m ||
+        other.m_origin.n_m != m_origin.n_m) {
+        throw std::invalid_argument("coverage raster: merge needs the same cell size and origin");
+    }
+    std::uint64_t newly = 0;
+    std::array<std::uint8_t, kCellsPerTile> codes{};
+    std::array<std::int32_t, kCellsPerTile> runs{};
+    for (std::uint32_t i = 0; i < other.m_tiles.size(); ++i) {
+        const CoverageTile& t = other.m_tiles[i];
+        std::uint16_t mask = 0;
+        for (int b = 0; b < kBlocksPerTile; ++b)
+            if (t.block[static_cast<std::size_t>(b)] != 0) mask = static_cast<std::uint16_t>(mask | (1U << b));
+        if (mask == 0) continue;
+        other.tileCodes(t, codes);
+        for (int c = 0; c < kCellsPerTile; ++c) {
+            int r = codes[static_cast<std::size_t>(c)] == 0 ? kRunNone : other.runAt(t, c);
+            if (r >= 0) r += run_offset;
+            runs[static_cast<std::size_t>(c)] = r;
+        }
+        newly += mergeTile(t.key, mask, codes, runs);
+    }
+    return newly;
 }
 
 }  // namespace sg::coverage

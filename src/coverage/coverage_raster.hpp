@@ -84,6 +84,7 @@ struct CoverageTile {
     std::array<std::uint32_t, kBlocksPerTile> block{};
     std::array<std::int32_t, kPaletteSize - 2> palette{};  // run ids of palette indices 1..14
     std::uint8_t palette_used = 1;                         // next free palette index
+    std::uint8_t dirty = 0;                                // in the raster's dirty list
 
     // Run id of palette index `idx` (0..15).
     int runOfIndex(int idx) const {
@@ -215,6 +216,30 @@ public:
     // independent of hash-map layout and paint order of equal results.
     std::uint64_t contentHash() const;
 
+    // ---- merging (a site: the per-cell best over several sessions; docs/site.md) -------------
+    // The join of two cells: the higher margin code wins; at equal codes the run that ranks first
+    // (mergeRank: real run ids ascending, then "no run", then "run not recorded"). The join is
+    // commutative, associative and idempotent, so a merge of any set of rasters in any order and
+    // grouping gives the same cells (exactly while no tile needs more than 14 runs: past that a
+    // cell records kRunOverflow, and which cells do can depend on the order).
+    static int mergeRank(int run) {
+        return run >= 0 ? run : (run == kRunNone ? 0x7FFFFFFE : 0x7FFFFFFF);
+    }
+    // Joins the cells of one tile: codes and runs row-major (index = row * 32 + col), cells with
+    // code 0 ignored; `block_mask` bit b set when block b may hold painted cells. Returns the
+    // number of cells that became covered (code reached kCoveredCode) by this merge.
+    std::uint64_t mergeTile(TileKey key, std::uint16_t block_mask,
+                            std::span<const std::uint8_t, kCellsPerTile> codes,
+                            std::span<const std::int32_t, kCellsPerTile> runs);
+    // Joins every cell of `other` (same cell size and origin, else std::invalid_argument), its
+    // run ids >= 0 shifted by run_offset. Returns the cells that became covered.
+    std::uint64_t mergeFrom(const CoverageRaster& other, int run_offset = 0);
+
+    // Dirty tiles (for a live site view that joins a session's raster into the site's): when on,
+    // every tile a paint or merge changes is listed once until takeDirtyTiles() hands the list out.
+    void setTrackDirty(bool on) { m_track_dirty = on; }
+    std::vector<TileKey> takeDirtyTiles();
+
 private:
     // Open addressing, linear probing, load <= 3/4: tile key -> 1 + tile index (0 = empty slot).
     class TileIndex {
@@ -246,6 +271,9 @@ private:
     ChunkPool<RunPlane, 10> m_planes;       // 1024 planes (32 KiB) per chunk
     std::uint64_t m_generation = 0;
     std::uint64_t m_palette_overflows = 0;
+    bool m_track_dirty = false;
+    std::vector<std::uint32_t> m_dirty;  // tile pool indices
+    void markDirty(CoverageTile& t);
     // Last tile looked up by paintQuad (spans mostly stay in one tile): key and 1 + index.
     TileKey m_last_key = 0;
     std::uint32_t m_last_tile = 0;

@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <stdexcept>
 
 namespace sg::coverage {
 
@@ -44,6 +45,7 @@ bool LineTracker::directionMatches(int index, double dir_e, double dir_n, bool& 
 void LineTracker::startRun(int line, bool reversed, std::int64_t t_ns, Point pos) {
     LineRun r;
     r.id = static_cast<int>(m_runs.size());
+    r.session = m_session;
     r.line = line;
     r.reversed = reversed;
     r.start_t_ns = r.end_t_ns = t_ns;
@@ -124,6 +126,16 @@ int LineTracker::update(std::int64_t t_ns, Point pos, double dir_e, double dir_n
     return r.id;
 }
 
+void LineTracker::adoptEarlierRuns(std::vector<LineRun> runs, int session) {
+    if (!m_runs.empty()) throw std::logic_error("line tracker: earlier runs after the first run");
+    for (std::size_t i = 0; i < runs.size(); ++i) {
+        if (runs[i].id != static_cast<int>(i)) throw std::logic_error("line tracker: earlier run ids must be 0..n-1");
+        runs[i].open = false;
+    }
+    m_runs = std::move(runs);
+    m_session = session;
+}
+
 void LineTracker::choose(int index) {
     if (index < 0 || index >= static_cast<int>(m_lines.size())) return;
     m_forced = index;
@@ -151,9 +163,14 @@ void LineTracker::refreshRun(const CoverageRaster& raster, int run) {
 }
 
 void LineTracker::refreshCoverage(const CoverageRaster& raster) {
+    // The corridor belongs to the line: one scan per line however many runs it had (a site of
+    // many sessions has many runs per line).
+    std::vector<double> pct(m_lines.size(), -1.0);
     for (auto& r : m_runs) {
-        r.corridor_covered_pct = corridorCoveragePercent(
-            raster, m_lines[static_cast<std::size_t>(r.line)], 0.5 * m_opt.line_spacing_m);
+        double& p = pct[static_cast<std::size_t>(r.line)];
+        if (p < 0.0)
+            p = corridorCoveragePercent(raster, m_lines[static_cast<std::size_t>(r.line)], 0.5 * m_opt.line_spacing_m);
+        r.corridor_covered_pct = p;
     }
 }
 

@@ -23,6 +23,7 @@ struct LineTrackerOptions {
 
 struct LineRun {
     int id = 0;                  // run id (0, 1, 2, ...), stored in raster cells
+    int session = 0;             // acquisition session (log) of a site it was run in (0: the first)
     int line = -1;               // index into the plan's lines
     bool reversed = false;       // flown end -> start
     bool open = true;
@@ -56,6 +57,11 @@ public:
     // id, or kRunNone when on no line.
     int update(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
                std::optional<double> altitude_m);
+
+    // A site: the runs of earlier sessions (ids 0..n-1, closed), before the first update; new runs
+    // continue the numbering and carry `session`. Throws std::logic_error after an update.
+    void adoptEarlierRuns(std::vector<LineRun> runs, int session);
+    int session() const { return m_session; }
 
     // Operator choice: force line `index` (it stays active whatever the position, a new run
     // starting when the direction reverses); automatic() returns to automatic selection.
@@ -103,6 +109,7 @@ private:
     int m_active_line = -1;
     int m_open_run = kRunNone;
     int m_forced = -1;
+    int m_session = 0;
 };
 
 // Fraction (0..100 %) of the cells of the corridor line +- half_width_m whose margin >= 1.

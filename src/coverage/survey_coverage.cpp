@@ -1,6 +1,7 @@
 // The coverage module's per-survey state and the swath-edge probe; see survey_coverage.hpp.
 #include "coverage/survey_coverage.hpp"
 
+#include <array>
 #include <cmath>
 
 namespace sg::coverage {
@@ -58,25 +59,55 @@ SurveyCoverage SurveyCoverage::fromConfig(const config::Section& root, const Lon
 
 int SurveyCoverage::updatePosition(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
                                    std::optional<double> altitude_m) {
+    syncSite();
     return m_tracker.update(t_ns, pos, dir_e, dir_n, altitude_m);
 }
 
+CoverageRaster& SurveyCoverage::beginSite() {
+    if (!m_site) {
+        m_site = std::make_unique<CoverageRaster>(m_raster.cellSize(), m_raster.origin());
+        m_raster.setTrackDirty(true);
+        m_raster.takeDirtyTiles();
+        m_site->mergeFrom(m_raster);  // anything painted before (normally nothing)
+    }
+    return *m_site;
+}
+
+void SurveyCoverage::syncSite() {
+    if (!m_site) return;
+    const auto keys = m_raster.takeDirtyTiles();
+    if (keys.empty()) return;
+    std::array<std::uint8_t, kCellsPerTile> codes{};
+    std::array<std::int32_t, kCellsPerTile> runs{};
+    for (TileKey key : keys) {
+        const CoverageTile* t = m_raster.tile(tileX(key), tileY(key));
+        if (t == nullptr) continue;
+        std::uint16_t mask = 0;
+        for (int b = 0; b < kBlocksPerTile; ++b)
+            if (m_raster.block(*t, b) != nullptr) mask = static_cast<std::uint16_t>(mask | (1U << b));
+        m_raster.tileCodes(*t, codes);
+        for (int c = 0; c < kCellsPerTile; ++c)
+            runs[static_cast<std::size_t>(c)] = codes[static_cast<std::size_t>(c)] == 0 ? kRunNone : m_raster.runAt(*t, c);
+        m_site->mergeTile(key, mask, codes, runs);
+    }
+}
+
 GapReport SurveyCoverage::gaps() {
-    m_painter.flush();
-    m_tracker.refreshCoverage(m_raster);
-    return findGaps(m_raster, m_plan.area, m_gap_options);
+    flush();
+    m_tracker.refreshCoverage(raster());
+    return findGaps(raster(), m_plan.area, m_gap_options);
 }
 
 SurveyCoverage::Infill SurveyCoverage::infill(const GapReport& report, const InfillOptions& options) const {
     Infill out;
     out.plan = planInfill(report, options);
-    out.after = flyInfill(m_raster, m_plan.area, out.plan, m_gap_options).after;
+    out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options).after;
     return out;
 }
 
 std::uint64_t SurveyCoverage::contentHash() {
-    m_painter.flush();
-    return m_raster.contentHash();
+    flush();
+    return raster().contentHash();
 }
 
 }  // namespace sg::coverage

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cstdint>
+#include <memory>
 #include <optional>
 
 #include "common/config_section.hpp"
@@ -45,12 +46,25 @@ public:
     // Paints one sensor's swath sample (its `run` should be the id updatePosition returned).
     void addSample(const SwathSample& s) { m_painter.add(s); }
     // Paints pending stretches (before reading the raster directly).
-    void flush() { m_painter.flush(); }
+    void flush() {
+        m_painter.flush();
+        syncSite();
+    }
     // Breaks every sensor chain (replay seek).
     void breakChains() { m_painter.reset(); }
 
     const SurveyPlan& plan() const { return m_plan; }
-    const CoverageRaster& raster() const { return m_raster; }
+    // The coverage the survey reads (gaps, checks, screen): the site's when seeded, else this
+    // session's own.
+    const CoverageRaster& raster() const { return m_site ? *m_site : m_raster; }
+    // This session's own painting (equal to raster() without a site).
+    const CoverageRaster& sessionRaster() const { return m_raster; }
+    // A site: returns the site raster (same cell size and origin, empty) for the caller to join
+    // the earlier sessions into; from then on every tile this session paints is joined into it
+    // (syncSite(), called by updatePosition, flush, gaps and contentHash).
+    CoverageRaster& beginSite();
+    bool isSite() const { return m_site != nullptr; }
+    void syncSite();
     LineTracker& lines() { return m_tracker; }
     const LineTracker& lines() const { return m_tracker; }
     const SwathPainter::Counters& painterCounters() const { return m_painter.counters(); }
@@ -71,6 +85,7 @@ private:
     SurveyPlan m_plan;
     GapOptions m_gap_options;
     CoverageRaster m_raster;
+    std::unique_ptr<CoverageRaster> m_site;
     SwathPainter m_painter;
     LineTracker m_tracker;
 };

@@ -16,10 +16,24 @@ SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::strin
 
 LogReplay::LogReplay(const std::string& log_path, const std::optional<std::string>& config_override)
     : m_path(log_path), m_reader(log_path), m_config(configForLog(m_reader, config_override)) {
+    init();
+}
+
+LogReplay::LogReplay(const std::string& log_path, SurveyConfig config)
+    : m_path(log_path), m_reader(log_path), m_config(std::move(config)) {
+    init();
+}
+
+void LogReplay::setSiteSeed(std::function<SiteSeed()> make_seed) {
+    m_make_seed = std::move(make_seed);
+    restart();
+}
+
+void LogReplay::init() {
     m_total = m_reader.rawCount();
     // First and last receive times, for the seek bar.
     {
-        log::LogReader probe(log_path);
+        log::LogReader probe(m_path);
         ReceivedLine l;
         if (probe.next(l)) m_first_ns = l.utc_ns;
         m_last_ns = m_first_ns;
@@ -38,6 +52,7 @@ void LogReplay::restart() {
     m_pipeline = std::make_unique<Pipeline>(m_config, [this] { return m_next_event_id++; });
     // A replay writes no log: gathering its rows would only grow memory by every line.
     m_pipeline->decoder().setLogRows(false);
+    if (m_make_seed) m_pipeline->engine().seedSite(m_make_seed());
     m_fed = 0;
     prime();
 }

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <optional>
 #include <string>
@@ -22,6 +23,10 @@ SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::strin
 class LogReplay {
 public:
     LogReplay(const std::string& log_path, const std::optional<std::string>& config_override);
+    // With a config built by the caller (a site's effective config for this log).
+    LogReplay(const std::string& log_path, SurveyConfig config);
+    // A site: the earlier sessions to join before the first line (kept for restart()).
+    void setSiteSeed(std::function<SiteSeed()> make_seed);
 
     // Feeds the next line; false at the end of the log.
     bool step();
@@ -48,11 +53,13 @@ public:
 
 private:
     void prime();
+    void init();
 
     std::string m_path;
     log::LogReader m_reader;
     SurveyConfig m_config;
     std::unique_ptr<Pipeline> m_pipeline;
+    std::function<SiteSeed()> m_make_seed;
     std::int64_t m_next_event_id = 1;
     ReceivedLine m_next;
     bool m_has_next = false;

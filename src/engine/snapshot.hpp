@@ -195,6 +195,9 @@ struct RunView {
     double worst_deviation_m = 0.0;
     int alarm_count = 0;
     bool active = false;        // being recorded now
+    int session = 0;            // site session (log) the run came from (docs/site.md)
+    std::string log;            // that log's file name ("this session" for the current one)
+    bool earlier_session = false;  // from an earlier log of the site
 };
 
 struct ReplayView {

@@ -269,6 +269,10 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
             v.worst_deviation_m = r.worst_deviation_m;
             v.alarm_count = r.alarms;
             v.active = r.open && r.id == lines->activeRun();
+            v.session = r.session;
+            const auto& prior = m_engine.priorSessions();
+            v.log = r.session < static_cast<int>(prior.size()) ? prior[static_cast<std::size_t>(r.session)].log : "this session";
+            v.earlier_session = r.session < lines->session();
             s.runs.push_back(std::move(v));
         }
     }

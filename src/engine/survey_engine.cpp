@@ -5,6 +5,8 @@
 #include <cmath>
 #include <limits>
 
+#include <fmt/format.h>
+
 #include "detect/swath_plan.hpp"
 
 namespace sg::engine {
@@ -199,8 +201,33 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     drainEpisodes();
 }
 
+void SurveyEngine::seedSite(SiteSeed seed) {
+    if (seed.epsg) {
+        if (m_crs && m_crs->epsg() != *seed.epsg)
+            throw config::ConfigError(fmt::format(
+                "{}: key 'survey.epsg': the site's earlier logs are in EPSG:{}, this config in EPSG:{}; "
+                "logs of one site share one CRS",
+                m_cfg.file, *seed.epsg, m_crs->epsg()));
+        if (!m_crs) {
+            m_crs = std::make_unique<nav::SurveyCrs>(*seed.epsg);
+            m_positioner = std::make_unique<nav::Positioner>(m_cfg.nav, m_crs.get());
+            loadPlan();
+        }
+    }
+    m_site_seeded = true;
+    m_prior_alarms = std::move(seed.alarms);
+    m_prior_outages = std::move(seed.outages);
+    m_prior_sessions = std::move(seed.sessions);
+    if (!m_cov) return;  // no [plan]: no coverage to join
+    auto& site = m_cov->beginSite();
+    if (seed.merge_into) seed.merge_into(site, m_prior_sessions);
+    m_cov->lines().adoptEarlierRuns(std::move(seed.runs), static_cast<int>(m_prior_sessions.size()));
+}
+
 void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
     const std::size_t slot = m_sensor_slot[s.index];
+    if (m_first_sample_ns == 0) m_first_sample_ns = t_ns;
+    m_last_sample_ns = std::max(m_last_sample_ns, t_ns);
     const auto& det = m_cfg.detection.detection;
     s.threshold_nT = detect::detectionThreshold_nT(det.min_anomaly_nT, det.k, s.noise_nT);
     bool valid = true;

@@ -26,6 +26,7 @@
 #include "coverage/swath_painter.hpp"
 #include "detect/fourth_difference_noise.hpp"
 #include "detect/target_model.hpp"
+#include "engine/site_history.hpp"
 #include "engine/survey_config.hpp"
 #include "log/log_schema.hpp"
 #include "nav/positioner.hpp"
@@ -49,14 +50,16 @@ struct SensorState {
     std::uint64_t invalid_samples = 0;
 };
 
-// Why samples covered nothing, counted (a sample can have several reasons).
-struct InvalidCounts {
-    std::uint64_t no_field = 0;      // dropout or field missing
-    std::uint64_t pose = 0;          // no/stale fix, no heading, no cable, ...
-    std::uint64_t no_altitude = 0;
-    std::uint64_t noise_warmup = 0;  // noise window not filled yet after a (re)start
-    std::uint64_t noisy = 0;         // noise above the alarm limit
-    std::uint64_t low_quality = 0;   // signal quality below the alarm limit
+// What a site adds to a new session before its first line: the earlier logs' coverage (joined
+// into the site raster by `merge_into`), their runs (ids 0..n-1), alarms, outages and sessions.
+struct SiteSeed {
+    std::optional<int> epsg;  // CRS of the earlier logs (when the config names none)
+    // Joins the earlier coverage into the site raster; may fill in each session's added_m2.
+    std::function<void(coverage::CoverageRaster&, std::vector<SessionInfo>&)> merge_into;
+    std::vector<coverage::LineRun> runs;
+    std::vector<AlarmSummary> alarms;
+    std::vector<OutageSummary> outages;
+    std::vector<SessionInfo> sessions;
 };
 
 class SurveyEngine {
@@ -85,6 +88,19 @@ public:
     // Pipeline calls it with each line's UTC receive time before the line is processed; silence
     // checks work on this clock, every other check on the aligned (instrument) times.
     void advanceTo(TimeNs t_ns);
+
+    // A site: joins the earlier sessions' coverage, runs and history before the first line (the
+    // CRS and plan are set up from seed.epsg when the config names none). From then on raster()
+    // is the site's and the line runs continue the site's numbering. Throws config::ConfigError
+    // when the seed's CRS differs from the config's.
+    void seedSite(SiteSeed seed);
+    bool isSite() const { return m_site_seeded; }
+    const std::vector<AlarmSummary>& priorAlarms() const { return m_prior_alarms; }
+    const std::vector<OutageSummary>& priorOutages() const { return m_prior_outages; }
+    const std::vector<SessionInfo>& priorSessions() const { return m_prior_sessions; }
+    // Instrument time of the first and last magnetometer samples processed (0 before any).
+    TimeNs firstSample_ns() const { return m_first_sample_ns; }
+    TimeNs lastSample_ns() const { return m_last_sample_ns; }
 
     // Called after every processed magnetometer sample (the snapshot builder keeps history).
     void setSampleObserver(std::function<void(const SensorState&)> fn) { m_observer = std::move(fn); }
@@ -171,6 +187,12 @@ private:
     std::map<std::size_t, TimeNs> m_last_mag_by_slot;  // receive clock of each sensor's last field
     std::optional<TimeNs> m_last_altitude_ns;
     int m_run_of_last_sample = coverage::kRunNone;
+
+    bool m_site_seeded = false;
+    std::vector<AlarmSummary> m_prior_alarms;
+    std::vector<OutageSummary> m_prior_outages;
+    std::vector<SessionInfo> m_prior_sessions;
+    TimeNs m_first_sample_ns = 0, m_last_sample_ns = 0;
 
     std::map<std::uint64_t, std::int64_t> m_episode_event;  // episode id -> events.id
     std::function<void(const SensorState&)> m_observer;

@@ -19,7 +19,9 @@ bool isSilenceCheck(const std::string& name) {
     return name == "gnss_silence" || name == "mag_silence" || name == "altitude_lost";
 }
 
-std::vector<OutageSummary> outages(const SurveyEngine& engine, const LogContext& log) {
+}  // namespace
+
+std::vector<OutageSummary> sessionOutages(const SurveyEngine& engine, const LogContext& log, int session) {
     std::vector<OutageSummary> out;
     const TimeNs end_of_log = std::max(log.last_ns, engine.clock_ns());
     const auto duration = [&](TimeNs start, std::optional<TimeNs> end) {
@@ -28,15 +30,27 @@ std::vector<OutageSummary> outages(const SurveyEngine& engine, const LogContext&
     for (const auto& e : log.events)
         if (e.kind == "outage")
             out.push_back({"link", e.source, e.start_utc_ns, e.end_utc_ns,
-                           duration(e.start_utc_ns, e.end_utc_ns), e.detail});
+                           duration(e.start_utc_ns, e.end_utc_ns), e.detail, session});
     for (const auto& ep : engine.checks().episodes())
         if (isSilenceCheck(ep.check))
             out.push_back({ep.check, "", ep.start_ns, ep.end_ns, duration(ep.start_ns, ep.end_ns),
-                           fmt::format("peak {:.1f} s without data", ep.peak_value)});
+                           fmt::format("peak {:.1f} s without data", ep.peak_value), session});
     std::stable_sort(out.begin(), out.end(),
                      [](const OutageSummary& a, const OutageSummary& b) { return a.start_ns < b.start_ns; });
     return out;
 }
+
+std::vector<AlarmSummary> sessionAlarms(const SurveyEngine& engine, int session) {
+    std::vector<AlarmSummary> out;
+    for (const auto& ep : engine.checks().episodes()) {
+        const auto& c = engine.checks().check(ep.check);
+        out.push_back({ep.check, c.unit(), ep.start_ns, ep.end_ns, checks::levelName(ep.peak_level),
+                       ep.peak_value, ep.ack_ns, session});
+    }
+    return out;
+}
+
+namespace {
 
 // Passes of each run by each gap, and the alarms and outages near them (see GapCause).
 std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m) {
@@ -162,11 +176,41 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
         d.survey_heading_deg = plan->surveyHeadingDeg();
     }
     d.max_overlap_altitude_m = engine.maxOverlapAltitude_m();
-    s.outages = outages(engine, log);
-    for (const auto& ep : engine.checks().episodes()) {
-        const auto& c = engine.checks().check(ep.check);
-        s.alarms.push_back({ep.check, c.unit(), ep.start_ns, ep.end_ns,
-                            checks::levelName(ep.peak_level), ep.peak_value, ep.ack_ns});
+    const int session = static_cast<int>(engine.priorSessions().size());
+    s.outages = engine.priorOutages();
+    for (auto& o : sessionOutages(engine, log, session)) s.outages.push_back(std::move(o));
+    std::stable_sort(s.outages.begin(), s.outages.end(),
+                     [](const OutageSummary& a, const OutageSummary& b) { return a.start_ns < b.start_ns; });
+    s.alarms = engine.priorAlarms();
+    for (auto& a : sessionAlarms(engine, session)) s.alarms.push_back(std::move(a));
+    s.sessions = engine.priorSessions();
+    if (engine.isSite() && lines_processed > 0) {
+        // The session being recorded or replayed on top of the site.
+        SessionInfo live;
+        live.index = session;
+        live.log = std::filesystem::path(log.path).filename().string();
+        live.path = log.path;
+        live.vessel = cfg.nav.vessel.name;
+        live.sensors = engine.sensors().size();
+        live.first_ns = log.first_ns;
+        live.last_ns = log.last_ns;
+        live.survey_first_ns = engine.firstSample_ns();
+        live.survey_last_ns = engine.lastSample_ns();
+        live.lines = lines_processed;
+        live.invalid = engine.invalidCounts();
+        live.live = true;
+        for (const auto& r : s.runs)
+            if (r.session == session) {
+                if (live.runs == 0) live.first_run = r.id;
+                ++live.runs;
+            }
+        s.sessions.push_back(std::move(live));
+    }
+    {
+        std::vector<std::string> names;
+        for (const auto& x : s.sessions)
+            if (std::find(names.begin(), names.end(), x.vessel) == names.end()) names.push_back(x.vessel);
+        s.vessels = names.size();
     }
     s.gap_causes = gapCauses(s, d.line_spacing_m);  // needs the runs, alarms and outages above
     return s;
@@ -239,9 +283,32 @@ nlohmann::json toJson(const SurveySummary& s) {
                         {"worst_deviation_m", r.worst_deviation_m},
                         {"mean_noise_nT", r.meanNoise_nT()},
                         {"worst_noise_nT", r.worst_noise_nT},
-                        {"alarms", r.alarms}});
+                        {"alarms", r.alarms},
+                        {"session", r.session}});
     }
     j["runs"] = runs;
+    if (!s.sessions.empty()) {
+        json sessions = json::array();
+        for (const auto& x : s.sessions)
+            sessions.push_back({{"index", x.index},
+                                {"log", x.log},
+                                {"path", x.path},
+                                {"vessel", x.vessel},
+                                {"sensors", x.sensors},
+                                {"first_ns", x.first_ns},
+                                {"last_ns", x.last_ns},
+                                {"survey_first_ns", x.survey_first_ns},
+                                {"survey_last_ns", x.survey_last_ns},
+                                {"lines", x.lines},
+                                {"first_run", x.first_run},
+                                {"runs", x.runs},
+                                {"own_covered_m2", x.own_covered_m2},
+                                {"added_m2", x.added_m2},
+                                {"recomputed", x.recomputed},
+                                {"note", x.note},
+                                {"live", x.live}});
+        j["site"] = {{"sessions", sessions}, {"vessels", s.vessels}, {"messages", s.site_messages}};
+    }
     json alarms = json::array();
     for (const auto& a : s.alarms) {
         json x{{"check", a.check}, {"unit", a.unit}, {"start_ns", a.start_ns},

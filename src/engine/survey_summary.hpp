@@ -15,27 +15,6 @@
 
 namespace sg::engine {
 
-struct AlarmSummary {
-    std::string check;
-    std::string unit;
-    TimeNs start_ns = 0;
-    std::optional<TimeNs> end_ns;
-    std::string peak_level;
-    double peak_value = 0.0;
-    std::optional<TimeNs> ack_ns;
-};
-
-// A stretch of time without data: a link outage logged by the reader (port lost, reconnect) or
-// a silence the live checks raised an alarm for (GNSS, magnetometer, altitude).
-struct OutageSummary {
-    std::string kind;     // "link" (from the log's events) or the silence check's name
-    std::string source;   // input name for a link outage; empty for a check
-    TimeNs start_ns = 0;
-    std::optional<TimeNs> end_ns;  // nullopt: still open at the end of the log
-    double duration_s = 0.0;       // to end_ns, or to the end of the log when still open
-    std::string detail;
-};
-
 // Coverage of one planned line's corridor (line +- half the line spacing) at the end.
 struct LineCoverage {
     std::string name;
@@ -111,7 +90,15 @@ struct SurveySummary {
     std::vector<OutageSummary> outages;       // by start time
     std::vector<GapCause> gap_causes;         // same order as gaps.gaps
     DetectionSummary detection;
+    // A site (docs/site.md): its sessions (logs) in time order; empty for a lone log.
+    std::vector<SessionInfo> sessions;
+    std::size_t vessels = 0;                  // distinct vessel names among the sessions
+    std::vector<std::string> site_messages;   // logs skipped, recomputed, ... (for people)
 };
+
+// The alarm episodes and data outages of the engine's own session (no site history).
+std::vector<AlarmSummary> sessionAlarms(const SurveyEngine& engine, int session);
+std::vector<OutageSummary> sessionOutages(const SurveyEngine& engine, const LogContext& log, int session);
 
 // Flushes the engine's coverage and computes everything above.
 SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log = {});

@@ -27,11 +27,12 @@ std::array<double, 3> triple(const config::Section& s, std::string_view key) {
 NavConfig parseVesselConfig(const config::Section& root) {
     NavConfig cfg;
     if (auto v = root.optionalTable("vessel")) {
-        v->allowOnly({"antenna_m", "tow_point_m", "heading_source", "heading_max_age_s",
+        v->allowOnly({"name", "antenna_m", "tow_point_m", "heading_source", "heading_max_age_s",
                       "cmg_min_speed_mps", "cmg_window_s", "fix_max_age_s", "draft_m",
                       "transducer_depth_m", "sounder_max_age_s", "gnss_latency_ms",
                       "heading_latency_ms", "sounder_latency_ms"});
         VesselConfig& c = cfg.vessel;
+        c.name = v->string("name", "");
         c.antenna_m = triple(*v, "antenna_m");
         c.tow_point_m = triple(*v, "tow_point_m");
         const std::string src = v->choice("heading_source", {"auto", "hdt", "cmg"}, "auto");

@@ -5,6 +5,7 @@
 
 #include <array>
 #include <optional>
+#include <string>
 #include <vector>
 
 namespace sg::config {
@@ -22,6 +23,7 @@ enum class HeadingSource {
 // Offsets in the vessel frame: forward, starboard, up (m) from the vessel reference point, which
 // is taken at the waterline (so "up" of the tow point is its height above the water).
 struct VesselConfig {
+    std::string name;  // free text: tells the vessels of a site apart in its reports
     std::array<double, 3> antenna_m{0.0, 0.0, 0.0};
     std::array<double, 3> tow_point_m{0.0, 0.0, 0.0};
     HeadingSource heading_source = HeadingSource::Auto;

@@ -1,0 +1,71 @@
+// The per-log session summary of a site (docs/site.md): everything a site needs of one log
+// without replaying it — its coverage raster, line runs, alarm episodes, outages, counts and
+// time span — computed by replaying the log alone under a given config, and kept in a file
+// beside the log (`<log>.sgsum`) with the stamp and content hash of the log it came from and the
+// hash of the site-wide config it was computed under. Never written into the log itself.
+#pragma once
+
+#include <cstdint>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include "coverage/line_runs.hpp"
+#include "engine/site_history.hpp"
+#include "engine/survey_config.hpp"
+
+namespace sg::site {
+
+// Bump when the summary's content or layout changes: older summaries are rebuilt.
+inline constexpr std::uint32_t kSessionSummaryVersion = 1;
+
+// A log that cannot be read (not SQLite, truncated, failing SQLite's quick_check, no config).
+class DamagedLog : public std::runtime_error {
+public:
+    using std::runtime_error::runtime_error;
+};
+
+// Size and modification time of a file: when both are unchanged the content hash is not
+// recomputed (a site opens without reading its logs).
+struct FileStamp {
+    std::uint64_t size = 0;
+    std::int64_t mtime_ns = 0;
+    bool operator==(const FileStamp&) const = default;
+};
+FileStamp stampOf(const std::string& path);
+// XXH3 64-bit hash of the file's bytes.
+std::uint64_t fileContentHash(const std::string& path);
+
+struct SessionSummary {
+    std::uint32_t version = kSessionSummaryVersion;
+    std::string log_name;            // file name of the log
+    FileStamp log_stamp;
+    std::uint64_t log_hash = 0;      // fileContentHash of the log
+    std::uint64_t config_hash = 0;   // siteWideHash of the config it was computed under
+    engine::SessionInfo info;        // index/first_run/added_m2 are filled in by the site
+    int epsg = 0;                    // survey CRS it was computed in (0: no fix, no CRS)
+    std::vector<coverage::LineRun> runs;            // ids 0..n-1 of this log alone
+    std::vector<engine::AlarmSummary> alarms;
+    std::vector<engine::OutageSummary> outages;
+    std::uint64_t raster_hash = 0;   // content hash of this log's own raster
+    std::uint64_t covered_cells = 0;
+    double cell_size_m = 0.0;
+    std::string raster_bytes;        // coverage::rasterToBytes (empty without a [plan])
+};
+
+// Replays `log_path` alone under `config` and summarises it. Checks the log first (SQLite
+// quick_check); throws DamagedLog naming the file and what is wrong.
+SessionSummary buildSessionSummary(const std::string& log_path, const engine::SurveyConfig& config);
+
+// Writes atomically (a temporary file renamed over `path`). Throws std::runtime_error.
+void writeSessionSummary(const std::string& path, const SessionSummary& s);
+// Reads a summary; with_raster == false leaves raster_bytes empty (the header and tables only).
+// Throws std::runtime_error for a missing, damaged or foreign file.
+SessionSummary readSessionSummary(const std::string& path, bool with_raster);
+// Only the raster bytes of a summary file (for merging one log at a time).
+std::string readSessionRaster(const std::string& path);
+
+// Where the summary of a log lives: beside it, with the extension .sgsum.
+std::string summaryPathFor(const std::string& log_path);
+
+}  // namespace sg::site

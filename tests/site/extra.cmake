@@ -1,0 +1,2 @@
+# The site tests run the real `swathguard` binary (demo, gaps, replay, record) on logs they make.
+add_dependencies(test_site swathguard swathguard-sim)
