@@ -27,6 +27,7 @@ int main(int argc, char** argv) {
     std::string from, to, route;
     std::vector<std::string> lines;
     bool no_faults = false;
+    std::optional<double> run_out;
     app.add_option("--scenario", scenario_path, "scenario TOML file")->required()->check(CLI::ExistingFile);
     app.add_option("--out", out, "where the lines go: one file, UDP port, TCP port or pty per instrument")
         ->check(CLI::IsMember({"file", "udp", "tcp", "pty"}));
@@ -52,6 +53,10 @@ int main(int argc, char** argv) {
         ->check(CLI::ExistingFile);
     app.add_option("--lines", lines, "fly only these lines, in this order (names, comma separated)")
         ->delimiter(',');
+    app.add_option("--run-out", run_out, "straight run past each line's end (m), instead of "
+                                         "[plan] run_out_m; the fish, a layback behind, needs more "
+                                         "than its layback to clear the last line")
+        ->check(CLI::Range(0.0, 5000.0));
     app.add_flag("--no-faults", no_faults, "leave out the scenario's faults (scheduled and random)");
     CLI11_PARSE(app, argc, argv);
 
@@ -67,6 +72,7 @@ int main(int argc, char** argv) {
                 return 2;
             }
         }
+        if (run_out) sc.plan.run_out_m = *run_out;
         if (no_faults) {
             sc.faults.clear();
             sc.random_faults.per_hour = 0.0;
