@@ -22,6 +22,7 @@
 #include "coverage/infill.hpp"
 #include "coverage/survey_plan.hpp"
 #include "decode/field_map.hpp"
+#include "drivers_sim/pipeline_feed.hpp"
 #include "drivers_sim/route_file.hpp"
 #include "drivers_sim/run.hpp"
 #include "engine/survey_config.hpp"
@@ -162,6 +163,33 @@ TEST(Site, DemoSplitInATurnNearTheMiddle) {
     runToFiles(sc, b, turn.split_s, std::nullopt, false);
     expectConcatenationIsWhole(whole, a, b, false);
     for (const auto& d : {whole, a, b}) fs::remove_all(d);
+}
+
+TEST(Site, InProcessSessionsTakeEveryLineOnce) {
+    // One simulator, two sessions in one process (as a test feeding two pipelines would): the
+    // first stops before the tick at T, the second continues from it.
+    const Scenario sc = loadScenario(dataPath("short.toml"));
+    const Recorded whole = runInMemory(sc, 1, 120.0);
+    SimOptions o;
+    o.duration_s = 120.0;
+    Simulator sim(sc, o);
+    std::vector<SimLine> first, second;
+    stepUntil(sim, 97.255, [&](const StepOutput& s) { first.insert(first.end(), s.lines.begin(), s.lines.end()); });
+    EXPECT_EQ(sim.elapsed_ns(), 97'250'000'000);  // the tick at 97.26 s not taken yet
+    stepUntil(sim, 1e9, [&](const StepOutput& s) { second.insert(second.end(), s.lines.begin(), s.lines.end()); });
+    ASSERT_EQ(first.size() + second.size(), whole.lines.size());
+    for (std::size_t i = 0; i < whole.lines.size(); ++i) {
+        const SimLine& l = i < first.size() ? first[i] : second[i - first.size()];
+        ASSERT_EQ(l.bytes, whole.lines[i].bytes) << i;
+        ASSERT_EQ(l.utc_ns, whole.lines[i].utc_ns) << i;
+    }
+    // The same split as the file window of runSimulation.
+    const std::string d = tempDir("inproc");
+    const RunResult r = runToFiles(sc, d, std::nullopt, 97.255, false);
+    std::uint64_t sent = 0;
+    for (const auto& c : r.counts) sent += c.sent;
+    EXPECT_EQ(sent, first.size());
+    fs::remove_all(d);
 }
 
 TEST(Site, AnEmptyWindowIsAnError) {
