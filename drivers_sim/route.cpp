@@ -80,12 +80,12 @@ Route::Route(const PlanSpec& plan) {
         Vec2 b = l.end_m;
         Vec2 u = (1.0 / length(b - a)) * (b - a);
         // Back and forth: run each line against the previous one's direction.
-        if (!first && dot(u, prev_dir) > 0.0) {
+        if (!first && !l.as_drawn && dot(u, prev_dir) > 0.0) {
             std::swap(a, b);
             u = -1.0 * u;
             m_reversed[static_cast<std::size_t>(idx)] = 1;
         }
-        const Vec2 run_in = a - plan.run_in_m * u;
+        const Vec2 run_in = a - l.run_in_m.value_or(plan.run_in_m) * u;
         if (first) {
             add(run_in, -1);
         } else if (dot(u, prev_dir) < -0.99) {
@@ -95,7 +95,7 @@ Route::Route(const PlanSpec& plan) {
         }
         add(a, idx);
         add(b, -1);
-        prev_end = b + plan.run_out_m * u;
+        prev_end = b + l.run_out_m.value_or(plan.run_out_m) * u;
         add(prev_end, -1);
         prev_dir = u;
         first = false;

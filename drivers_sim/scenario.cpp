@@ -1,6 +1,7 @@
 // Scenario TOML reader; see scenario.hpp and docs/simulator.md for every key.
 #include "drivers_sim/scenario.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <ctime>
@@ -169,7 +170,11 @@ void parsePlan(const toml::table& tbl, const Section& root, Scenario& sc) {
         if (s.has("first_start_m")) s.fail("first_start_m", "either [[plan.line]] or first_start_m");
         for (const Section& l : explicit_lines) {
             l.allowOnly({"name", "start_m", "end_m"});
-            p.lines.push_back({l.string("name"), point(l, "start_m"), point(l, "end_m")});
+            LineSpec spec;
+            spec.name = l.string("name");
+            spec.start_m = point(l, "start_m");
+            spec.end_m = point(l, "end_m");
+            p.lines.push_back(spec);
         }
         p.line_spacing_m = s.number("line_spacing_m", 0.1, 1e4, 0.0);
     } else {
@@ -187,7 +192,11 @@ void parsePlan(const toml::table& tbl, const Section& root, Scenario& sc) {
         const Vec2 step = (side == "starboard" ? 1.0 : -1.0) * p.line_spacing_m * starboard;
         for (std::int64_t i = 0; i < count; ++i) {
             const Vec2 off = static_cast<double>(i) * step;
-            p.lines.push_back({fmt::format("{}{:02d}", prefix, i + 1), a + off, b + off});
+            LineSpec spec;
+            spec.name = fmt::format("{}{:02d}", prefix, i + 1);
+            spec.start_m = a + off;
+            spec.end_m = b + off;
+            p.lines.push_back(spec);
         }
     }
     for (std::size_t i = 0; i < p.lines.size(); ++i) {
@@ -422,13 +431,55 @@ Scenario parseTable(const toml::table& tbl, const std::string& name) {
     parseInstruments(root, sc);
     parseFaults(root, sc);
     if (auto r = root.optionalTable("run")) {
-        r->allowOnly({"duration_s"});
+        r->allowOnly({"duration_s", "lines"});
         sc.duration_s = r->optionalNumber("duration_s", 1.0, 1e7);
+        if (r->has("lines")) {
+            const toml::array* names = tbl["run"]["lines"].as_array();
+            if (names == nullptr || names->empty()) r->fail("lines", "an array of plan line names");
+            for (const toml::node& n : *names) {
+                const auto v = n.value<std::string>();
+                if (!v) r->fail("lines", "an array of plan line names (strings)");
+                sc.run_lines.push_back(*v);
+            }
+            try {
+                (void)flightPlan(sc);
+            } catch (const config::ConfigError& e) {
+                throw config::ConfigError(fmt::format("{}: key 'run.lines': {}", name, e.what()));
+            }
+        }
     }
     return sc;
 }
 
 }  // namespace
+
+PlanSpec flightPlan(const Scenario& sc) {
+    PlanSpec p = sc.plan;
+    if (!sc.route_lines.empty()) {
+        p.lines = sc.route_lines;
+        p.order.clear();
+        for (std::size_t i = 0; i < p.lines.size(); ++i) p.order.push_back(static_cast<int>(i));
+    }
+    if (sc.run_lines.empty()) return p;
+    std::string names;
+    for (const LineSpec& l : p.lines) names += (names.empty() ? "" : ", ") + l.name;
+    std::vector<int> order;
+    for (const std::string& want : sc.run_lines) {
+        int found = -1;
+        for (std::size_t i = 0; i < p.lines.size(); ++i) {
+            if (p.lines[i].name == want) found = static_cast<int>(i);
+        }
+        if (found < 0) {
+            throw config::ConfigError(fmt::format("line '{}' is not in the {} (lines: {})", want,
+                                                  sc.route_lines.empty() ? "plan" : "route", names));
+        }
+        if (std::find(order.begin(), order.end(), found) != order.end())
+            throw config::ConfigError(fmt::format("line '{}' is listed twice", want));
+        order.push_back(found);
+    }
+    p.order = order;
+    return p;
+}
 
 Scenario loadScenario(const std::string& path) { return parseTable(config::parseFile(path), path); }
 

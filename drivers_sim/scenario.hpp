@@ -95,6 +95,11 @@ struct LineSpec {
     std::string name;
     Vec2 start_m;
     Vec2 end_m;
+    // Route lines (--route GeoJSON properties) may set their own run-in and run-out (metres,
+    // added before the start and past the end, as for planned lines) and forbid reversal.
+    std::optional<double> run_in_m;
+    std::optional<double> run_out_m;
+    bool as_drawn = false;  // flown from start to end whatever the previous line's direction
 };
 
 struct PlanSpec {
@@ -242,7 +247,18 @@ struct Scenario {
     std::vector<FaultSpec> faults;
     RandomFaultSpec random_faults;
     std::optional<double> duration_s;  // default: until the last line's run-out ends
+    // What is flown (the survey plan above stays the plan: it is what the plan GeoJSON shows).
+    // A route (--route FILE.geojson) replaces the plan's lines; `run_lines` ([run] lines or
+    // --lines) picks lines by name, flown in the order listed.
+    std::vector<LineSpec> route_lines;
+    std::string route_file;
+    std::vector<std::string> run_lines;
 };
+
+// The lines actually flown, as a PlanSpec for the Route: the plan itself, or the route's lines
+// (order as given, the plan's run-in/out and turn radius), narrowed to `run_lines` when set.
+// Throws config::ConfigError naming an unknown or repeated line name (and the names available).
+PlanSpec flightPlan(const Scenario& sc);
 
 // Reads a scenario; throws config::ConfigError naming the file and key on any problem.
 Scenario loadScenario(const std::string& path);

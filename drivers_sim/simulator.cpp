@@ -52,7 +52,7 @@ std::optional<Channel> channelFromName(const std::string& name) {
 }
 
 Simulator::Simulator(Scenario scenario, SimOptions options)
-    : m_sc(std::move(scenario)), m_opt(options), m_crs(makeCrs(m_sc.site)),
+    : m_sc(std::move(scenario)), m_opt(options), m_flight(flightPlan(m_sc)), m_crs(makeCrs(m_sc.site)),
       m_seabed(m_sc.seabed), m_rng_gnss(options.seed, 1), m_rng_gyro(options.seed, 2),
       m_rng_sounder(options.seed, 3), m_rng_mag(options.seed, 4), m_rng_alt(options.seed, 5),
       m_rng_faults(options.seed, 6), m_rng_random(options.seed, 7) {
@@ -62,7 +62,7 @@ Simulator::Simulator(Scenario scenario, SimOptions options)
                                     std::to_string(m_crs.epsg()));
     m_origin = {o.easting_m, o.northing_m};
     m_convergence_deg = m_crs.convergence_deg(m_sc.site.origin_lon_deg, m_sc.site.origin_lat_deg);
-    m_route = std::make_unique<Route>(m_sc.plan);
+    m_route = std::make_unique<Route>(m_flight);
     m_model = std::make_unique<VesselModel>(m_sc, *m_route, m_seabed, m_convergence_deg,
                                             options.seed);
     m_start_ns = options.start_utc_ns.value_or(m_sc.site.start_utc_ns);

@@ -66,7 +66,7 @@ struct NavTruth {
     double cable_out_m = 0.0;
     double layback_m = 0.0;
     double cross_track_m = 0.0;
-    int line = -1;             // plan line being run, -1 off line
+    int line = -1;             // line being run (index into Simulator::flight().lines), -1 off line
 };
 
 struct StepOutput {
@@ -100,7 +100,12 @@ public:
     TimeNs start_utc_ns() const { return m_start_ns; }
     // Exact for whole ticks: integer nanoseconds divided once.
     double elapsed_s() const { return static_cast<double>(m_tick * kTickNs) / 1e9; }
+    // Simulated time since the start, in whole ticks (ns).
+    TimeNs elapsed_ns() const { return m_tick * kTickNs; }
     const Scenario& scenario() const { return m_sc; }
+    // The lines flown (the plan, a route, or a selection of either: see flightPlan()). NavTruth
+    // line indices point into flight().lines.
+    const PlanSpec& flight() const { return m_flight; }
     const Route& route() const { return *m_route; }
     const Seabed& seabed() const { return m_seabed; }
     const VesselModel& model() const { return *m_model; }
@@ -133,6 +138,7 @@ private:
 
     Scenario m_sc;
     SimOptions m_opt;
+    PlanSpec m_flight;
     nav::SurveyCrs m_crs;
     Vec2 m_origin;
     double m_convergence_deg = 0.0;
