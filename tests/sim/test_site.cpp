@@ -6,10 +6,12 @@
 // site and are read by the core's parsers.
 #include <gtest/gtest.h>
 
+#include <sys/wait.h>
 #include <unistd.h>
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -189,6 +191,41 @@ TEST(Site, InProcessSessionsTakeEveryLineOnce) {
     std::uint64_t sent = 0;
     for (const auto& c : r.counts) sent += c.sent;
     EXPECT_EQ(sent, first.size());
+    fs::remove_all(d);
+}
+
+// The real binary: a window edge given as UTC is the same as in seconds; wrong setups exit 2
+// with a message naming the problem, never 0 with nothing written.
+int runSim(const std::string& args, const std::string& out_file) {
+    const std::string cmd = std::string(SG_BINARY_DIR) + "/drivers_sim/swathguard-sim " + args +
+                            " > " + out_file + " 2>&1";
+    const int rc = std::system(cmd.c_str());
+    return WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
+}
+
+TEST(Site, CommandLineWindowsLinesAndRoutes) {
+    const std::string d = tempDir("cli");
+    const std::string sc = dataPath("short.toml");
+    // short.toml starts at 2026-03-01T23:59:30Z: 00:01:00 the next day is 90 s in.
+    ASSERT_EQ(runSim("--scenario " + sc + " --dir " + d + "/utc --duration 120 --from 2026-03-02T00:01:00Z",
+                     d + "/utc.txt"), 0) << readFile(d + "/utc.txt");
+    ASSERT_EQ(runSim("--scenario " + sc + " --dir " + d + "/sec --duration 120 --from 90", d + "/sec.txt"), 0);
+    EXPECT_FALSE(readFile(d + "/utc/mag.log").empty());
+    EXPECT_EQ(readFile(d + "/utc/mag.log"), readFile(d + "/sec/mag.log"));
+    EXPECT_NE(readFile(d + "/utc.txt").find("window: lines from 90.00 s"), std::string::npos);
+
+    EXPECT_EQ(runSim("--scenario " + sc + " --dir " + d + "/late --duration 20 --from 30", d + "/late.txt"), 2);
+    EXPECT_NE(readFile(d + "/late.txt").find("no line written"), std::string::npos) << readFile(d + "/late.txt");
+    EXPECT_EQ(runSim("--scenario " + sc + " --dir " + d + "/x --from 50 --to 40", d + "/order.txt"), 2);
+    EXPECT_NE(readFile(d + "/order.txt").find("--to"), std::string::npos);
+    EXPECT_EQ(runSim("--scenario " + sc + " --dir " + d + "/x --from 08:00", d + "/bad.txt"), 2);
+    EXPECT_EQ(runSim("--scenario " + sc + " --dir " + d + "/x --lines L01,L7", d + "/lines.txt"), 2);
+    EXPECT_NE(readFile(d + "/lines.txt").find("'L7' is not in the plan"), std::string::npos) << readFile(d + "/lines.txt");
+    {
+        std::ofstream(d + "/none.geojson") << R"({"type": "FeatureCollection", "features": []})";
+    }
+    EXPECT_EQ(runSim("--scenario " + sc + " --dir " + d + "/x --route " + d + "/none.geojson", d + "/route.txt"), 2);
+    EXPECT_NE(readFile(d + "/route.txt").find("none.geojson"), std::string::npos) << readFile(d + "/route.txt");
     fs::remove_all(d);
 }
 
