@@ -13,6 +13,11 @@
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/site_open.hpp"
+#include "drivers_sim/pipeline_feed.hpp"
+#include "drivers_sim/route_file.hpp"
+#include "site/session_summary.hpp"
+#include "site/site_config.hpp"
 #include "common/line_framer.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
@@ -32,24 +37,65 @@ struct DemoOptions {
     double duration_s = 0.0;
     std::string speed = "max";
     ScreenArgs screen;
+    // A site session of the simulated survey (docs/site.md): the log goes to SITE/logs, the
+    // earlier logs are joined first; the simulator's window, lines, route and start choose what
+    // this session flies (docs/simulator.md, "Sessions").
+    std::string site;
+    std::optional<double> from_s, to_s;
+    std::vector<std::string> lines;
+    std::string route;
+    std::optional<double> run_out_m;
+    bool no_faults = false;
+    std::string start;
 };
 
 int runDemo(const DemoOptions& o) {
     const auto cfg = engine::loadSurveyConfig(o.config);
     auto scenario = sim::loadScenario(o.scenario);
+    if (!o.route.empty()) sim::loadRoute(o.route, scenario);
+    if (!o.lines.empty()) scenario.run_lines = o.lines;
+    if (o.run_out_m) scenario.plan.run_out_m = *o.run_out_m;
+    if (o.no_faults) {
+        scenario.faults.clear();
+        scenario.random_faults.per_hour = 0.0;
+    }
     sim::SimOptions sim_opts;
     sim_opts.seed = o.seed;
+    if (!o.start.empty()) sim_opts.start_utc_ns = sim::parseUtc(o.start);
     if (o.duration_s > 0) sim_opts.duration_s = o.duration_s;
+    if (o.to_s) sim_opts.duration_s = *o.to_s;
     sim::Simulator simulator(std::move(scenario), sim_opts);
+    // A later session: the world runs from the start, only its lines from `from` on are fed.
+    if (o.from_s) sim::skipUntil(simulator, *o.from_s);
 
-    std::filesystem::create_directories(o.out_dir);
-    const auto log_path = (std::filesystem::path(o.out_dir) / "demo.sglog").string();
-    std::filesystem::remove(log_path);
+    std::optional<site::Site> site;
+    std::string log_path;
+    if (!o.site.empty()) {
+        std::filesystem::create_directories(o.site);
+        site = openSite({o.site}, std::nullopt, "", false);
+        const engine::SurveyConfig* ref = site->config_in_force ? &*site->config_in_force : nullptr;
+        if (ref == nullptr && !site->usable().empty()) ref = &*site->usable().front()->config;
+        if (ref != nullptr)
+            if (auto d = site::firstSiteWideDifference(cfg, *ref))
+                throw config::ConfigError(fmt::format("{}: differs from the site's config {} in {} (docs/site.md)",
+                                                      o.config, ref->file, *d));
+        // Named by the session's simulated start, as record names a log by its start.
+        log_path = site::newLogPath(o.site, simulator.now_utc_ns());
+    } else {
+        std::filesystem::create_directories(o.out_dir);
+        log_path = (std::filesystem::path(o.out_dir) / "demo.sglog").string();
+        std::filesystem::remove(log_path);
+    }
     io::LogWriter writer(log_path, {500, false},
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()},
                           {"origin", "swathguard demo (simulated instruments)"}});
     engine::Pipeline pipeline(cfg, [&writer] { return writer.nextEventId(); });
+    if (site) {
+        pipeline.engine().seedSite(site::siteSeed(*site));
+        std::printf("demo: site %s: %zu earlier log(s) joined; new log %s\n", o.site.c_str(),
+                    pipeline.engine().priorSessions().size(), log_path.c_str());
+    }
 
     // Channel -> input name: the input of the same name, else the input with the matching role.
     static const std::map<std::string, std::string> kRoleOf = {
@@ -87,7 +133,7 @@ int runDemo(const DemoOptions& o) {
     return runWithScreen(o.screen, "swathguard demo", [&](ScreenLink& link) {
     engine::SnapshotBuilder builder(pipeline.engine());
     auto last_publish = std::chrono::steady_clock::now();
-    const TimeNs sim0 = simulator.start_utc_ns();
+    const TimeNs sim0 = simulator.now_utc_ns();  // a later session is paced from its start
     std::printf("demo: simulating '%s' (seed %llu) into %s\n", o.scenario.c_str(),
                 static_cast<unsigned long long>(o.seed), log_path.c_str());
     const auto wall0 = std::chrono::steady_clock::now();
@@ -134,8 +180,17 @@ int runDemo(const DemoOptions& o) {
     std::printf("demo: %llu lines, %.0f s of survey in %.1f s (%.0fx real time)\n",
                 static_cast<unsigned long long>(lines), sim_s, wall_s, wall_s > 0 ? sim_s / wall_s : 0.0);
 
-    auto summary = engine::summarise(pipeline.engine(), pipeline.linesFed());
+    engine::LogContext ctx;
+    ctx.path = log_path;
+    auto summary = engine::summarise(pipeline.engine(), pipeline.linesFed(), ctx);
+    if (!summary.sessions.empty()) std::printf("%s", sessionsText(summary).c_str());
     std::printf("%s", engine::toText(summary).c_str());
+    if (site && lines > 0) {
+        // The new log's own summary (the next session opens the site without replaying it).
+        const auto sum = site::buildSessionSummary(log_path, cfg);
+        site::writeSessionSummary(site::summaryPathFor(log_path), sum);
+        std::printf("demo: session summary %s\n", site::summaryPathFor(log_path).c_str());
+    }
     const auto written = engine::writeExports(summary, pipeline.engine(), o.out_dir);
     std::printf("log: %s\n", log_path.c_str());
     for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
@@ -165,6 +220,14 @@ void addDemoCommand(CLI::App& app) {
     cmd->add_option("--seed", o->seed, "Simulator seed")->capture_default_str();
     cmd->add_option("--duration", o->duration_s, "Simulated seconds (default: the whole plan)");
     cmd->add_option("--speed", o->speed, "Simulated seconds per wall second, or max")->capture_default_str();
+    cmd->add_option("--site", o->site, "Site folder: the log goes to SITE/logs, with the earlier logs joined first");
+    cmd->add_option("--from", o->from_s, "This session starts at this simulated second (the world runs from 0)");
+    cmd->add_option("--to", o->to_s, "This session stops at this simulated second");
+    cmd->add_option("--lines", o->lines, "Fly only these plan lines (names, comma separated)")->delimiter(',');
+    cmd->add_option("--route", o->route, "Fly the LineStrings of this GeoJSON (e.g. infill.geojson) instead");
+    cmd->add_option("--run-out", o->run_out_m, "Straight run past each line's end (m)");
+    cmd->add_flag("--no-faults", o->no_faults, "Leave out the scenario's faults");
+    cmd->add_option("--start", o->start, "Simulated start (UTC, e.g. 2026-06-15T08:00:00Z)");
     addScreenOptions(*cmd, o->screen);
     cmd->callback([o] { runDemo(*o); });
 }
