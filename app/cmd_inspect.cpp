@@ -17,6 +17,7 @@
 #include <vector>
 
 #include <CLI/CLI.hpp>
+#include <fmt/compile.h>
 #include <fmt/format.h>
 
 #include "app/commands.hpp"
@@ -53,12 +54,20 @@ public:
         m_b.push_back('}');
         m_first = false;
     }
-    // "key": then the value must follow (one of the value calls, or open()).
+    // "key": then the value must follow (one of the value calls, or open()). `k` is one of this
+    // file's key names (plain ASCII, nothing to escape); keyEscaped() for any other text.
     void key(std::string_view k) {
+        sep();
+        m_b.push_back('"');
+        append(k);
+        append("\":");
+        m_first = true;  // the value needs no comma
+    }
+    void keyEscaped(std::string_view k) {
         sep();
         str(k);
         m_b.push_back(':');
-        m_first = true;  // the value needs no comma
+        m_first = true;
     }
     void null() { raw("null"); }
     void boolean(bool v) { raw(v ? "true" : "false"); }
@@ -73,13 +82,13 @@ public:
             append("null");
             return;
         }
-        const std::size_t start = m_b.size();
-        fmt::format_to(std::back_inserter(m_b), "{}", v);
+        char text[40];
+        char* const end = fmt::format_to(text, FMT_COMPILE("{}"), v);
         bool plain = true;  // no '.', no exponent: nlohmann adds ".0"
-        for (std::size_t i = start; i < m_b.size(); ++i) {
-            const char c = m_b[i];
-            if (c == '.' || c == 'e') plain = false;
+        for (const char* p = text; p != end; ++p) {
+            if (*p == '.' || *p == 'e') plain = false;
         }
+        m_b.append(text, end);
         if (plain) append(".0");
     }
     void string(std::string_view s) {
@@ -320,7 +329,8 @@ public:
         m_json.key("records"), m_json.integer(static_cast<std::int64_t>(m_records));
         if (bom_skipped) m_json.key("bom_skipped"), m_json.boolean(true);
         m_json.key("by_type"), m_json.open();
-        for (const auto& [k, v] : m_by_type) m_json.key(k), m_json.integer(static_cast<std::int64_t>(v));
+        for (const auto& [k, v] : m_by_type)
+            m_json.keyEscaped(k), m_json.integer(static_cast<std::int64_t>(v));
         m_json.close();
         // Reason names in alphabetical order, as the map-backed JSON object printed them.
         std::map<std::string_view, std::size_t> by_reason;
