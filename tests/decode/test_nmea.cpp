@@ -10,6 +10,7 @@
 #include <string>
 
 #include "decode/nmea.hpp"
+#include "engine/line_decoder.hpp"
 #include "reason_printer.hpp"
 
 namespace {
@@ -659,6 +660,45 @@ TEST(NmeaStream, SourceWithoutChecksumsIsAcceptedAndABadChecksumDoesNotArmTheRul
     // The stateless decoder can be asked for the rule directly.
     EXPECT_EQ(decodeNmea("$HEHDT,12.0,T", true).reason, Reason::MissingChecksum);
     EXPECT_EQ(decodeNmea(withChecksum("HEHDT,12.0,T"), true).reason, Reason::Ok);
+}
+
+TEST(NmeaStream, LineDecoderKeepsTheRulePerInputAndLogsTheReasons) {
+    // What record, import and replay use: the raw log's status and reason, the counters by reason.
+    sg::config::InputConfig gnss, gyro;
+    gnss.name = "gnss";
+    gyro.name = "gyro";
+    std::int64_t next_id = 1;
+    sg::engine::LineDecoder dec({gnss, gyro}, {}, [&] { return next_id++; });
+    const std::string rmc =
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,999.9,E");
+    std::string corrupt = withChecksum("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,");
+    corrupt[corrupt.size() - 3] = ',';
+    auto feed = [&](const char* source, const std::string& bytes) {
+        sg::ReceivedLine l;
+        l.source = source;
+        l.bytes = bytes;
+        dec.onLine(l);
+    };
+    feed("gnss", rmc);
+    feed("gyro", "$HEHDT,10.0,T");  // this source never sends checksums: accepted
+    feed("gnss", corrupt);
+    feed("gyro", "$HEHDT,11.0,T");
+    const auto batch = dec.takeBatch();
+    ASSERT_EQ(batch.raw.size(), 4u);
+    EXPECT_EQ(batch.raw[0].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[0].reason.rfind("field_ignored: field 10 (magnetic variation) '999.9'", 0), 0u)
+        << batch.raw[0].reason;
+    EXPECT_EQ(batch.raw[1].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[2].status, sg::log::DecodeStatus::Rejected);
+    EXPECT_EQ(batch.raw[2].reason.rfind("missing_checksum", 0), 0u) << batch.raw[2].reason;
+    EXPECT_EQ(batch.raw[3].status, sg::log::DecodeStatus::Ok);
+    ASSERT_EQ(batch.fixes.size(), 1u);  // the RMC's position is logged, the corrupted GGA is not
+    const auto& c = dec.counters().at("gnss");
+    EXPECT_EQ(c.by_reason.at("field_ignored"), 1u);
+    EXPECT_EQ(c.by_reason.at("missing_checksum"), 1u);
+    EXPECT_EQ(c.ok, 1u);
+    EXPECT_EQ(c.rejected, 1u);
+    EXPECT_EQ(dec.counters().at("gyro").by_reason.at("no_checksum"), 2u);
 }
 
 }  // namespace
