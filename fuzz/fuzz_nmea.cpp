@@ -36,6 +36,13 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     // Data is present exactly for usable sentences of a known type.
     if (!isUsable(s.reason)) check(std::holds_alternative<std::monostate>(s.data));
     if (isUsable(s.reason)) check(!std::holds_alternative<std::monostate>(s.data));
+    // An ignored field is named, and only a checksummed sentence is field_ignored.
+    if (s.reason == Reason::FieldIgnored) check(!s.detail.empty() && s.checksum_ok);
+    // With the per-source checksum rule on, only a sentence without a checksum changes reason.
+    const NmeaSentence strict = decodeNmea(line, true);
+    if (strict.reason != s.reason) {
+        check(strict.reason == Reason::MissingChecksum && !s.checksum_ok);
+    }
     if (const auto* g = std::get_if<Gga>(&s.data)) {
         checkLatLon(g->lat_deg, g->lon_deg);
         checkTod(g->tod_s);
@@ -45,6 +52,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         checkTod(r->tod_s);
         if (r->date) check(isValidDate(*r->date));
         if (r->sog_mps) check(*r->sog_mps >= 0.0);
+        if (r->mag_var_deg) check(std::abs(*r->mag_var_deg) <= 180.0);
     } else if (const auto* n = std::get_if<Gns>(&s.data)) {
         checkLatLon(n->lat_deg, n->lon_deg);
     } else if (const auto* l = std::get_if<Gll>(&s.data)) {

@@ -41,8 +41,7 @@ Reason precheck(std::string_view line, char delimiter, std::string& detail) {
     for (std::size_t i = 0; i < line.size(); ++i) {
         const auto c = static_cast<unsigned char>(line[i]);
         if ((c < 0x20 && !(c == '\t' && delimiter == '\t')) || c == 0x7F) {
-            detail = "byte " + std::to_string(static_cast<unsigned>(c)) + " at offset " +
-                     std::to_string(i);
+            detail = detail::binaryByteDetail(c, i);
             return Reason::BinaryBytes;
         }
     }

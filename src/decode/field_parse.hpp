@@ -6,6 +6,7 @@
 #include <charconv>
 #include <cmath>
 #include <cstdint>
+#include <string>
 #include <string_view>
 
 namespace sg::decode::detail {
@@ -141,5 +142,16 @@ inline int hexValue(char c) {
 }
 
 inline constexpr char kHexUpper[] = "0123456789ABCDEF";
+
+// "byte 0x1B at offset 7": the detail of a binary-byte rejection. The value is in hex so that it
+// does not read like a position or a measurement.
+inline std::string binaryByteDetail(unsigned char c, std::size_t offset) {
+    std::string d = "byte 0x";
+    d += kHexUpper[c >> 4];
+    d += kHexUpper[c & 0xF];
+    d += " at offset ";
+    d += std::to_string(offset);
+    return d;
+}
 
 }  // namespace sg::decode::detail

@@ -3,6 +3,7 @@
 // Field numbers in `detail` count from 1 after the address, as NMEA documentation does.
 #include "decode/nmea.hpp"
 
+#include <algorithm>
 #include <array>
 #include <chrono>
 #include <cstring>
@@ -24,6 +25,8 @@ std::string_view reasonName(Reason r) {
         case Reason::TooLong: return "too_long";
         case Reason::EmptyLine: return "empty_line";
         case Reason::BadStart: return "bad_start";
+        case Reason::FieldIgnored: return "field_ignored";
+        case Reason::MissingChecksum: return "missing_checksum";
     }
     return "unknown_reason";
 }
@@ -98,17 +101,38 @@ struct FieldError {
     const char* what = "";
 };
 
+// Most ignored fields named in a detail (a sentence with more keeps the count only).
+constexpr std::size_t kMaxFlags = 6;
+
 class Decoder {
 public:
     explicit Decoder(const Fields& f) : m_f(f) {}
 
     const FieldError& error() const { return m_err; }
     bool failed() const { return m_failed; }
+    std::size_t flagCount() const { return m_nflags; }
+    const FieldError& flag(std::size_t k) const { return m_flags[k]; }
+    std::string_view field(std::size_t i) const { return m_f[i]; }
 
+    // Inside unused(...) a failing field is flagged (the helper returns nullopt / 0, so its value
+    // is null) and the sentence goes on; outside it the sentence fails.
     bool fail(std::size_t i, const char* name, const char* what) {
+        if (m_soft) {
+            if (m_nflags < kMaxFlags) m_flags[m_nflags] = {i, name, what};
+            ++m_nflags;
+            return false;
+        }
         if (!m_failed) m_err = {i, name, what};
         m_failed = true;
         return false;
+    }
+    // Runs `f` with failures turned into flags: for the fields the core does not use.
+    template <typename F>
+    void unused(F&& f) {
+        const bool was = m_soft;
+        m_soft = true;
+        f();
+        m_soft = was;
     }
 
     // Optional number: empty -> nullopt; otherwise must parse and lie in [lo, hi].
@@ -171,22 +195,12 @@ public:
         }
         return s[0];
     }
-    // A unit field that must equal `unit` when the value before it is present.
-    void unit(std::size_t i, const char* name, char expected) {
+    // A unit field that must equal `unit` when the value before it is present. False if not.
+    bool unit(std::size_t i, const char* name, char expected) {
         const std::string_view s = m_f[i];
-        if (s.empty()) return;
-        if (s.size() != 1 || s[0] != expected) fail(i, name, "unexpected unit letter");
-    }
-    // Magnetic variation at i, E/W at i+1; east positive.
-    std::optional<double> variation(std::size_t i) {
-        auto v = number(i, "magnetic variation", 0.0, 180.0);
-        const char h = letter(i + 1, "variation direction", "EW", true);
-        if (v && h == 0) {
-            fail(i + 1, "variation direction", "missing E/W");
-            return std::nullopt;
-        }
-        if (v && h == 'W') *v = -*v;
-        return v;
+        if (s.empty()) return true;
+        if (s.size() != 1 || s[0] != expected) return fail(i, name, "unexpected unit letter");
+        return true;
     }
 
 private:
@@ -214,6 +228,9 @@ private:
     const Fields& m_f;
     FieldError m_err;
     bool m_failed = false;
+    bool m_soft = false;
+    std::size_t m_nflags = 0;
+    FieldError m_flags[kMaxFlags];
 };
 
 // ddmmyy with the two-digit year in 1980..2079 (common practice: GNSS did not exist before 1980).
@@ -260,14 +277,17 @@ bool decodeGga(Decoder& d, const Fields& f, NmeaData& out) {
     g.lon_deg = d.longitude(3);
     g.quality = d.integer(5, "fix quality", 8).value_or(0);
     if (f[5].empty()) d.fail(5, "fix quality", "empty");
-    g.satellites = d.integer(6, "satellites", 99);
-    g.hdop = d.number(7, "hdop", 0.0, 99.99);
-    g.alt_m = d.number(8, "altitude", -10'000.0, 100'000.0);
-    d.unit(9, "altitude unit", 'M');
-    g.geoid_sep_m = d.number(10, "geoid separation", -200.0, 200.0);
-    d.unit(11, "geoid separation unit", 'M');
-    g.dgps_age_s = d.number(12, "dgps age", 0.0, 1e6);
-    g.dgps_station = d.integer(13, "dgps station", 1023);
+    // Not used by the core (kept in the log): flagged and null when malformed.
+    d.unused([&] {
+        g.satellites = d.integer(6, "satellites", 99);
+        g.hdop = d.number(7, "hdop", 0.0, 99.99);
+        g.alt_m = d.number(8, "altitude", -10'000.0, 100'000.0);
+        if (!d.unit(9, "altitude unit", 'M')) g.alt_m.reset();
+        g.geoid_sep_m = d.number(10, "geoid separation", -200.0, 200.0);
+        if (!d.unit(11, "geoid separation unit", 'M')) g.geoid_sep_m.reset();
+        g.dgps_age_s = d.number(12, "dgps age", 0.0, 1e6);
+        g.dgps_station = d.integer(13, "dgps station", 1023);
+    });
     if (g.quality != 0 && (!g.lat_deg || !g.lon_deg)) d.fail(1, "latitude", "empty with a fix");
     return !d.failed();
 }
@@ -283,16 +303,36 @@ bool decodeRmc(Decoder& d, const Fields& f, NmeaData& out) {
     //   9 230394     date ddmmyy (23 March 1994)
     //  10 003.1      magnetic variation, degrees   11 W  direction E/W
     //  12 (NMEA 2.3) mode A/D/E/M/S/N     13 (NMEA 4.1) navigational status
+    // Course, variation and mode are not used by the core: a malformed one is null and flagged,
+    // never a reason to lose the sentence (it may be the receiver's only date source). Seen from
+    // real receivers: variation "999.9,E" meaning unknown, and the E/W letter missing with the mode
+    // letter in its place ("...,230394,,A" with 11 fields).
     Rmc& r = out.emplace<Rmc>();
     r.tod_s = d.time(0);
     r.valid = d.letter(1, "status", "AV", false) == 'A';
     r.lat_deg = d.latitude(2);
     r.lon_deg = d.longitude(4);
     if (auto k = d.number(6, "speed", 0.0, 10'000.0)) r.sog_mps = *k * kKnotToMps;
-    r.cog_deg = d.number(7, "course", 0.0, 360.0);
     r.date = rmcDate(d, f, 8);
-    r.mag_var_deg = d.variation(9);
-    r.mode = d.letter(11, "mode", "ADEFMNPRS", true);
+    d.unused([&] {
+        r.cog_deg = d.number(7, "course", 0.0, 360.0);
+        r.mode = d.letter(11, "mode", "ADEFMNPRS", true);
+        const std::string_view dir = f[10];
+        auto v = d.number(9, "magnetic variation", 0.0, 180.0);
+        if (dir.size() == 1 && (dir[0] == 'E' || dir[0] == 'W')) {
+            if (v && dir[0] == 'W') *v = -*v;
+            r.mag_var_deg = v;
+        } else if (dir.size() == 1 && f.n == 11 && std::strchr("ADFMNPRS", dir[0]) != nullptr) {
+            // Older/odd layout: no E/W field, the mode letter moved up into its place ('E' is
+            // read as east, so it never lands here).
+            r.mode = dir[0];
+            d.fail(10, "variation direction", "missing, mode letter in its place");
+        } else if (!dir.empty()) {
+            d.fail(10, "variation direction", "not E or W");
+        } else if (v) {
+            d.fail(10, "variation direction", "missing E/W");
+        }
+    });
     if (r.valid && (!r.lat_deg || !r.lon_deg)) d.fail(2, "latitude", "empty with status A");
     return !d.failed();
 }
@@ -304,11 +344,15 @@ bool decodeVtg(Decoder& d, const Fields&, NmeaData& out) {
     //   5 005.5  speed, knots                           6 N
     //   7 010.2  speed, km/h                            8 K
     //   9 (NMEA 2.3) mode A/D/E/M/S/N
+    // Courses and mode are not used by the core (flagged and null when malformed); speeds are.
     Vtg& v = out.emplace<Vtg>();
-    v.cog_true_deg = d.number(0, "course true", 0.0, 360.0);
-    d.unit(1, "course true unit", 'T');
-    v.cog_mag_deg = d.number(2, "course magnetic", 0.0, 360.0);
-    d.unit(3, "course magnetic unit", 'M');
+    d.unused([&] {
+        v.cog_true_deg = d.number(0, "course true", 0.0, 360.0);
+        if (!d.unit(1, "course true unit", 'T')) v.cog_true_deg.reset();
+        v.cog_mag_deg = d.number(2, "course magnetic", 0.0, 360.0);
+        if (!d.unit(3, "course magnetic unit", 'M')) v.cog_mag_deg.reset();
+        v.mode = d.letter(8, "mode", "ADEFMNPRS", true);
+    });
     const auto kn = d.number(4, "speed knots", 0.0, 10'000.0);
     d.unit(5, "speed knots unit", 'N');
     const auto kmh = d.number(6, "speed km/h", 0.0, 20'000.0);
@@ -319,7 +363,6 @@ bool decodeVtg(Decoder& d, const Fields&, NmeaData& out) {
     } else if (kn) {
         v.sog_mps = *kn * kKnotToMps;
     }
-    v.mode = d.letter(8, "mode", "ADEFMNPRS", true);
     return !d.failed();
 }
 
@@ -354,15 +397,18 @@ bool decodeZda(Decoder& d, const Fields& f, NmeaData& out) {
         z.date = Date{*year, *month, *day};
         if (f[3].size() != 4 || !isValidDate(z.date)) d.fail(1, "date", "not a calendar date");
     }
-    if (!f[4].empty()) {
-        int zh = 0;
-        if (!detail::parseSigned(f[4], 13, zh)) {
-            d.fail(4, "zone hours", "not an integer -13..13");
-        } else {
-            z.zone_hours = zh;
+    // The local zone is not used by the core: flagged and null when malformed.
+    d.unused([&] {
+        if (!f[4].empty()) {
+            int zh = 0;
+            if (!detail::parseSigned(f[4], 13, zh)) {
+                d.fail(4, "zone hours", "not an integer -13..13");
+            } else {
+                z.zone_hours = zh;
+            }
         }
-    }
-    z.zone_minutes = d.integer(5, "zone minutes", 59);
+        z.zone_minutes = d.integer(5, "zone minutes", 59);
+    });
     return !d.failed();
 }
 
@@ -379,13 +425,17 @@ bool decodeGst(Decoder& d, const Fields&, NmeaData& out) {
     Gst& g = out.emplace<Gst>();
     g.tod_s = d.time(0);
     constexpr double kMax = 1e6;
-    g.rms_m = d.number(1, "rms", 0.0, kMax);
-    g.sigma_major_m = d.number(2, "sigma major", 0.0, kMax);
-    g.sigma_minor_m = d.number(3, "sigma minor", 0.0, kMax);
-    g.orient_deg = d.number(4, "orientation", 0.0, 360.0);
+    // The core uses the latitude and longitude sigmas (position error check); the rest is
+    // flagged and null when malformed.
+    d.unused([&] {
+        g.rms_m = d.number(1, "rms", 0.0, kMax);
+        g.sigma_major_m = d.number(2, "sigma major", 0.0, kMax);
+        g.sigma_minor_m = d.number(3, "sigma minor", 0.0, kMax);
+        g.orient_deg = d.number(4, "orientation", 0.0, 360.0);
+        g.sigma_alt_m = d.number(7, "sigma altitude", 0.0, kMax);
+    });
     g.sigma_lat_m = d.number(5, "sigma latitude", 0.0, kMax);
     g.sigma_lon_m = d.number(6, "sigma longitude", 0.0, kMax);
-    g.sigma_alt_m = d.number(7, "sigma altitude", 0.0, kMax);
     return !d.failed();
 }
 
@@ -415,13 +465,16 @@ bool decodeGns(Decoder& d, const Fields& f, NmeaData& out) {
     } else {
         g.mode.assign(mode);
     }
-    g.satellites = d.integer(6, "satellites", 99);
-    g.hdop = d.number(7, "hdop", 0.0, 99.99);
-    g.alt_m = d.number(8, "altitude", -10'000.0, 100'000.0);
-    g.geoid_sep_m = d.number(9, "geoid separation", -200.0, 200.0);
-    g.dgps_age_s = d.number(10, "dgps age", 0.0, 1e6);
-    g.dgps_station = d.integer(11, "dgps station", 1023);
-    g.nav_status = d.letter(12, "navigational status", "SCUV", true);
+    // Not used by the core (kept in the log): flagged and null when malformed.
+    d.unused([&] {
+        g.satellites = d.integer(6, "satellites", 99);
+        g.hdop = d.number(7, "hdop", 0.0, 99.99);
+        g.alt_m = d.number(8, "altitude", -10'000.0, 100'000.0);
+        g.geoid_sep_m = d.number(9, "geoid separation", -200.0, 200.0);
+        g.dgps_age_s = d.number(10, "dgps age", 0.0, 1e6);
+        g.dgps_station = d.integer(11, "dgps station", 1023);
+        g.nav_status = d.letter(12, "navigational status", "SCUV", true);
+    });
     return !d.failed();
 }
 
@@ -439,7 +492,7 @@ bool decodeGll(Decoder& d, const Fields& f, NmeaData& out) {
     g.lon_deg = d.longitude(2);
     g.tod_s = d.time(4);
     g.valid = d.letter(5, "status", "AV", f.n < 6) == 'A';
-    g.mode = d.letter(6, "mode", "ADEFMNPRS", true);
+    d.unused([&] { g.mode = d.letter(6, "mode", "ADEFMNPRS", true); });  // not used by the core
     return !d.failed();
 }
 
@@ -451,7 +504,7 @@ bool decodeDpt(Decoder& d, const Fields&, NmeaData& out) {
     Dpt& p = out.emplace<Dpt>();
     p.depth_m = d.requiredNumber(0, "depth", 0.0, 12'000.0);
     p.offset_m = d.number(1, "offset", -100.0, 100.0);
-    p.max_range_m = d.number(2, "max range", 0.0, 20'000.0);
+    d.unused([&] { p.max_range_m = d.number(2, "max range", 0.0, 20'000.0); });  // not used
     return !d.failed();
 }
 
@@ -460,6 +513,8 @@ bool decodeDbt(Decoder& d, const Fields&, NmeaData& out) {
     //   1 7.8   depth below transducer, feet     2 f
     //   3 2.4   depth below transducer, metres   4 M
     //   5 1.3   depth below transducer, fathoms  6 F
+    // All three fields are the depth the core uses: a malformed one fails the sentence even when
+    // another unit is present (which of two disagreeing depths is right cannot be told).
     Dbt& b = out.emplace<Dbt>();
     const auto ft = d.number(0, "depth feet", 0.0, 40'000.0);
     d.unit(1, "feet unit", 'f');
@@ -516,9 +571,29 @@ NmeaSentence fail(NmeaSentence&& s, Reason r, std::string detail) {
     return std::move(s);
 }
 
+std::string flagsDetail(const Decoder& d) {
+    std::string s;
+    const std::size_t shown = std::min(d.flagCount(), kMaxFlags);
+    for (std::size_t k = 0; k < shown; ++k) {
+        const FieldError& e = d.flag(k);
+        if (k) s += "; ";
+        s += "field ";
+        s += std::to_string(e.index + 1);
+        s += " (";
+        s += e.name;
+        s += ") '";
+        s += d.field(e.index);
+        s += "': ";
+        s += e.what;
+        s += ", set to null";
+    }
+    if (d.flagCount() > shown) s += "; and " + std::to_string(d.flagCount() - shown) + " more";
+    return s;
+}
+
 }  // namespace
 
-NmeaSentence decodeNmea(std::string_view line) {
+NmeaSentence decodeNmea(std::string_view line, bool require_checksum) {
     NmeaSentence out;
     // Tolerate a terminator left on by a caller that did not frame the line.
     while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.remove_suffix(1);
@@ -531,8 +606,7 @@ NmeaSentence decodeNmea(std::string_view line) {
     }
     auto binaryAt = [&](std::size_t i) {
         return fail(std::move(out), Reason::BinaryBytes,
-                    "byte " + std::to_string(static_cast<unsigned>(static_cast<unsigned char>(line[i]))) +
-                        " at offset " + std::to_string(i));
+                    detail::binaryByteDetail(static_cast<unsigned char>(line[i]), i));
     };
     auto isBinary = [](char ch) {
         const auto c = static_cast<unsigned char>(ch);
@@ -611,6 +685,10 @@ NmeaSentence decodeNmea(std::string_view line) {
                         std::string("sent ") + got + ", computed " + want);
         }
         has_checksum = true;
+        out.checksum_ok = true;
+    } else if (require_checksum) {
+        return fail(std::move(out), Reason::MissingChecksum,
+                    "no '*hh' although this source has sent checksums");
     }
     if (too_many_fields) {
         return fail(std::move(out), Reason::TooLong,
@@ -659,6 +737,10 @@ NmeaSentence decodeNmea(std::string_view line) {
                     "field " + std::to_string(e.index + 1) + " (" + e.name + "): " + e.what);
     }
     out.reason = ok;
+    if (d.flagCount() > 0) {
+        if (has_checksum) out.reason = Reason::FieldIgnored;
+        out.detail = flagsDetail(d);
+    }
     return out;
 }
 

@@ -142,12 +142,39 @@ struct NmeaSentence {
     std::string type;    // "GGA", ...; for proprietary the rest of the address ("GRME")
     NmeaData data;       // monostate unless reason is Ok or NoChecksum (and the type is known)
     Reason reason = Reason::NotNmea;
-    std::string detail;  // which field and why, e.g. "field 2 (latitude): minutes >= 60"
+    std::string detail;  // which field and why, e.g. "field 2 (latitude): minutes >= 60"; with
+                         // FieldIgnored (or NoChecksum) the fields set to null, e.g.
+                         // "field 10 (magnetic variation) '999.9': out of range, set to null"
+    bool checksum_ok = false;  // '*hh' present and equal to the XOR of the sentence
 };
 
 // Decodes one line (terminator already removed; a trailing CR/LF is tolerated).
 // Never throws. Any input, including binary bytes, gives a Reason.
-NmeaSentence decodeNmea(std::string_view line);
+// A field the core does not use (e.g. RMC magnetic variation, GGA HDOP, ZDA zone) that is
+// malformed does not fail the sentence: its value is null, the reason is FieldIgnored (NoChecksum
+// when the sentence has no checksum) and `detail` names the field. Fields the core uses (time,
+// date, position, status, fix quality, speed, heading, depth, GST sigmas) fail it (BadField).
+// `require_checksum`: a sentence without '*hh' is MissingChecksum instead of NoChecksum (see
+// NmeaStreamDecoder).
+NmeaSentence decodeNmea(std::string_view line, bool require_checksum = false);
+
+// decodeNmea with the state of one source (one input, one capture file): once the source has sent
+// a sentence with a correct checksum, every later sentence from it without one is rejected as
+// MissingChecksum. A receiver does not drop checksums from one sentence to the next; a corrupted
+// or lost '*' does, and would otherwise turn the checksum digits into data of the last field.
+class NmeaStreamDecoder {
+public:
+    NmeaSentence decode(std::string_view line) {
+        NmeaSentence s = decodeNmea(line, m_checksummed);
+        if (s.checksum_ok) m_checksummed = true;
+        return s;
+    }
+    // True once a sentence with a correct checksum was seen.
+    bool checksummed() const { return m_checksummed; }
+
+private:
+    bool m_checksummed = false;
+};
 
 // XOR of all bytes of `bytes` (the NMEA checksum when given the text between '$' and '*').
 std::uint8_t xorChecksum(std::string_view bytes);

@@ -19,14 +19,20 @@ enum class Reason : std::uint8_t {
     TooLong,          // longer than the format allows
     EmptyLine,        // nothing (or only spaces) between two line terminators
     BadStart,         // NMEA address field malformed, or field-map start token not matched
+    FieldIgnored,     // decoded and usable, checksum correct; a field the core does not use was
+                      // malformed and is null (`detail` names it): e.g. RMC variation "999.9,E"
+    MissingChecksum,  // NMEA without '*hh' from a source that has sent checksums before (a
+                      // corrupted '*' would otherwise turn its checksum digits into data)
 };
 
-inline constexpr int kReasonCount = 11;
+inline constexpr int kReasonCount = 13;
 
 // Stable snake_case name ("ok", "no_checksum", "bad_checksum", ...).
 std::string_view reasonName(Reason r);
 
-// True when the line's data can be used (Ok or NoChecksum).
-inline bool isUsable(Reason r) { return r == Reason::Ok || r == Reason::NoChecksum; }
+// True when the line's data can be used (Ok, NoChecksum or FieldIgnored).
+inline bool isUsable(Reason r) {
+    return r == Reason::Ok || r == Reason::NoChecksum || r == Reason::FieldIgnored;
+}
 
 }  // namespace sg::decode

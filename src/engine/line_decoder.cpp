@@ -72,9 +72,9 @@ void LineDecoder::onLine(const ReceivedLine& line) {
     if (m_log_rows) m_batch.raw.push_back(std::move(raw));
 }
 
-void LineDecoder::decodeNmea(const ReceivedLine& line, const Input& in, log::RawRow& raw,
+void LineDecoder::decodeNmea(const ReceivedLine& line, Input& in, log::RawRow& raw,
                              SourceCounters& c) {
-    const auto s = decode::decodeNmea(line.bytes);
+    const auto s = in.nmea.decode(line.bytes);
     raw.status = statusOf(s.reason);
     if (s.reason != decode::Reason::Ok) {
         raw.reason = std::string(decode::reasonName(s.reason));

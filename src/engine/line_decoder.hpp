@@ -82,8 +82,9 @@ private:
         const config::InputConfig* cfg = nullptr;
         const decode::FieldMap* map = nullptr;
         SourceCounters* counters = nullptr;  // this input's entry in m_counters (map: stable)
+        decode::NmeaStreamDecoder nmea;       // per-source checksum rule (decode/nmea.hpp)
     };
-    void decodeNmea(const ReceivedLine& line, const Input& in, log::RawRow& raw, SourceCounters& c);
+    void decodeNmea(const ReceivedLine& line, Input& in, log::RawRow& raw, SourceCounters& c);
     void decodeFields(const ReceivedLine& line, const Input& in, log::RawRow& raw, SourceCounters& c);
 
     std::vector<config::InputConfig> m_inputs;

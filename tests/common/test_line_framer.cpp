@@ -1,4 +1,5 @@
-// Line framing: CR, LF and CRLF terminators, the 4 KiB cut, binary flags, no byte lost.
+// Line framing: CR, LF, CRLF and CR CR LF terminators, the 4 KiB cut, binary flags, a leading
+// UTF-8 byte-order mark, no byte lost.
 #include <gtest/gtest.h>
 
 #include <string>
@@ -71,6 +72,58 @@ TEST(LineFramer, NulAndControlBytesAreFlaggedBinary) {
     EXPECT_TRUE(out[0].flags & sg::kLineBinary);
     EXPECT_TRUE(out[1].flags & sg::kLineBinary);
     EXPECT_EQ(out[2].flags, 0);
+}
+
+TEST(LineFramer, CrCrLfIsOneLineEnd) {
+    // CR LF written through a second text-mode conversion becomes CR CR LF: one line end, so
+    // that line numbers stay the file's. A bare CR CR (old Mac text) is still an empty line.
+    for (std::size_t chunk : {1u, 2u, 3u, 7u, 4096u}) {
+        auto out = frame("a\r\r\nb\r\r\nc\r\rd\r\n\r\ne", 4096, chunk);
+        std::vector<std::string> got;
+        for (const auto& p : out) got.push_back(p.bytes);
+        EXPECT_EQ(got, (std::vector<std::string>{"a", "b", "c", "", "d", "", "e"})) << chunk;
+    }
+    auto tail = frame("a\r\r", 4096, 1);  // the stream ends after CR CR: the empty line is kept
+    ASSERT_EQ(tail.size(), 2u);
+    EXPECT_EQ(tail[1].bytes, "");
+}
+
+TEST(LineFramer, LeadingUtf8BomIsSkippedInAnySplit) {
+    // U+FEFF encoded in UTF-8 is EF BB BF (Unicode Standard, 23.8).
+    const std::string text = "\xEF\xBB\xBF$GPHDT,1.0,T\r\nx\n";
+    for (std::size_t chunk : {1u, 2u, 3u, 5u, 4096u}) {
+        std::vector<std::string> lines;
+        sg::LineFramer framer([&](std::string_view b, std::uint8_t) { lines.emplace_back(b); });
+        for (std::size_t i = 0; i < text.size(); i += chunk) framer.feed(text.substr(i, chunk));
+        framer.flush();
+        EXPECT_TRUE(framer.bomSkipped()) << chunk;
+        EXPECT_EQ(lines, (std::vector<std::string>{"$GPHDT,1.0,T", "x"})) << chunk;
+    }
+}
+
+TEST(LineFramer, BomBytesElsewhereOrIncompleteAreData) {
+    // Only at the very start; a partial BOM or one later in the stream is kept byte for byte.
+    std::vector<std::string> lines;
+    sg::LineFramer framer([&](std::string_view b, std::uint8_t) { lines.emplace_back(b); });
+    framer.feed("\xEF\xBB");
+    framer.feed("Z\n\xEF\xBB\xBFq\n");
+    framer.flush();
+    EXPECT_FALSE(framer.bomSkipped());
+    EXPECT_EQ(lines, (std::vector<std::string>{"\xEF\xBBZ", "\xEF\xBB\xBFq"}));
+    std::vector<std::string> short_lines;
+    sg::LineFramer cut([&](std::string_view b, std::uint8_t) { short_lines.emplace_back(b); });
+    cut.feed("\xEF\xBB");
+    cut.flush();  // the stream ended inside a would-be BOM: those bytes are a line
+    EXPECT_EQ(short_lines, (std::vector<std::string>{"\xEF\xBB"}));
+}
+
+TEST(LineFramer, BinaryFlagFollowsThePieceThatHoldsTheByte) {
+    std::string line(10, 'a');
+    line[7] = '\0';
+    auto out = frame(line + "\n", 5, 3);
+    ASSERT_EQ(out.size(), 2u);
+    EXPECT_FALSE(out[0].flags & sg::kLineBinary);
+    EXPECT_TRUE(out[1].flags & sg::kLineBinary);
 }
 
 }  // namespace

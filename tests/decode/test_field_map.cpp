@@ -114,6 +114,7 @@ TEST(FieldMapReasons, EveryFieldMapReason) {
     std::string nul = good;
     nul[5] = '\0';
     EXPECT_EQ(decodeFieldMap(mag, nul).reason, Reason::BinaryBytes);
+    EXPECT_EQ(decodeFieldMap(mag, nul).detail, "byte 0x00 at offset 5");  // value in hex
     EXPECT_EQ(decodeFieldMap(mag, "SGM," + std::string(10 * 1024, '7')).reason, Reason::TooLong);
     EXPECT_EQ(decodeFieldMap(mag, "").reason, Reason::EmptyLine);
     EXPECT_EQ(decodeFieldMap(mag, "  ").reason, Reason::EmptyLine);

@@ -4,6 +4,7 @@
 // Runs the built executable (build the `swathguard` target first; CI builds everything).
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cstdio>
 #include <cstdlib>
 #include <iterator>
@@ -70,9 +71,9 @@ TEST_F(Inspect, EveryLineGetsAnObjectAndTheSummaryAddsUp) {
     cap += "$GPHDT,47.5,T*00\r\n";                                          // 5 bad checksum
     cap += "\r\n";                                                          // 6 empty
     cap += std::string("SGC,00\0\0,1", 10) + "\r\n";                        // 7 binary
-    cap += "$GP" + std::string(5000, 'A') + "\r\n";                         // 8, 9: cut at 4096
-    cap += "$GPGSV,1,1,00*79\r\n";                                          // 10 unknown
-    cap += "hello world";                                                   // 11, no terminator
+    cap += "$GP" + std::string(5000, 'A') + "\r\n";                         // 8 (2 pieces)
+    cap += "$GPGSV,1,1,00*79\r\n";                                          // 9 unknown
+    cap += "hello world";                                                   // 10, no terminator
 
     std::vector<json> out;
     std::string err;
@@ -81,10 +82,14 @@ TEST_F(Inspect, EveryLineGetsAnObjectAndTheSummaryAddsUp) {
     const char* reasons[] = {"ok",         "ok",          "ok",        "ok",
                              "bad_checksum", "empty_line", "binary_bytes", "too_long",
                              "too_long",   "unknown_sentence", "bad_start"};
+    // The line cut at 4096 bytes is one line of the file: both pieces carry its number.
+    const int lines[] = {1, 2, 3, 4, 5, 6, 7, 8, 8, 9, 10};
     for (std::size_t i = 0; i < 11; ++i) {
-        EXPECT_EQ(out[i]["line"], i + 1) << out[i].dump();
+        EXPECT_EQ(out[i]["line"], lines[i]) << out[i].dump();
         EXPECT_EQ(out[i]["reason"], reasons[i]) << out[i].dump();
     }
+    EXPECT_FALSE(out[7].contains("piece"));
+    EXPECT_EQ(out[8]["piece"], 2);
     EXPECT_EQ(out[0]["source"], "nmea");
     EXPECT_EQ(out[0]["sentence"], "RMC");
     EXPECT_EQ(out[1]["layout"], "mag");
@@ -96,7 +101,9 @@ TEST_F(Inspect, EveryLineGetsAnObjectAndTheSummaryAddsUp) {
     EXPECT_EQ(out[3]["layout"], "alt");
 
     const json& s = out[11]["summary"];
-    EXPECT_EQ(s["lines"], 11);
+    EXPECT_EQ(s["lines"], 10);
+    EXPECT_EQ(s["records"], 11);
+    EXPECT_FALSE(s.contains("bom_skipped"));
     int by_reason = 0, by_type = 0;
     for (const auto& [k, v] : s["by_reason"].items()) by_reason += v.get<int>();
     for (const auto& [k, v] : s["by_type"].items()) by_type += v.get<int>();
@@ -142,6 +149,120 @@ TEST_F(Inspect, BadConfigNamesFileAndKey) {
     EXPECT_NE(err.find("bad.toml"), std::string::npos) << err;
     EXPECT_NE(err.find("feild_nT"), std::string::npos) << err;
     EXPECT_NE(run("inspect '" + cap.string() + "' --as nosuch", out, err), 0);
+}
+
+// Line numbers counted independently of the program: 1 + the number of LF bytes before the
+// line's first byte (what `grep -n` and `sed -n` number; this capture has no bare CR).
+int fileLineOf(const std::string& cap, const std::string& marker) {
+    const auto at = cap.find(marker);
+    EXPECT_NE(at, std::string::npos) << marker;
+    return 1 + static_cast<int>(std::count(cap.begin(), cap.begin() + static_cast<long>(at), '\n'));
+}
+
+TEST_F(Inspect, RealReceiverQuirksKeepSentencesAndTheFilesLineNumbers) {
+    // A capture with a UTF-8 byte-order mark, a CR CR LF ending, an overlong line and a corrupted
+    // '*' after checksummed sentences; RMC with variation "999.9,E" and with the mode letter in
+    // the E/W place. Sentences built here, checksums computed in this file.
+    const std::string rmc1 =
+        "$" + xorSealed("GPRMC,120000.00,A,5412.3456,N,00739.2593,E,4.8,47.1,020626,999.9,E,A");
+    const std::string gga1 =
+        "$" + xorSealed("GPGGA,120000.00,5412.3456,N,00739.2593,E,1,08,0.9,12.0,M,46.9,M,,");
+    const std::string rmc2 =
+        "$" + xorSealed("GPRMC,120001.00,A,5412.3460,N,00739.2600,E,4.8,47.1,020626,003.1,A");
+    std::string corrupt = "$" + xorSealed("GPHDT,47.5,T");
+    corrupt[corrupt.size() - 3] = ',';  // '*' lost: "...,T,hh" would read as one more field
+    const std::string hdt = "$" + xorSealed("GPHDT,48.0,T");
+
+    std::string cap = "\xEF\xBB\xBF" + rmc1 + "\r\n";  // line 1 behind the BOM
+    cap += gga1 + "\r\r\n";                             // 2, written through two CR LF conversions
+    cap += rmc2 + "\r\n";                               // 3
+    cap += "$GPXXX," + std::string(6000, '7') + "\r\n";  // 4, cut by the framer
+    cap += corrupt + "\r\n";                            // 5
+    cap += hdt + "\r\r\n";                              // 6
+    cap += xorSealed("SGM,2,120001.100,48213.417,97,12.40,4.10") + "\n";  // 7
+
+    std::vector<json> out;
+    std::string err;
+    ASSERT_EQ(run("inspect '" + write("quirks.nmea", cap).string() + "'", out, err), 0) << err;
+    ASSERT_EQ(out.size(), 9u) << err;  // 7 lines + 1 extra piece + summary
+
+    // BOM skipped: the first sentence is decoded, not lost.
+    EXPECT_EQ(out[0]["line"], fileLineOf(cap, rmc1));
+    EXPECT_EQ(out[0]["sentence"], "RMC");
+    EXPECT_EQ(out[0]["reason"], "field_ignored");
+    EXPECT_TRUE(out[0]["fields"]["mag_var_deg"].is_null());
+    EXPECT_EQ(out[0]["fields"]["date"], "2026-06-02");
+    EXPECT_NE(out[0]["detail"].get<std::string>().find("'999.9'"), std::string::npos);
+    // CR CR LF is one line end: no empty line in between, numbers stay the file's.
+    EXPECT_EQ(out[1]["line"], fileLineOf(cap, gga1));
+    EXPECT_EQ(out[1]["reason"], "ok");
+    EXPECT_EQ(out[2]["line"], fileLineOf(cap, rmc2));
+    EXPECT_EQ(out[2]["reason"], "field_ignored");
+    EXPECT_EQ(out[2]["fields"]["mode"], "A");
+    EXPECT_TRUE(out[2]["fields"]["mag_var_deg"].is_null());
+    // The overlong line: two pieces, one line number.
+    EXPECT_EQ(out[3]["line"], fileLineOf(cap, "$GPXXX"));
+    EXPECT_EQ(out[4]["line"], fileLineOf(cap, "$GPXXX"));
+    EXPECT_EQ(out[3]["reason"], "too_long");
+    EXPECT_EQ(out[4]["piece"], 2);
+    // The corrupted '*' after checksummed sentences is rejected, not read as data.
+    EXPECT_EQ(out[5]["line"], fileLineOf(cap, corrupt));
+    EXPECT_EQ(out[5]["reason"], "missing_checksum");
+    EXPECT_FALSE(out[5].contains("fields"));
+    EXPECT_EQ(out[6]["line"], fileLineOf(cap, hdt));
+    EXPECT_EQ(out[6]["reason"], "ok");
+    EXPECT_EQ(out[7]["line"], 7);
+    EXPECT_EQ(out[7]["layout"], "mag");
+    // Full UTC from the RMC date behind the BOM (GNU date -u -d 2026-06-02T12:00:01.1Z +%s%N).
+    EXPECT_EQ(out[7]["fields"]["utc_ns"].get<std::int64_t>(), 1780401601'100'000'000LL);
+
+    const json& s = out[8]["summary"];
+    EXPECT_EQ(s["lines"], 7);
+    EXPECT_EQ(s["records"], 8);
+    EXPECT_EQ(s["bom_skipped"], true);
+    EXPECT_EQ(s["by_reason"]["field_ignored"], 2);
+    EXPECT_EQ(s["by_reason"]["missing_checksum"], 1);
+    EXPECT_FALSE(s["by_reason"].contains("empty_line"));
+}
+
+TEST_F(Inspect, BinaryByteDetailIsHex) {
+    const auto cap = write("bin.txt", std::string("$GPHDT,4\x1b.0,T\n", 14));
+    std::vector<json> out;
+    std::string err;
+    ASSERT_EQ(run("inspect '" + cap.string() + "'", out, err), 0) << err;
+    ASSERT_EQ(out.size(), 2u);
+    EXPECT_EQ(out[0]["reason"], "binary_bytes");
+    EXPECT_EQ(out[0]["detail"], "byte 0x1B at offset 8");
+}
+
+TEST_F(Inspect, JsonTextIsEscapedAndNumbersKeepTheirForm) {
+    // The JSON is written by hand (no JSON library per line): check the text against the
+    // document model of an independent writer (nlohmann::json here, as the tests use it), for
+    // numbers with and without decimals, nulls, letters and a detail with quotes and non-ASCII.
+    std::string cap = "$" + xorSealed("GPZDA,201530,04,07,2002,-3,00") + "\n";
+    cap += "$" + xorSealed("SDDPT,12,0.5,") + "\n";
+    cap += "ab\"c\\d\xE9,1\n";  // Latin-1 byte: invalid UTF-8 in the echoed detail
+    std::vector<json> out;
+    std::string err;
+    ASSERT_EQ(run("inspect '" + write("esc.txt", cap).string() + "'", out, err), 0) << err;
+    ASSERT_EQ(out.size(), 4u);
+    EXPECT_EQ(out[0]["fields"], json::parse(R"({"tod_s":72930.0,"date":"2002-07-04",
+        "zone_hours":-3,"zone_minutes":0})"));
+    EXPECT_TRUE(out[0]["fields"]["tod_s"].is_number_float());
+    EXPECT_TRUE(out[0]["fields"]["zone_hours"].is_number_integer());
+    EXPECT_EQ(out[1]["fields"], json::parse(R"({"depth_m":12.0,"offset_m":0.5,"max_range_m":null})"));
+    EXPECT_EQ(out[2]["source"], "none");
+    const std::string d = out[2]["detail"].get<std::string>();
+    EXPECT_NE(d.find("ab\"c\\d\xEF\xBF\xBD"), std::string::npos) << d;  // U+FFFD for the bad byte
+
+    // Text form of the numbers, as nlohmann::json dump() writes them: 72930.0, 12.0, -3.
+    std::ifstream in(m_dir / "out.txt");
+    std::string first, second;
+    std::getline(in, first);
+    std::getline(in, second);
+    EXPECT_NE(first.find("\"tod_s\":72930.0,"), std::string::npos) << first;
+    EXPECT_NE(first.find("\"zone_hours\":-3,"), std::string::npos) << first;
+    EXPECT_NE(second.find("\"depth_m\":12.0,"), std::string::npos) << second;
 }
 
 }  // namespace

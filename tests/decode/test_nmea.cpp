@@ -10,6 +10,7 @@
 #include <string>
 
 #include "decode/nmea.hpp"
+#include "engine/line_decoder.hpp"
 #include "reason_printer.hpp"
 
 namespace {
@@ -366,14 +367,11 @@ INSTANTIATE_TEST_SUITE_P(
         BadFieldCase{"GPGGA,12:35:19,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,", "time"},
         BadFieldCase{"GPGGA,123519,48O7.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,", "latitude"},
         BadFieldCase{"GPGGA,123519,-4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,", "latitude"},
-        BadFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,F,46.9,M,,", "altitude unit"},
         BadFieldCase{"GPGGA,123519,,,,,1,08,0.9,545.4,M,46.9,M,,", "empty with a fix"},
         BadFieldCase{"GPRMC,123519,X,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W", "status"},
         BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,310294,003.1,W", "date"},
         BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,23031994,003.1,W", "date"},
         BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,-22.4,084.4,230394,003.1,W", "speed"},
-        BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,361.0,230394,003.1,W", "course"},
-        BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,", "variation direction"},
         BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,1e3,084.4,230394,003.1,W", "speed"},
         BadFieldCase{"GPVTG,054.7,T,034.4,M,005.5,N,010.2,X", "km/h unit"},
         BadFieldCase{"GPHDT,,T", "heading"},
@@ -383,11 +381,17 @@ INSTANTIATE_TEST_SUITE_P(
         BadFieldCase{"GPZDA,201530.00,30,02,2002,00,00", "date"},
         BadFieldCase{"GPZDA,201530.00,04,07,02,00,00", "date"},
         BadFieldCase{"GPZDA,,04,07,2002,00,00", "time"},
-        BadFieldCase{"GPZDA,201530.00,04,07,2002,14,00", "zone hours"},
-        BadFieldCase{"GPGST,172814.0,-0.006,0.023,0.020,273.6,0.023,0.020,0.031", "rms"},
         BadFieldCase{"GNGNS,014035.00,4332.69262,S,17235.48549,E,XX,13,0.9,25.63,11.24,,", "mode"},
         BadFieldCase{"GPGLL,4916.45,N,12311.12,W,225444,B,", "status"},
-        BadFieldCase{"SDDPT,-1.0,0.5", "depth"}));
+        BadFieldCase{"SDDPT,-1.0,0.5", "depth"},
+        // Fields the core uses stay strict (coverage would be built on them).
+        BadFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,abc,084.4,230394,003.1,W", "speed"},
+        BadFieldCase{"GPVTG,054.7,T,034.4,M,5.5.5,N,,K", "speed knots"},
+        BadFieldCase{"GPGST,172814.0,0.006,0.023,0.020,273.6,-0.023,0.020,0.031", "sigma latitude"},
+        BadFieldCase{"GNGNS,014035.00,4332.69262,S,17235.48549,E,,13,0.9,25.63,11.24,,", "mode"},
+        BadFieldCase{"GPGLL,4916.45,N,12311.12,W,225444,,", "status"},
+        BadFieldCase{"SDDBT,7.8,f,x,M,1.3,F", "depth metres"},
+        BadFieldCase{"SDDBT,7.8,q,2.4,M,1.3,F", "feet unit"}));
 
 TEST(NmeaReasons, BinaryBytes) {
     std::string line = "$GPHDT,10.0,T*";
@@ -398,6 +402,10 @@ TEST(NmeaReasons, BinaryBytes) {
     const auto s = decodeNmea(std::string("$GPHDT,\x01", 8));
     EXPECT_EQ(s.reason, Reason::BinaryBytes);
     EXPECT_NE(s.detail.find("offset 7"), std::string::npos) << s.detail;
+    // The byte value is printed in hex, so it cannot be read as a position or a measurement.
+    EXPECT_EQ(s.detail, "byte 0x01 at offset 7");
+    EXPECT_EQ(decodeNmea(std::string("$GPHDT,1\xff.0,T")).detail, "byte 0xFF at offset 8");
+    EXPECT_EQ(decodeNmea(std::string("ab\x1b", 3)).detail, "byte 0x1B at offset 2");
 }
 
 TEST(NmeaReasons, TooLong) {
@@ -440,6 +448,8 @@ TEST(NmeaReasons, NamesAreStableSnakeCase) {
         {Reason::TooLong, "too_long"},
         {Reason::EmptyLine, "empty_line"},
         {Reason::BadStart, "bad_start"},
+        {Reason::FieldIgnored, "field_ignored"},
+        {Reason::MissingChecksum, "missing_checksum"},
     };
     static_assert(std::size(expected) == kReasonCount);
     for (const auto& [r, name] : expected) EXPECT_EQ(reasonName(r), name);
@@ -460,6 +470,235 @@ TEST(NmeaNumbers, DecimalParsingIsCorrectlyRounded) {
         ASSERT_EQ(s.reason, Reason::Ok) << v << " " << s.detail;
         EXPECT_EQ(*std::get<Gst>(s.data).rms_m, std::strtod(v, nullptr)) << v;
     }
+}
+
+// A field the core does not use, when malformed, is null and flagged; the rest of the sentence is
+// used (issue #14: 68 valid, checksummed RMC sentences of real receivers were lost that way).
+struct IgnoredFieldCase {
+    const char* body;
+    const char* field;  // expected in detail
+};
+
+class NmeaIgnoredField : public ::testing::TestWithParam<IgnoredFieldCase> {};
+
+TEST_P(NmeaIgnoredField, IsNullAndTheSentenceIsKept) {
+    const auto s = decodeNmea(withChecksum(GetParam().body));
+    EXPECT_EQ(s.reason, Reason::FieldIgnored) << GetParam().body << ": " << s.detail;
+    EXPECT_TRUE(isUsable(s.reason));
+    EXPECT_TRUE(s.checksum_ok);
+    EXPECT_NE(s.detail.find(GetParam().field), std::string::npos) << s.detail;
+    EXPECT_NE(s.detail.find("set to null"), std::string::npos) << s.detail;
+    EXPECT_FALSE(std::holds_alternative<std::monostate>(s.data));
+}
+
+INSTANTIATE_TEST_SUITE_P(
+    Cases, NmeaIgnoredField,
+    ::testing::Values(
+        IgnoredFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,F,46.9,M,,", "(altitude unit)"},
+        IgnoredFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,1,xx,0.9,545.4,M,46.9,M,,", "(satellites)"},
+        IgnoredFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,1,08,-1,545.4,M,46.9,M,,", "(hdop)"},
+        IgnoredFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,2,08,0.9,545.4,M,46.9,M,1.5.,2000", "(dgps age)"},
+        IgnoredFieldCase{"GPGGA,123519,4807.038,N,01131.000,E,2,08,0.9,545.4,M,46.9,M,1.5,2000", "(dgps station)"},
+        IgnoredFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,361.0,230394,003.1,W", "(course)"},
+        IgnoredFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,", "(variation direction)"},
+        IgnoredFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,X,A", "(variation direction)"},
+        IgnoredFieldCase{"GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W,Q", "(mode)"},
+        IgnoredFieldCase{"GPVTG,400.0,T,034.4,M,005.5,N,010.2,K", "(course true)"},
+        IgnoredFieldCase{"GPVTG,054.7,X,034.4,M,005.5,N,010.2,K", "(course true unit)"},
+        IgnoredFieldCase{"GPVTG,054.7,T,034.4,M,005.5,N,010.2,K,Z", "(mode)"},
+        IgnoredFieldCase{"GPZDA,201530.00,04,07,2002,14,00", "(zone hours)"},
+        IgnoredFieldCase{"GPZDA,201530.00,04,07,2002,00,75", "(zone minutes)"},
+        IgnoredFieldCase{"GPGST,172814.0,-0.006,0.023,0.020,273.6,0.023,0.020,0.031", "(rms)"},
+        IgnoredFieldCase{"GPGST,172814.0,0.006,0.023,0.020,373.6,0.023,0.020,0.031", "(orientation)"},
+        IgnoredFieldCase{"GNGNS,014035.00,4332.69262,S,17235.48549,E,RR,13,0.9,25.63,11.24,,,X", "(navigational status)"},
+        IgnoredFieldCase{"GNGNS,014035.00,4332.69262,S,17235.48549,E,RR,13,0.9,2x,11.24,,", "(altitude)"},
+        IgnoredFieldCase{"GPGLL,4916.45,N,12311.12,W,225444,A,Q", "(mode)"},
+        IgnoredFieldCase{"SDDPT,12.5,0.5,-100", "(max range)"}));
+
+TEST(NmeaIgnored, RmcVariationUnknownKeepsTheDateAndPosition) {
+    // Real receivers send 999.9 for "variation unknown". Built here; values invented.
+    const auto s = decodeNmea(
+        withChecksum("GPRMC,081836.00,A,3751.6500,S,14507.3600,E,000.0,360.0,130998,999.9,E"));
+    ASSERT_EQ(s.reason, Reason::FieldIgnored) << s.detail;
+    EXPECT_EQ(s.detail,
+              "field 10 (magnetic variation) '999.9': out of range, set to null");
+    const auto& r = std::get<Rmc>(s.data);
+    EXPECT_FALSE(r.mag_var_deg);
+    ASSERT_TRUE(r.date);
+    EXPECT_EQ(*r.date, (Date{1998, 9, 13}));
+    EXPECT_TRUE(r.valid);
+    EXPECT_NEAR(*r.lat_deg, -(37 + 51.65 * kMinute), 1e-12);
+    EXPECT_NEAR(*r.lon_deg, 145 + 7.36 * kMinute, 1e-12);
+    EXPECT_DOUBLE_EQ(*r.cog_deg, 360.0);
+}
+
+TEST(NmeaIgnored, RmcModeLetterInTheVariationDirectionsPlace) {
+    // Older/odd layout: 11 fields, the E/W letter missing and the mode letter in its place.
+    const auto s = decodeNmea(
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,A"));
+    ASSERT_EQ(s.reason, Reason::FieldIgnored) << s.detail;
+    EXPECT_NE(s.detail.find("field 11 (variation direction) 'A': missing, mode letter in its place"),
+              std::string::npos)
+        << s.detail;
+    const auto& r = std::get<Rmc>(s.data);
+    EXPECT_FALSE(r.mag_var_deg);
+    EXPECT_EQ(r.mode, 'A');
+    EXPECT_EQ(*r.date, (Date{1994, 3, 23}));
+    // With an empty variation the same layout is just as usable.
+    const auto e = decodeNmea(
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,,D"));
+    ASSERT_EQ(e.reason, Reason::FieldIgnored) << e.detail;
+    EXPECT_EQ(std::get<Rmc>(e.data).mode, 'D');
+    // 'E' there is read as east (a mode 'E' cannot be told from it): a plain, correct sentence.
+    const auto east = decodeNmea(
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,E"));
+    ASSERT_EQ(east.reason, Reason::Ok) << east.detail;
+    EXPECT_DOUBLE_EQ(*std::get<Rmc>(east.data).mag_var_deg, 3.1);
+}
+
+TEST(NmeaIgnored, SeveralFieldsAreAllNamedAndTheUsedOnesKept) {
+    const auto s = decodeNmea(
+        withChecksum("GPGGA,123519,4807.038,N,01131.000,E,4,1x,-0.9,545.4,F,46.9,M,,"));
+    ASSERT_EQ(s.reason, Reason::FieldIgnored) << s.detail;
+    EXPECT_EQ(s.detail,
+              "field 7 (satellites) '1x': not an integer in range, set to null; "
+              "field 8 (hdop) '-0.9': out of range, set to null; "
+              "field 10 (altitude unit) 'F': unexpected unit letter, set to null");
+    const auto& g = std::get<Gga>(s.data);
+    EXPECT_FALSE(g.satellites);
+    EXPECT_FALSE(g.hdop);
+    EXPECT_FALSE(g.alt_m);  // its unit is wrong, so the value is not trusted either
+    EXPECT_DOUBLE_EQ(*g.geoid_sep_m, 46.9);
+    EXPECT_EQ(g.quality, 4);
+    EXPECT_NEAR(*g.lat_deg, 48.1173, 1e-12);
+
+    const auto z = decodeNmea(withChecksum("GPZDA,201530.00,04,07,2002,-14,61"));
+    ASSERT_EQ(z.reason, Reason::FieldIgnored) << z.detail;
+    EXPECT_EQ(std::get<Zda>(z.data).date, (Date{2002, 7, 4}));
+    EXPECT_FALSE(std::get<Zda>(z.data).zone_hours);
+    EXPECT_FALSE(std::get<Zda>(z.data).zone_minutes);
+
+    const auto g2 = decodeNmea(withChecksum("GPGST,172814.0,x,x,x,x,0.023,0.020,x"));
+    ASSERT_EQ(g2.reason, Reason::FieldIgnored) << g2.detail;
+    EXPECT_DOUBLE_EQ(*std::get<Gst>(g2.data).sigma_lat_m, 0.023);
+    EXPECT_DOUBLE_EQ(*std::get<Gst>(g2.data).sigma_lon_m, 0.020);
+
+    // More ignored fields than the detail names: the rest are counted.
+    const auto n = decodeNmea(
+        withChecksum("GNGNS,014035.00,4332.69262,S,17235.48549,E,RR,x,x,x,x,x,x,x"));
+    ASSERT_EQ(n.reason, Reason::FieldIgnored) << n.detail;
+    EXPECT_NE(n.detail.find("; and 1 more"), std::string::npos) << n.detail;
+    EXPECT_NEAR(*std::get<Gns>(n.data).lat_deg, -(43 + 32.69262 * kMinute), 1e-12);
+}
+
+TEST(NmeaIgnored, WithoutChecksumTheSentenceStaysNoChecksumAndNamesTheField) {
+    const auto s =
+        decodeNmea("$GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,999.9,E");
+    EXPECT_EQ(s.reason, Reason::NoChecksum);
+    EXPECT_FALSE(s.checksum_ok);
+    EXPECT_NE(s.detail.find("(magnetic variation) '999.9'"), std::string::npos) << s.detail;
+    EXPECT_FALSE(std::get<Rmc>(s.data).mag_var_deg);
+}
+
+TEST(NmeaIgnored, AUsedFieldStillFailsEvenNextToAnIgnoredOne) {
+    const auto s = decodeNmea(
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,320394,999.9,E"));
+    EXPECT_EQ(s.reason, Reason::BadField);
+    EXPECT_NE(s.detail.find("field 9 (date)"), std::string::npos) << s.detail;
+    EXPECT_TRUE(std::holds_alternative<std::monostate>(s.data));
+}
+
+// A source that has sent checksums gets every later sentence without one rejected.
+TEST(NmeaStream, CorruptedStarAfterChecksummedSentencesIsRejected) {
+    const std::string good =
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W,A");
+    ASSERT_EQ(good.substr(good.size() - 3), "*07");  // XOR by hand (python3), pinned here
+    // The '*' corrupted in transit: its two hex digits now read as data of the last field.
+    std::string to_comma = good, to_plus = good, lost = good;
+    to_comma[good.size() - 3] = ',';
+    to_plus[good.size() - 3] = '+';
+    lost.erase(good.size() - 3, 1);
+    // Without the per-source rule these would be accepted (marked no_checksum): the damage is
+    // invisible. That is the defect this rule closes.
+    EXPECT_EQ(decodeNmea(to_comma).reason, Reason::NoChecksum);
+
+    NmeaStreamDecoder src;
+    EXPECT_FALSE(src.checksummed());
+    EXPECT_EQ(src.decode(good).reason, Reason::Ok);
+    EXPECT_TRUE(src.checksummed());
+    for (const auto& bad : {to_comma, to_plus, lost}) {
+        const auto s = src.decode(bad);
+        EXPECT_EQ(s.reason, Reason::MissingChecksum) << bad;
+        EXPECT_FALSE(isUsable(s.reason));
+        EXPECT_TRUE(std::holds_alternative<std::monostate>(s.data));
+        EXPECT_NE(s.detail.find("has sent checksums"), std::string::npos) << s.detail;
+    }
+    // Unknown and proprietary sentences without a checksum are rejected too; checksummed ones
+    // still pass.
+    EXPECT_EQ(src.decode("$GPGSV,1,1,00").reason, Reason::MissingChecksum);
+    EXPECT_EQ(src.decode(withChecksum("GPGSV,1,1,00")).reason, Reason::UnknownSentence);
+    EXPECT_EQ(src.decode(withChecksum("HEHDT,10.0,T")).reason, Reason::Ok);
+    // Framing faults keep their own reasons.
+    EXPECT_EQ(src.decode("").reason, Reason::EmptyLine);
+    EXPECT_EQ(src.decode("SGA,1,2").reason, Reason::NotNmea);
+}
+
+TEST(NmeaStream, SourceWithoutChecksumsIsAcceptedAndABadChecksumDoesNotArmTheRule) {
+    NmeaStreamDecoder src;
+    EXPECT_EQ(src.decode("$HEHDT,10.0,T").reason, Reason::NoChecksum);
+    EXPECT_EQ(src.decode("$HEHDT,10.0,T*00").reason, Reason::BadChecksum);
+    EXPECT_FALSE(src.checksummed());  // a wrong checksum proves nothing about the source
+    EXPECT_EQ(src.decode("$HEHDT,11.0,T").reason, Reason::NoChecksum);
+    // An unknown sentence with a correct checksum arms it.
+    EXPECT_EQ(src.decode(withChecksum("PGRME,15.0,M,45.0,M,25.0,M")).reason,
+              Reason::UnknownSentence);
+    EXPECT_TRUE(src.checksummed());
+    EXPECT_EQ(src.decode("$HEHDT,12.0,T").reason, Reason::MissingChecksum);
+    // Two sources are independent.
+    NmeaStreamDecoder other;
+    EXPECT_EQ(other.decode("$HEHDT,12.0,T").reason, Reason::NoChecksum);
+    // The stateless decoder can be asked for the rule directly.
+    EXPECT_EQ(decodeNmea("$HEHDT,12.0,T", true).reason, Reason::MissingChecksum);
+    EXPECT_EQ(decodeNmea(withChecksum("HEHDT,12.0,T"), true).reason, Reason::Ok);
+}
+
+TEST(NmeaStream, LineDecoderKeepsTheRulePerInputAndLogsTheReasons) {
+    // What record, import and replay use: the raw log's status and reason, the counters by reason.
+    sg::config::InputConfig gnss, gyro;
+    gnss.name = "gnss";
+    gyro.name = "gyro";
+    std::int64_t next_id = 1;
+    sg::engine::LineDecoder dec({gnss, gyro}, {}, [&] { return next_id++; });
+    const std::string rmc =
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,999.9,E");
+    std::string corrupt = withChecksum("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,");
+    corrupt[corrupt.size() - 3] = ',';
+    auto feed = [&](const char* source, const std::string& bytes) {
+        sg::ReceivedLine l;
+        l.source = source;
+        l.bytes = bytes;
+        dec.onLine(l);
+    };
+    feed("gnss", rmc);
+    feed("gyro", "$HEHDT,10.0,T");  // this source never sends checksums: accepted
+    feed("gnss", corrupt);
+    feed("gyro", "$HEHDT,11.0,T");
+    const auto batch = dec.takeBatch();
+    ASSERT_EQ(batch.raw.size(), 4u);
+    EXPECT_EQ(batch.raw[0].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[0].reason.rfind("field_ignored: field 10 (magnetic variation) '999.9'", 0), 0u)
+        << batch.raw[0].reason;
+    EXPECT_EQ(batch.raw[1].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[2].status, sg::log::DecodeStatus::Rejected);
+    EXPECT_EQ(batch.raw[2].reason.rfind("missing_checksum", 0), 0u) << batch.raw[2].reason;
+    EXPECT_EQ(batch.raw[3].status, sg::log::DecodeStatus::Ok);
+    ASSERT_EQ(batch.fixes.size(), 1u);  // the RMC's position is logged, the corrupted GGA is not
+    const auto& c = dec.counters().at("gnss");
+    EXPECT_EQ(c.by_reason.at("field_ignored"), 1u);
+    EXPECT_EQ(c.by_reason.at("missing_checksum"), 1u);
+    EXPECT_EQ(c.ok, 1u);
+    EXPECT_EQ(c.rejected, 1u);
+    EXPECT_EQ(dec.counters().at("gyro").by_reason.at("no_checksum"), 2u);
 }
 
 }  // namespace
