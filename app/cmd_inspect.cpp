@@ -101,7 +101,7 @@ json recordFields(const FieldRecord& r, const FieldMap& map) {
     json j = json::object();
     if (map.time) {
         j["tod_s"] = opt(r.tod_s);
-        if (map.time_format == TimeFormat::UnixS) j["utc_ns"] = opt(r.utc_ns);
+        if (carriesDate(map.time_format)) j["utc_ns"] = opt(r.utc_ns);
     }
     if (map.sensor) j["sensor"] = r.sensor;
     if (map.field_nT) j["field_nT"] = opt(r.field_nT);
