@@ -34,7 +34,7 @@ int runImport(const ImportOptions& o) {
     const auto table = config::parseText(text.str(), o.config);
     const config::Section root(table, o.config);
     // Transport keys are optional here: a capture file stands for the transport.
-    const auto inputs = config::parseInputs(root, config::InputUse::Import);
+    const auto inputs = config::parseInputs(root, config::InputUse::Offline);
     const auto maps = decode::parseFieldMaps(root);
     const auto options = config::parseImport(root);
 

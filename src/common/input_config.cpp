@@ -62,8 +62,8 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
             s.fail("fieldmap", "no fieldmap for kind \"nmea\"");
         }
         c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
-        // `import` reads capture files: there the transport may be left out (--input gives the
-        // file); everywhere else it is required.
+        // Offline (import, reading a log back) the transport may be left out: import's --input
+        // gives the file, a replay reads the log. Acquisition needs it.
         const bool has_transport = use == InputUse::Acquisition || s.has("transport");
         const std::string tr =
             has_transport ? s.choice("transport", {"serial", "udp", "tcp", "file"}) : std::string();

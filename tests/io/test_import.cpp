@@ -16,6 +16,7 @@
 #include "io/recorder.hpp"
 #include "io_test_util.hpp"
 #include "decode/nmea.hpp"
+#include "engine/log_replay.hpp"
 #include "log/log_reader.hpp"
 
 namespace {
@@ -238,7 +239,7 @@ struct Session {
     toml::table table;
 
     explicit Session(const std::string& hdg_extra = "") {
-        // No transport, no path: import takes the files from --input (InputUse::Import).
+        // No transport, no path: import takes the files from --input (InputUse::Offline).
         const std::string toml =
             "[[input]]\nname = \"gnss\"\nkind = \"nmea\"\nrole = \"gnss\"\n\n"
             "[[input]]\nname = \"hdg\"\nkind = \"nmea\"\nrole = \"heading\"\n" + hdg_extra + "\n"
@@ -249,7 +250,7 @@ struct Session {
             "time_zone = \"+01:00\"\nfield_nT = 2\n";
         table = config::parseText(toml, "survey.toml");
         config::Section root(table, "survey.toml");
-        inputs = config::parseInputs(root, config::InputUse::Import);
+        inputs = config::parseInputs(root, config::InputUse::Offline);
         maps = decode::parseFieldMaps(root);
     }
     void writeGnss(int n) {
@@ -475,7 +476,7 @@ TEST(ImportConfig, TransportIsOptionalForImportOnly) {
     const std::string toml = "[[input]]\nname = \"gnss\"\nkind = \"nmea\"\nrole = \"gnss\"\n";
     const auto t = config::parseText(toml, "survey.toml");
     const config::Section root(t, "survey.toml");
-    const auto in = config::parseInputs(root, config::InputUse::Import);
+    const auto in = config::parseInputs(root, config::InputUse::Offline);
     ASSERT_EQ(in.size(), 1u);
     EXPECT_FALSE(in[0].transport_given);
     // Acquisition still needs it, and says which key.
@@ -488,7 +489,7 @@ TEST(ImportConfig, TransportIsOptionalForImportOnly) {
     // A transport key without a transport is refused, naming the key.
     const auto t2 = config::parseText(toml + "path = \"x.nmea\"\n", "survey.toml");
     try {
-        config::parseInputs(config::Section(t2, "survey.toml"), config::InputUse::Import);
+        config::parseInputs(config::Section(t2, "survey.toml"), config::InputUse::Offline);
         FAIL();
     } catch (const config::ConfigError& e) {
         EXPECT_NE(std::string(e.what()).find("input[0].path"), std::string::npos) << e.what();
@@ -496,7 +497,7 @@ TEST(ImportConfig, TransportIsOptionalForImportOnly) {
     // import_align must name another input.
     const auto t3 = config::parseText(toml + "import_align = \"gyro\"\n", "survey.toml");
     try {
-        config::parseInputs(config::Section(t3, "survey.toml"), config::InputUse::Import);
+        config::parseInputs(config::Section(t3, "survey.toml"), config::InputUse::Offline);
         FAIL();
     } catch (const config::ConfigError& e) {
         EXPECT_NE(std::string(e.what()).find("input[0].import_align"), std::string::npos) << e.what();
@@ -532,7 +533,10 @@ TEST(ImportBinary, InputOverridesAConfigWithoutTransportOrPath) {
         c << "[[input]]\nname = \"gnss\"\nkind = \"nmea\"\nrole = \"gnss\"\n\n"
           << "[[input]]\nname = \"hdg\"\nkind = \"nmea\"\nrole = \"heading\"\n\n"
           << "[[input]]\nname = \"mag\"\nkind = \"nmea\"\nrole = \"mag\"\ntransport = \"udp\"\n"
-          << "listen = \"127.0.0.1:47999\"\n";
+          << "listen = \"127.0.0.1:47999\"\n"
+          // The whole core (replay, below) needs a field and a target class.
+          << "[geomagnetic]\ninclination_deg = 66.0\nintensity_nT = 50000.0\n"
+          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n";
     }
     const auto log = s.dir.file("out.sqlite");
     const auto r = runImport("--config " + cfg + " --input gnss=" + s.gnss + " --input hdg=" + s.hdg +
@@ -553,6 +557,11 @@ TEST(ImportBinary, InputOverridesAConfigWithoutTransportOrPath) {
     EXPECT_NE(r.out.find("import: 231 lines written to " + log), std::string::npos) << r.out;
     EXPECT_EQ(test::shell("sqlite3 " + log + " \"select source, count(*) from raw_lines group by 1\""),
               "gnss|40\nhdg|191");
+    // The log reads back (replay, gaps, report) with the config it holds, transport-less inputs
+    // included: every line through the core, the headings among them.
+    engine::LogReplay replay(log, std::nullopt);
+    EXPECT_EQ(replay.runToEnd(), 231u);
+    EXPECT_EQ(test::shell("sqlite3 " + log + " 'select count(*) from headings'"), "191");
 }
 
 TEST(ImportBinary, WhichPathWinsIsSaidAndABogusConfigPathIsAnError) {
