@@ -609,4 +609,43 @@ TEST(ImportBinary, WhichPathWinsIsSaidAndABogusConfigPathIsAnError) {
     EXPECT_NE(unknown.out.find("(inputs: gnss)"), std::string::npos) << unknown.out;
 }
 
+TEST(ImportBinary, DemoCapturesWithUntimedGyroAndSounderReplayAsTheLiveDemo) {
+    // The simulator writes the demo survey to files; the gyro (HDT) and sounder (DPT) files carry
+    // no time. Imported (those two placed in receive order over the GNSS span) and replayed with
+    // the demo's config, the log must give the same raster as the live demo run in one process.
+    test::TempDir d;
+    const std::string src = SG_SOURCE_DIR;
+    const std::string bin = std::string(SG_BINARY_DIR) + "/app/swathguard";
+    const std::string sim = std::string(SG_BINARY_DIR) + "/drivers_sim/swathguard-sim";
+    const std::string files = d.file("sim_out");
+    ASSERT_EQ(test::shell("cd " + src + " && " + sim +
+                          " --scenario replay_logs/demo/scenario.toml --out file --dir " + files +
+                          " >/dev/null 2>&1; echo $?"),
+              "0");
+    std::string args = "--config " + src + "/replay_logs/demo/survey_files.toml --log " +
+                       d.file("imported.sglog");
+    for (const char* in : {"gnss", "gyro", "sounder", "mag", "altimeter", "cable"})
+        args += std::string(" --input ") + in + "=" + files + "/" + in + ".log";
+    const auto imp = runImport(args);
+    ASSERT_EQ(imp.rc, 0) << imp.out;
+    for (const char* untimed : {"gyro", "sounder"})
+        EXPECT_NE(imp.out.find(std::string(untimed) + ".log (--input, not the [[input]] path "),
+                  std::string::npos)
+            << imp.out;
+    EXPECT_NE(imp.out.find("lines without instrument time placed in file order, evenly over the "
+                           "time span of 'gnss'"),
+              std::string::npos)
+        << imp.out;
+    auto hashOf = [&](const std::string& log) {
+        return test::shell(bin + " replay " + log + " --config " + src +
+                           "/replay_logs/demo/survey.toml --headless 2>&1 | grep 'raster hash'");
+    };
+    ASSERT_EQ(test::shell("cd " + src + " && " + bin + " demo --headless --out " + d.file("demo") +
+                          " >/dev/null 2>&1; echo $?"),
+              "0");
+    const auto live = hashOf(d.file("demo") + "/demo.sglog");
+    EXPECT_FALSE(live.empty());
+    EXPECT_EQ(hashOf(d.file("imported.sglog")), live);
+}
+
 }  // namespace
