@@ -363,6 +363,7 @@ TEST(ImportUntimed, FieldMapWithoutTimeAndAlignToAnotherCapture) {
         std::ofstream m(s.mag, std::ios::binary);
         m << "ISOM;2026-12-01T11:00:02.5;48000.0\n"        // no designator: +01:00 (time_zone)
           << "ISOM;2026-12-01T10:00:04.000Z;48001.0\n"
+          << "ISOM;2026-02-30T10:00:05Z;48009.0\n"          // no such date: rejected, kept
           << "ISOM;2026-12-01T11:00:06,25+01:00;48002.0\n"
           << "ISOM;2026-12-01T10:00:07.5000000000Z;48003.0\n";
     }
@@ -404,6 +405,11 @@ TEST(ImportUntimed, FieldMapWithoutTimeAndAlignToAnotherCapture) {
         EXPECT_EQ(dep[k], t10 + static_cast<TimeNs>(k) * 2'250'000'000LL) << k;
     EXPECT_EQ(test::shell("sqlite3 " + p + " \"select count(*) from events where kind='untimed_placement'\""),
               "2");
+    // The bad time is counted with its reason and kept raw; it is no sample.
+    EXPECT_EQ(test::shell("sqlite3 " + p + " \"select bytes, status, reason from raw_lines where "
+                          "source='mag' and status != 'ok'\""),
+              "ISOM;2026-02-30T10:00:05Z;48009.0|rejected|bad_field: field 1 (time): not a calendar date");
+    EXPECT_EQ(test::shell("sqlite3 " + p + " 'select count(*) from mag_samples'"), "4");
     // The depth values reach the log as altitude rows, placed at the stated times.
     EXPECT_EQ(test::shell("sqlite3 " + p + " \"select count(*) from aux where kind='altitude_m'\""), "5");
 }
