@@ -1,8 +1,11 @@
 // `swathguard import`: builds a survey log from one capture file per instrument, merged by
 // instrument time, as if recorded live (see io/importer.hpp).
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
+#include <map>
 #include <sstream>
 
 #include <fmt/format.h>
@@ -36,21 +39,32 @@ int runImport(const ImportOptions& o) {
     text << in.rdbuf();
     const auto table = config::parseText(text.str(), o.config);
     const config::Section root(table, o.config);
-    const auto inputs = config::parseInputs(root);
+    // Transport keys are optional here: a capture file stands for the transport.
+    const auto inputs = config::parseInputs(root, config::InputUse::Offline);
     const auto maps = decode::parseFieldMaps(root);
     const auto options = config::parseImport(root);
-    std::vector<io::CaptureFile> files;
+
+    std::map<std::string, std::string> given;  // NAME -> PATH from --input
     for (const auto& s : o.inputs) {
         const auto eq = s.find('=');
         if (eq == std::string::npos || eq == 0 || eq + 1 == s.size())
             throw std::runtime_error(fmt::format("--input '{}': expected NAME=PATH", s));
-        files.push_back({s.substr(0, eq), s.substr(eq + 1)});
+        const std::string name = s.substr(0, eq);
+        if (std::none_of(inputs.begin(), inputs.end(), [&](const auto& i) { return i.name == name; })) {
+            std::string names;
+            for (const auto& i : inputs) names += (names.empty() ? "" : ", ") + i.name;
+            throw std::runtime_error(fmt::format("--input {}: no [[input]] named '{}' in {} (inputs: {})",
+                                                 s, name, o.config, names));
+        }
+        if (!given.emplace(name, s.substr(eq + 1)).second)
+            throw std::runtime_error(fmt::format("--input {}: input '{}' is given twice", s, name));
     }
+
     std::string log_path = o.log;
     if (!o.site.empty()) {
         if (!o.log.empty()) throw std::runtime_error("--log and --site: a site names its logs itself (SITE/logs/)");
         // The same rule as record --site: the site-wide keys must match the site's config.
-        const auto cfg = engine::loadSurveyConfig(o.config);
+        const auto cfg = engine::loadSurveyConfig(o.config, config::InputUse::Offline);
         const auto site = site::discoverSite({o.site}, std::nullopt);
         const engine::SurveyConfig* ref = site.config_in_force ? &*site.config_in_force : nullptr;
         for (const auto& l : site.logs)
@@ -64,11 +78,65 @@ int runImport(const ImportOptions& o) {
     } else if (log_path.empty()) {
         throw std::runtime_error("--log FILE or --site DIR is required");
     }
+
+    // Which file each input is read from: --input NAME=PATH wins over the [[input]] path (the
+    // output says so); an input without --input is read from its [[input]] path (transport
+    // "file"; relative to the config's folder), which must then exist; any other input is not
+    // imported, and the output says so.
+    const std::filesystem::path cfg_dir = std::filesystem::path(o.config).parent_path();
+    auto fromConfig = [&](const std::string& p) {
+        return std::filesystem::path(p).is_absolute() ? p : (cfg_dir / p).string();
+    };
+    const auto tables = root.tables("input");
+    std::vector<io::CaptureFile> files;
+    std::vector<std::string> skipped;
+    for (std::size_t i = 0; i < inputs.size(); ++i) {
+        const auto& input = inputs[i];
+        const bool file_in_config = input.transport_given && input.transport == config::Transport::File;
+        if (const auto g = given.find(input.name); g != given.end()) {
+            std::string origin = "--input";
+            std::error_code ec;
+            const bool same = file_in_config &&
+                              std::filesystem::equivalent(fromConfig(input.path), g->second, ec);
+            if (file_in_config && !same)
+                origin = fmt::format("--input, not the [[input]] path {}", fromConfig(input.path));
+            files.push_back({input.name, g->second, origin});
+        } else if (file_in_config) {
+            const std::string path = fromConfig(input.path);
+            if (!std::filesystem::is_regular_file(path))
+                tables[i].fail("path", fmt::format("an existing capture file (import reads input '{}' "
+                                                   "from {} since no --input {}=PATH is given)",
+                                                   input.name, path, input.name));
+            files.push_back({input.name, path, "[[input]] path"});
+        } else {
+            skipped.push_back(fmt::format(
+                "{}: not imported (no --input {}=PATH{})", input.name, input.name,
+                input.transport_given ? fmt::format(", and its transport is {}, not a file",
+                                                 config::toString(input.transport))
+                                   : std::string()));
+        }
+    }
+    if (files.empty())
+        throw std::runtime_error(fmt::format(
+            "nothing to import: give --input NAME=PATH for the inputs of {}", o.config));
+
     const auto r = io::importCaptures(inputs, maps, files, options, log_path, text.str(), o.config,
                                       o.accept_disagreement);
-    for (const auto& c : r.merged.captures)
-        std::printf("%s: %zu lines (%zu with instrument time) from %s, clock shift %+.3f s\n",
-                    c.input.c_str(), c.lines, c.timed_lines, c.path.c_str(), c.shift_s);
+    auto originOf = [&](const std::string& input) {
+        for (const auto& f : files)
+            if (f.input == input) return f.origin;
+        return std::string();
+    };
+    for (const auto& c : r.merged.captures) {
+        if (c.placed)
+            std::printf("%s: %zu lines from %s (%s): %s\n", c.input.c_str(), c.lines, c.path.c_str(),
+                        originOf(c.input).c_str(), c.assumption.c_str());
+        else
+            std::printf("%s: %zu lines (%zu with instrument time) from %s (%s), clock shift %+.3f s\n",
+                        c.input.c_str(), c.lines, c.timed_lines, c.path.c_str(),
+                        originOf(c.input).c_str(), c.shift_s);
+    }
+    for (const auto& sk : skipped) std::printf("%s\n", sk.c_str());
     for (const auto& p : r.merged.problems) std::fprintf(stderr, "import: clock disagreement: %s\n", p.c_str());
     if (!r.written) {
         std::fprintf(stderr,
@@ -79,7 +147,7 @@ int runImport(const ImportOptions& o) {
     std::printf("import: %llu lines written to %s\n", static_cast<unsigned long long>(r.raw_lines),
                 log_path.c_str());
     if (!o.site.empty()) {
-        const auto sum = site::buildSessionSummary(log_path, engine::loadSurveyConfig(o.config));
+        const auto sum = site::buildSessionSummary(log_path, engine::loadSurveyConfig(o.config, config::InputUse::Offline));
         site::writeSessionSummary(site::summaryPathFor(log_path), sum);
         std::printf("import: session summary %s\n", site::summaryPathFor(log_path).c_str());
     }
@@ -92,8 +160,8 @@ void addImportCommand(CLI::App& app) {
     auto opts = std::make_shared<ImportOptions>();
     auto* cmd = app.add_subcommand("import", "Build a survey log from capture files, by instrument time");
     cmd->add_option("--config", opts->config, "Survey configuration (TOML)")->required();
-    cmd->add_option("--input", opts->inputs, "NAME=PATH: capture file of the [[input]] NAME")
-        ->required();
+    cmd->add_option("--input", opts->inputs,
+                    "NAME=PATH: capture file of the [[input]] NAME (wins over its [[input]] path)");
     cmd->add_option("--log", opts->log, "Log file to create");
     cmd->add_option("--site", opts->site, "Site folder: the log goes to SITE/logs/ (instead of --log)");
     cmd->add_flag("--accept-clock-disagreement", opts->accept_disagreement,

@@ -397,11 +397,11 @@ private:
             // Full UTC from the latest NMEA date, when the layout gives only a time of day.
             std::optional<TimeNs> clock_utc;
             if (r.tod_s) clock_utc = m_clock.toUtc(*r.tod_s);
-            const bool unix_s = map.time && map.time_format == TimeFormat::UnixS;
+            const bool unix_s = map.time && carriesDate(map.time_format);
             m_json.key("fields"), m_json.open();
             if (map.time) {
                 m_json.key("tod_s"), m_json.opt(r.tod_s);
-                if (unix_s) m_json.key("utc_ns"), m_json.opt(r.tod_s ? clock_utc : r.utc_ns);
+                if (unix_s) m_json.key("utc_ns"), m_json.opt(r.utc_ns ? r.utc_ns : clock_utc);
             }
             if (map.sensor) m_json.key("sensor"), m_json.integer(r.sensor);
             if (map.field_nT) m_json.key("field_nT"), m_json.opt(r.field_nT);

@@ -1,5 +1,6 @@
 // libFuzzer target for the field-map decoder with the default layouts (SGM/SGA/SGC) and with a
-// start-less, tab-delimited, unix-time map: any bytes give a Reason, values stay in range.
+// start-less, tab-delimited, unix-time map, a seconds-of-day map and an ISO 8601 map: any bytes
+// give a Reason, values stay in range.
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
@@ -38,10 +39,24 @@ FieldMap secondsMap() {
     return m;
 }
 
+FieldMap isoMap() {
+    FieldMap m;
+    m.name = "iso";
+    m.delimiter = '|';
+    m.time_format = TimeFormat::Iso8601;
+    m.time_zone_s = 3600;
+    m.time = 1;
+    m.field_nT = 0;
+    return m;
+}
+
 void checkRecord(const FieldRecord& r) {
     check(static_cast<int>(r.reason) < kReasonCount);
     if (r.reason != Reason::Ok) return;
     if (r.tod_s) check(*r.tod_s >= 0.0 && *r.tod_s < 86401.0);
+    // Full UTC: 1969-12-31T10:00 (1970-01-01T00:00 at +14:00) .. 2200-01-01T14:00 (at -14:00).
+    if (r.utc_ns) check(*r.utc_ns >= -14 * 3600LL * 1'000'000'000 &&
+                        *r.utc_ns < (7'258'118'400LL + 14 * 3600 + 2) * 1'000'000'000);
     if (r.field_nT) check(*r.field_nT >= kMinField_nT && *r.field_nT <= kMaxField_nT);
     if (r.altitude_m) check(std::isfinite(*r.altitude_m));
     check(r.sensor >= 0 && r.sensor <= 99);
@@ -54,6 +69,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
         auto v = defaultFieldMaps();
         v.push_back(tabUnixMap());
         v.push_back(secondsMap());
+        v.push_back(isoMap());
         return v;
     }();
     const std::string_view line(reinterpret_cast<const char*>(data), size);

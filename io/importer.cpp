@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <ctime>
 #include <fstream>
 #include <limits>
 #include <optional>
@@ -29,7 +30,21 @@ struct Capture {
     std::vector<std::pair<std::string, std::uint8_t>> lines;  // bytes, framer flags
     std::vector<std::optional<TimeNs>> time;                    // instrument time per line
     bool has_dates = false;
+    bool placed = false;      // no line carries an instrument time: placed in receive order
+    std::size_t usable = 0;   // lines that decode (ok / no_checksum)
+    std::string first_reject;  // reason of the first line that does not decode, for messages
 };
+
+// "2026-12-01T10:00:00.000Z" (UTC, milliseconds) for messages and the log.
+std::string isoText(TimeNs utc_ns) {
+    const TimeNs ms_total = utc_ns >= 0 ? utc_ns / 1'000'000 : (utc_ns - 999'999) / 1'000'000;
+    std::time_t secs = static_cast<std::time_t>(ms_total >= 0 ? ms_total / 1000 : (ms_total - 999) / 1000);
+    const int ms = static_cast<int>(ms_total - static_cast<TimeNs>(secs) * 1000);
+    std::tm tm{};
+    gmtime_r(&secs, &tm);
+    return fmt::format("{:04}-{:02}-{:02}T{:02}:{:02}:{:02}.{:03}Z", tm.tm_year + 1900, tm.tm_mon + 1,
+                       tm.tm_mday, tm.tm_hour, tm.tm_min, tm.tm_sec, ms);
+}
 
 std::string readFile(const std::string& path) {
     std::ifstream in(path, std::ios::binary);
@@ -113,26 +128,39 @@ MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
         const auto latency_ns = static_cast<TimeNs>(std::llround(c.cfg->latency_ms * 1e6));
         bool tod_without_date = false;
         c.time.reserve(c.lines.size());
+        std::size_t line_no = 0;
+        auto noteReject = [&](decode::Reason r, const std::string& detail) {
+            if (!c.first_reject.empty()) return;
+            c.first_reject = fmt::format("line {}: {}{}{}", line_no, decode::reasonName(r),
+                                         detail.empty() ? "" : ": ", detail);
+        };
         for (const auto& [bytes, fl] : c.lines) {
             std::optional<TimeNs> t;
             if (!(fl & kLineContinued)) {
+                ++line_no;
                 if (map == nullptr) {
                     const auto s = decode::decodeNmea(bytes);
                     if (decode::isUsable(s.reason)) {
+                        ++c.usable;
                         clock.observe(s);
                         if (auto tod = todOf(s)) {
                             t = clock.toUtc(*tod);
                             if (!t) tod_without_date = true;
                         }
+                    } else {
+                        noteReject(s.reason, s.detail);
                     }
                 } else {
                     const auto r = decode::decodeFieldMap(*map, bytes);
                     if (decode::isUsable(r.reason)) {
+                        ++c.usable;
                         if (r.utc_ns) t = r.utc_ns;
                         else if (r.tod_s) {
                             t = clock.toUtc(*r.tod_s);
                             if (!t) tod_without_date = true;
                         }
+                    } else {
+                        noteReject(r.reason, r.detail);
                     }
                 }
             }
@@ -147,18 +175,29 @@ MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
                 first = t;
                 break;
             }
+        CaptureSummary sum;
+        sum.input = c.cfg->name;
+        sum.path = c.path;
+        sum.lines = c.lines.size();
         if (!first) {
             if (tod_without_date)
                 throw std::runtime_error(fmt::format(
                     "{}: times of day but no date: no capture holds an RMC or ZDA sentence",
                     c.path));
-            throw std::runtime_error(
-                fmt::format("{}: no line with an instrument time; cannot place it in time", c.path));
+            if (c.usable == 0)
+                throw std::runtime_error(fmt::format(
+                    "{}: no line decodes as input '{}' ({}{}){}{}: is it the right file, and the "
+                    "right [[input]] kind/fieldmap?",
+                    c.path, c.cfg->name, config::toString(c.cfg->kind),
+                    map != nullptr ? " " + map->name : std::string(),
+                    c.first_reject.empty() ? "" : "; first: ", c.first_reject));
+            // Lines decode but none carries a time (HDT, DPT, a field map without `time`):
+            // placed in receive order below, once the timed captures are known.
+            c.placed = true;
+            sum.placed = true;
+            out.captures.push_back(sum);
+            continue;
         }
-        CaptureSummary sum;
-        sum.input = c.cfg->name;
-        sum.path = c.path;
-        sum.lines = c.lines.size();
         sum.first_ns = *first;
         sum.last_ns = *first;
         TimeNs prev = *first;
@@ -175,18 +214,30 @@ MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
         out.captures.push_back(sum);
     }
 
+    // The reference capture: the first timed capture with dates (config order), else the first
+    // timed capture.
+    std::optional<std::size_t> ref_opt;
+    for (std::size_t i = 0; i < caps.size() && !ref_opt; ++i)
+        if (!caps[i].placed && caps[i].has_dates) ref_opt = i;
+    for (std::size_t i = 0; i < caps.size() && !ref_opt; ++i)
+        if (!caps[i].placed) ref_opt = i;
+    if (!ref_opt) {
+        std::string names;
+        for (const auto& c : caps) names += (names.empty() ? "" : ", ") + c.cfg->name;
+        throw std::runtime_error(fmt::format(
+            "no capture carries an instrument time ({}): a capture without time can only be "
+            "placed against a timed capture of the same session (GNSS with RMC/ZDA, or a field map "
+            "with `time`)",
+            names));
+    }
+    const std::size_t ref = *ref_opt;
+
     // Clock disagreement: captures of one session start and stop together within a few seconds,
-    // so a capture whose start AND end are both shifted the same way against the reference (the
-    // first capture with dates, else the first) has a clock that disagrees. A capture that only
-    // starts later or stops earlier is not shifted (one end agrees).
-    std::size_t ref = 0;
-    for (std::size_t i = 0; i < caps.size(); ++i)
-        if (caps[i].has_dates) {
-            ref = i;
-            break;
-        }
+    // so a capture whose start AND end are both shifted the same way against the reference
+    // has a clock that disagrees. A capture that only starts later or stops earlier is not
+    // shifted (one end agrees).
     for (std::size_t i = 0; i < out.captures.size(); ++i) {
-        if (i == ref) continue;
+        if (i == ref || caps[i].placed) continue;
         auto& s = out.captures[i];
         const double d0 = toSeconds(s.first_ns - out.captures[ref].first_ns);
         const double d1 = toSeconds(s.last_ns - out.captures[ref].last_ns);
@@ -199,6 +250,81 @@ MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
                 "limit {} s)",
                 s.input, s.path, s.shift_s, out.captures[ref].input, d0, d1,
                 options.max_clock_disagreement_s));
+        }
+    }
+
+    // Receive-order placement of captures without any instrument time. Rule: the k-th of the n
+    // lines of the file gets t0 + k (t1 - t0) / (n - 1), where [t0, t1] is the span of receive
+    // times of the timed capture it is aligned to ([[input]] import_align, else the reference).
+    // This holds when both captures were logged over the same period and the untimed instrument
+    // sent at a steady rate (instruments without time in their strings, gyros and echo sounders,
+    // send at a fixed rate: common practice); import_rate_hz checks that against the span. The
+    // capture's own latency_ms is then taken off by the engine, as for a live line.
+    for (std::size_t i = 0; i < caps.size(); ++i) {
+        auto& c = caps[i];
+        if (!c.placed) continue;
+        std::size_t target = ref;
+        if (!c.cfg->import_align.empty()) {
+            const auto it = std::find_if(caps.begin(), caps.end(), [&](const Capture& o) {
+                return o.cfg->name == c.cfg->import_align;
+            });
+            if (it == caps.end())
+                throw std::runtime_error(fmt::format(
+                    "input '{}': import_align = \"{}\", but no capture of '{}' is imported (give "
+                    "--input {}=PATH, or change import_align)",
+                    c.cfg->name, c.cfg->import_align, c.cfg->import_align, c.cfg->import_align));
+            if (it->placed)
+                throw std::runtime_error(fmt::format(
+                    "input '{}': import_align = \"{}\", but the capture of '{}' ({}) has no "
+                    "instrument time itself",
+                    c.cfg->name, c.cfg->import_align, c.cfg->import_align, it->path));
+            target = static_cast<std::size_t>(it - caps.begin());
+        }
+        const CaptureSummary& ts = out.captures[target];
+        auto& sum = out.captures[i];
+        std::size_t heads = 0;
+        for (const auto& l : c.lines)
+            if (!(l.second & kLineContinued)) ++heads;
+        const TimeNs span_ns = ts.last_ns - ts.first_ns;
+        const double span_s = toSeconds(span_ns);
+        std::size_t k = 0;
+        TimeNs head_t = ts.first_ns;
+        for (std::size_t j = 0; j < c.lines.size(); ++j) {
+            if (!(c.lines[j].second & kLineContinued)) {
+                head_t = ts.first_ns +
+                         (heads > 1 ? static_cast<TimeNs>(std::llround(
+                                          static_cast<long double>(span_ns) * static_cast<long double>(k) /
+                                          static_cast<long double>(heads - 1)))
+                                    : 0);
+                ++k;
+            }
+            c.time[j] = head_t;  // a continued piece stays with its line
+        }
+        sum.first_ns = ts.first_ns;
+        sum.last_ns = ts.last_ns;
+        sum.aligned_to = ts.input;
+        sum.implied_rate_hz = heads > 1 && span_ns > 0 ? static_cast<double>(heads - 1) / span_s : 0.0;
+        sum.assumption = fmt::format(
+            "{} lines without instrument time placed in file order, evenly over the time span of "
+            "'{}' ({} .. {}, {:.3f} s; implied rate {:.3f} Hz); assumes both captures were logged "
+            "over the same period and this instrument sent at a steady rate",
+            heads, ts.input, isoText(ts.first_ns), isoText(ts.last_ns), span_s, sum.implied_rate_hz);
+        if (c.cfg->import_rate_hz) {
+            const double rate = *c.cfg->import_rate_hz;
+            const double expected_s = heads > 1 ? static_cast<double>(heads - 1) / rate : 0.0;
+            sum.shift_s = expected_s - span_s;
+            sum.assumption += fmt::format(
+                "; at import_rate_hz = {} Hz the lines last {:.3f} s ({:+.3f} s against the span)",
+                rate, expected_s, sum.shift_s);
+            if (std::abs(sum.shift_s) > options.max_clock_disagreement_s) {
+                sum.disagrees = true;
+                out.problems.push_back(fmt::format(
+                    "{} ({}): {} lines at import_rate_hz = {} Hz last {:.3f} s, but '{}' spans "
+                    "{:.3f} s ({:+.3f} s; limit {} s): the captures do not cover the same period, "
+                    "or the rate is wrong",
+                    sum.input, sum.path, heads, rate, expected_s, ts.input, span_s, sum.shift_s,
+                    options.max_clock_disagreement_s));
+            }
         }
     }
 
@@ -253,6 +379,20 @@ ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
     store.setMeta("imported_from", from);
     std::int64_t next_id = store.nextEventId();
     engine::LineDecoder d(inputs, maps, [&next_id] { return next_id++; });
+    std::string placement;
+    for (const auto& c : res.merged.captures) {
+        if (!c.placed) continue;
+        placement += fmt::format("{}={}: {}\n", c.input, c.path, c.assumption);
+        log::EventRow e;
+        e.kind = "untimed_placement";
+        e.source = c.input;
+        e.start_utc_ns = c.first_ns;
+        e.end_utc_ns = c.last_ns;
+        e.value = c.implied_rate_hz;
+        e.detail = c.assumption;
+        d.addEvent(std::move(e));
+    }
+    if (!placement.empty()) store.setMeta("import_placement", placement);
     for (const auto& c : res.merged.captures) {
         if (!c.disagrees) continue;
         log::EventRow e;

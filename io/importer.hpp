@@ -5,6 +5,9 @@
 // goes through the same engine::LineDecoder as live lines, so decode statuses and rows are identical.
 // A capture whose clock is shifted against the reference capture by more than
 // [import] max_clock_disagreement_s is reported and not merged unless the caller accepts it.
+// A capture with no instrument time at all (HDT, DPT, a field map without `time`) is placed in
+// receive order: its lines are spread evenly over the time span of a timed capture of the same
+// session (the [[input]] import_align, else the reference capture); see docs/config.md, [import].
 #pragma once
 
 #include <string>
@@ -19,6 +22,7 @@ namespace sg::io {
 struct CaptureFile {
     std::string input;  // [[input]] name
     std::string path;
+    std::string origin = "--input";  // where the path came from, for messages
 };
 
 struct CaptureSummary {
@@ -27,8 +31,16 @@ struct CaptureSummary {
     std::size_t lines = 0;
     std::size_t timed_lines = 0;  // lines that carried an instrument time
     TimeNs first_ns = 0, last_ns = 0;  // instrument time span (UTC ns)
-    double shift_s = 0.0;          // clock shift against the reference capture (0 for it)
+    double shift_s = 0.0;          // clock shift against the reference capture (0 for it); for
+                                   // a placed capture with import_rate_hz: its span at that rate
+                                   // minus the span it was placed over
     bool disagrees = false;        // |shift_s| > max_clock_disagreement_s
+    // Placement of a capture without any instrument time (placed == true): its lines were spread
+    // evenly, in file order, over [first_ns, last_ns], the span of `aligned_to`.
+    bool placed = false;
+    std::string aligned_to;        // [[input]] name of the timed capture it was aligned to
+    double implied_rate_hz = 0.0;  // (lines - 1) / span
+    std::string assumption;        // the rule and assumption in words (output, log event, meta)
 };
 
 struct MergedCaptures {
@@ -38,7 +50,8 @@ struct MergedCaptures {
 };
 
 // Reads and merges the captures. Throws std::runtime_error for an unreadable file, an unknown
-// input name, a capture without any instrument time, or times of day with no date anywhere.
+// input name, a capture none of whose lines decodes, a capture without time when no capture has
+// time (or its import_align names no timed capture), or times of day with no date anywhere.
 MergedCaptures mergeCaptures(const std::vector<config::InputConfig>& inputs,
                              const std::vector<decode::FieldMap>& maps,
                              const std::vector<CaptureFile>& files,
@@ -53,6 +66,8 @@ struct ImportResult {
 // mergeCaptures, then (if no capture disagrees, or `accept_disagreement`) writes `log_path`
 // (a new file) through the engine::LineDecoder; accepted disagreements are logged as events of kind
 // "clock_disagreement" (value = shift in s). `config_text` is stored in meta like `record` does.
+// Each placed capture is logged as an event of kind "untimed_placement" (start/end = the span,
+// value = implied rate in Hz, detail = the assumption) and in meta key "import_placement".
 ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
                             const std::vector<decode::FieldMap>& maps,
                             const std::vector<CaptureFile>& files,

@@ -38,13 +38,15 @@ const char* toString(Transport t) {
     return "?";
 }
 
-std::vector<InputConfig> parseInputs(const Section& root) {
+std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
     std::vector<InputConfig> out;
     std::set<std::string> names;
-    for (const Section& s : root.tables("input")) {
+    const std::vector<Section> tables = root.tables("input");
+    for (const Section& s : tables) {
         s.allowOnly({"name", "kind", "fieldmap", "role", "transport", "device", "baud", "parity",
                      "data_bits", "stop_bits", "listen", "connect", "reconnect_min_s",
-                     "reconnect_max_s", "path", "follow", "clock", "latency_ms"});
+                     "reconnect_max_s", "path", "follow", "clock", "latency_ms", "import_align",
+                     "import_rate_hz"});
         InputConfig c;
         c.name = s.string("name");
         if (c.name.empty()) s.fail("name", "a non-empty name");
@@ -60,12 +62,17 @@ std::vector<InputConfig> parseInputs(const Section& root) {
             s.fail("fieldmap", "no fieldmap for kind \"nmea\"");
         }
         c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
-        const std::string tr = s.choice("transport", {"serial", "udp", "tcp", "file"});
+        // Offline (import, reading a log back) the transport may be left out: import's --input
+        // gives the file, a replay reads the log. Acquisition needs it.
+        const bool has_transport = use == InputUse::Acquisition || s.has("transport");
+        const std::string tr =
+            has_transport ? s.choice("transport", {"serial", "udp", "tcp", "file"}) : std::string();
         // Keys of another transport are rejected too: they are almost always a mistake.
         auto onlyFor = [&](std::initializer_list<std::string_view> keys, std::string_view t) {
             for (auto k : keys)
                 if (s.has(k) && tr != t)
-                    s.fail(k, fmt::format("no '{}' for transport \"{}\"", k, tr));
+                    s.fail(k, has_transport ? fmt::format("no '{}' for transport \"{}\"", k, tr)
+                                            : fmt::format("no '{}' without transport = \"{}\"", k, t));
         };
         onlyFor({"device", "baud", "parity", "data_bits", "stop_bits"}, "serial");
         onlyFor({"listen"}, "udp");
@@ -89,16 +96,26 @@ std::vector<InputConfig> parseInputs(const Section& root) {
             c.reconnect_max_s = s.number("reconnect_max_s", 0.01, 3600.0, 10.0);
             if (c.reconnect_max_s < c.reconnect_min_s)
                 s.fail("reconnect_max_s", "a value >= reconnect_min_s");
-        } else {
+        } else if (tr == "file") {
             c.transport = Transport::File;
             c.path = s.string("path");
             c.follow = s.boolean("follow", false);
+        } else {
+            c.transport_given = false;
         }
         c.clock = s.choice("clock", {"receive", "instrument"}, "receive") == "receive"
                       ? ClockSource::Receive
                       : ClockSource::Instrument;
         c.latency_ms = s.number("latency_ms", 0.0, 60000.0, 0.0);
+        c.import_align = s.string("import_align", "");
+        c.import_rate_hz = s.optionalNumber("import_rate_hz", 0.001, 10000.0);
         out.push_back(std::move(c));
+    }
+    for (std::size_t i = 0; i < out.size(); ++i) {
+        const std::string& a = out[i].import_align;
+        if (a.empty()) continue;
+        if (a == out[i].name || names.count(a) == 0)
+            tables[i].fail("import_align", "the name of another [[input]] (a capture with instrument time)");
     }
     return out;
 }

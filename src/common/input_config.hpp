@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -41,7 +42,20 @@ struct InputConfig {
     bool follow = false;        // file: keep reading as the file grows
     ClockSource clock = ClockSource::Receive;
     double latency_ms = 0.0;    // fixed delay between the instrument's measurement and the line
+    // False only when parsed for offline use (InputUse::Offline) from a table without
+    // `transport`: `import` then takes the capture file from `--input NAME=PATH`.
+    bool transport_given = true;
+    // import, for a capture without any instrument time (HDT, DPT, a field map without `time`):
+    // the [[input]] whose time span its lines are spread over ("" = the reference capture), and
+    // its nominal line rate in Hz (optional; when set, checked against the span).
+    std::string import_align;
+    std::optional<double> import_rate_hz;
 };
+
+// Who reads the [[input]] tables: acquisition (`record`, the demo) needs a transport for each
+// input; offline use (`import`, which reads capture files and lets `--input NAME=PATH` stand for
+// the transport, and reading a log back: replay, gaps, report) lets `transport` be left out.
+enum class InputUse { Acquisition, Offline };
 
 struct LogConfig {
     std::string path;                  // SQLite file; empty = given on the command line
@@ -54,7 +68,8 @@ struct ImportConfig {
 
 // Reads every [[input]] table of `root`. Throws ConfigError (file, key, line) on a missing or
 // bad key, an unknown key, a duplicate name or a fieldmap that has no [fieldmap.NAME] table.
-std::vector<InputConfig> parseInputs(const Section& root);
+// With InputUse::Offline, `transport` may be left out (then no transport key may be given).
+std::vector<InputConfig> parseInputs(const Section& root, InputUse use = InputUse::Acquisition);
 // Reads [log] (all keys optional).
 LogConfig parseLog(const Section& root);
 // Reads [import] (all keys optional).

@@ -22,7 +22,6 @@ constexpr Range kAltitudeRange{0.0, 10'000.0};
 constexpr Range kCableRange{0.0, 20'000.0};
 constexpr Range kFieldRange{kMinField_nT, kMaxField_nT};
 constexpr int kMaxSensor = 99;
-constexpr std::int64_t kMaxUnix_s = 7'258'118'400;  // 2200-01-01T00:00:00Z
 
 constexpr std::size_t kMaxFields = kMaxFieldIndex + 1;
 
@@ -62,29 +61,6 @@ FieldRecord failed(FieldRecord&& r, Reason reason, std::string detail) {
 
 std::string fieldDetail(int index, const char* name, const char* what) {
     return "field " + std::to_string(index) + " (" + name + "): " + what;
-}
-
-// "1733097912.25" -> ns since the epoch, exactly (no double rounding).
-bool parseUnixNs(std::string_view s, TimeNs& out) {
-    const std::size_t dot = s.find('.');
-    const std::string_view whole = s.substr(0, dot);
-    const std::string_view frac = dot == std::string_view::npos ? std::string_view{}
-                                                                : s.substr(dot + 1);
-    if (whole.empty() || whole.size() > 11 || frac.size() > 9) return false;
-    std::int64_t w = 0;
-    for (const char c : whole) {
-        if (!detail::isDigit(c)) return false;
-        w = w * 10 + (c - '0');
-    }
-    std::int64_t f = 0;
-    for (std::size_t i = 0; i < 9; ++i) {
-        const char c = i < frac.size() ? frac[i] : '0';
-        if (!detail::isDigit(c)) return false;
-        f = f * 10 + (c - '0');
-    }
-    if (w >= kMaxUnix_s) return false;
-    out = w * kNsPerSecond + f;
-    return true;
 }
 
 }  // namespace
@@ -168,13 +144,14 @@ FieldRecord decodeFieldMap(const FieldMap& map, std::string_view line) {
             } else {
                 r.tod_s = t;
             }
+        } else if (map.time_format == TimeFormat::UnixS) {
+            TimeNs t = 0;
+            what = detail::parseUnixNs(s, t);
+            if (!what) r.utc_ns = t;
         } else {
             TimeNs t = 0;
-            if (!parseUnixNs(s, t)) {
-                what = "expected unix seconds 0..7258118400 with up to 9 decimals";
-            } else {
-                r.utc_ns = t;
-            }
+            what = detail::parseIso8601Ns(s, map.time_zone_s, t);
+            if (!what) r.utc_ns = t;
         }
         if (what) return failed(std::move(r), Reason::BadField, fieldDetail(*map.time, "time", what));
     }
@@ -262,8 +239,8 @@ MatchedRecord decodeWithMaps(std::span<const FieldMap> maps, std::string_view li
 }
 
 FieldMap parseFieldMap(const config::Section& t) {
-    t.allowOnly({"start", "delimiter", "checksum", "time", "time_format", "field_nT", "quality",
-                 "depth_m", "altitude_m", "sensor", "cable_out_m"});
+    t.allowOnly({"start", "delimiter", "checksum", "time", "time_format", "time_zone", "field_nT",
+                 "quality", "depth_m", "altitude_m", "sensor", "cable_out_m"});
     FieldMap m;
     const std::string& path = t.path();
     const std::size_t dot = path.rfind('.');
@@ -280,11 +257,21 @@ FieldMap parseFieldMap(const config::Section& t) {
     if (m.start.find(m.delimiter) != std::string::npos) {
         t.fail("start", "a token without the delimiter");
     }
-    const std::string tf = t.choice("time_format", {"hhmmss.sss", "seconds_of_day", "unix_s"},
-                                    "hhmmss.sss");
+    const std::string tf = t.choice(
+        "time_format", {"hhmmss.sss", "hhmmss", "seconds_of_day", "unix_s", "iso8601"}, "hhmmss.sss");
     m.time_format = tf == "unix_s"           ? TimeFormat::UnixS
                     : tf == "seconds_of_day" ? TimeFormat::SecondsOfDay
+                    : tf == "iso8601"        ? TimeFormat::Iso8601
                                              : TimeFormat::HhMmSs;
+    if (const auto zone = t.optionalString("time_zone")) {
+        // Only ISO 8601 can say its zone; for the other formats the key would be a silent no-op.
+        if (m.time_format != TimeFormat::Iso8601) {
+            t.fail("time_zone", "no time_zone unless time_format = \"iso8601\" (the other formats are UTC)");
+        }
+        if (detail::parseUtcOffset(*zone, m.time_zone_s) != nullptr) {
+            t.fail("time_zone", "\"Z\" or an offset from UTC \"+hh:mm\" / \"-hh:mm\" up to 14:00");
+        }
+    }
 
     const int first = m.start.empty() ? 0 : 1;
     std::array<const char*, kMaxFields> used{};
@@ -306,6 +293,11 @@ FieldMap parseFieldMap(const config::Section& t) {
     m.depth_m = index("depth_m");
     m.altitude_m = index("altitude_m");
     m.cable_out_m = index("cable_out_m");
+    if (!m.time && (t.has("time_format") || t.has("time_zone"))) {
+        // A time format without a time field would be ignored: say so instead.
+        t.fail(t.has("time_format") ? "time_format" : "time_zone",
+               "no time format without a `time` index (set time = <field index>)");
+    }
     if (!m.field_nT && !m.quality && !m.depth_m && !m.altitude_m && !m.cable_out_m) {
         t.fail("field_nT",
                "at least one measurement index (field_nT, quality, depth_m, altitude_m, "

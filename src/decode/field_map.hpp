@@ -29,10 +29,15 @@ inline constexpr double kMinField_nT = 10'000.0;
 inline constexpr double kMaxField_nT = 120'000.0;
 
 enum class TimeFormat : std::uint8_t {
-    HhMmSs,        // "hhmmss.sss": UTC time of day (config value "hhmmss.sss")
+    HhMmSs,        // "hhmmss.sss": UTC time of day (config value "hhmmss.sss" or "hhmmss")
     SecondsOfDay,  // seconds since UTC midnight, 0 <= t < 86401 ("seconds_of_day")
     UnixS,         // seconds since 1970-01-01T00:00:00Z ("unix_s")
+    Iso8601,       // date and time, e.g. 2026-06-02T09:00:00.000Z ("iso8601")
 };
+
+// True when the format carries the date (FieldRecord::utc_ns), false for a time of day (tod_s,
+// which needs a GNSS date through InstrumentClock).
+inline bool carriesDate(TimeFormat f) { return f == TimeFormat::UnixS || f == TimeFormat::Iso8601; }
 
 enum class MapChecksum : std::uint8_t {
     None,  // no checksum ("none")
@@ -45,6 +50,9 @@ struct FieldMap {
     char delimiter = ',';   // one byte (TAB allowed)
     MapChecksum checksum = MapChecksum::None;
     TimeFormat time_format = TimeFormat::HhMmSs;
+    // iso8601 only: offset of times written without a zone designator, seconds east of UTC
+    // (-14 h .. +14 h; key time_zone, default "Z").
+    int time_zone_s = 0;
     // Field indices (0 = first field, which is the start token when `start` is set).
     std::optional<int> time;
     std::optional<int> field_nT;
@@ -60,7 +68,7 @@ struct FieldMap {
 
 struct FieldRecord {
     std::optional<double> tod_s;   // UTC time of day, for hhmmss.sss and seconds_of_day
-    std::optional<TimeNs> utc_ns;  // full UTC, for unix_s (use InstrumentClock for tod_s)
+    std::optional<TimeNs> utc_ns;  // full UTC, for unix_s and iso8601 (InstrumentClock for tod_s)
     // Measurements: empty when the map has no such field or the instrument left it empty.
     std::optional<double> field_nT;     // total field, kMinField_nT..kMaxField_nT
     std::optional<double> quality;      // instrument's signal quality, >= 0 (meaning per instrument)
@@ -72,8 +80,9 @@ struct FieldRecord {
     std::string detail;  // which field and why
 };
 
-// Reads one [fieldmap.NAME] table. Keys: start, delimiter, checksum, time, time_format, field_nT,
-// quality, depth_m, altitude_m, sensor, cable_out_m (see docs/formats.md). Throws ConfigError.
+// Reads one [fieldmap.NAME] table. Keys: start, delimiter, checksum, time, time_format, time_zone,
+// field_nT, quality, depth_m, altitude_m, sensor, cable_out_m (see docs/formats.md). Throws
+// ConfigError.
 FieldMap parseFieldMap(const config::Section& table);
 // Reads every [fieldmap.*] table under `root` (the config's root table), in NAME order (toml++
 // keeps a table's keys sorted, so file order is not available). An absent [fieldmap] table gives

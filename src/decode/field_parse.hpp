@@ -4,6 +4,7 @@
 
 #include <array>
 #include <charconv>
+#include <chrono>
 #include <cmath>
 #include <cstdint>
 #include <string>
@@ -109,6 +110,156 @@ inline const char* parseHhMmSs(std::string_view s, double& tod_s) {
     if (mm > 59) return "minutes > 59";
     if (ss >= 61.0) return "seconds >= 61";
     tod_s = hh * 3600.0 + mm * 60.0 + ss;
+    return nullptr;
+}
+
+// Digits of a decimal fraction ("5", "123456789012") -> nanoseconds, rounded to the nearest
+// nanosecond (half up) whatever the number of digits. Returns false for an empty string or a
+// non-digit. The result may be 1'000'000'000 ("9999999999"): the caller adds it to whole seconds.
+inline bool parseFractionNs(std::string_view digits, std::int64_t& ns) {
+    if (digits.empty()) return false;
+    std::int64_t v = 0;
+    for (std::size_t i = 0; i < digits.size(); ++i) {
+        const char c = digits[i];
+        if (!isDigit(c)) return false;
+        if (i < 9) v = v * 10 + (c - '0');
+    }
+    for (std::size_t i = digits.size(); i < 9; ++i) v *= 10;
+    if (digits.size() > 9 && digits[9] >= '5') ++v;
+    ns = v;
+    return true;
+}
+
+// Latest instrument time accepted as full UTC: 2200-01-01T00:00:00Z (the NMEA date range of this
+// project ends in 2199 too).
+inline constexpr std::int64_t kMaxUnix_s = 7'258'118'400;
+inline constexpr std::int64_t kNsPerS = 1'000'000'000;
+
+// Unix seconds "1796173200", "1796173200.25", fraction of any length (rounded to the ns) ->
+// nanoseconds since 1970-01-01T00:00:00Z, exactly (no double on the way). 0 <= value < 2200.
+// Returns nullptr on success, else what is wrong.
+inline const char* parseUnixNs(std::string_view s, std::int64_t& out_ns) {
+    const std::size_t dot = s.find('.');
+    const std::string_view whole = s.substr(0, dot);
+    std::int64_t f = 0;
+    if (dot != std::string_view::npos && !parseFractionNs(s.substr(dot + 1), f)) {
+        return "expected unix seconds: digits, optionally '.' and digits";
+    }
+    if (whole.empty() || whole.size() > 11) {
+        return "expected unix seconds: digits, optionally '.' and digits";
+    }
+    std::int64_t w = 0;
+    for (const char c : whole) {
+        if (!isDigit(c)) return "expected unix seconds: digits, optionally '.' and digits";
+        w = w * 10 + (c - '0');
+    }
+    if (w >= kMaxUnix_s) return "unix seconds beyond 2200-01-01 (7258118400)";
+    out_ns = w * kNsPerS + f;
+    return nullptr;
+}
+
+// A UTC offset "Z", "z", "+hh:mm", "-hh:mm", "+hhmm", "+hh" -> seconds east of UTC. |offset| <=
+// 14:00 (the largest in use, UTC+14, Line Islands; from memory), minutes < 60. "-00:00" is UTC
+// (RFC 3339 section 4.3: UTC with the local offset unknown). Returns nullptr on success.
+inline const char* parseUtcOffset(std::string_view s, int& offset_s) {
+    if (s == "Z" || s == "z") {
+        offset_s = 0;
+        return nullptr;
+    }
+    const char* const what = "expected a zone designator Z, +hh:mm, +hhmm or +hh";
+    if (s.size() < 3 || (s[0] != '+' && s[0] != '-') || !isDigit(s[1]) || !isDigit(s[2])) return what;
+    const int hh = twoDigits(s.data() + 1);
+    int mm = 0;
+    std::string_view rest = s.substr(3);
+    if (!rest.empty() && rest[0] == ':') rest.remove_prefix(1);
+    if (!rest.empty()) {
+        if (rest.size() != 2 || !isDigit(rest[0]) || !isDigit(rest[1])) return what;
+        mm = twoDigits(rest.data());
+    } else if (s.size() == 4) {
+        return what;  // "+01:" without minutes
+    }
+    if (mm > 59) return "zone offset minutes > 59";
+    if (hh * 60 + mm > 14 * 60) return "zone offset beyond +-14:00";
+    offset_s = (s[0] == '-' ? -1 : 1) * (hh * 3600 + mm * 60);
+    return nullptr;
+}
+
+// ISO 8601 date and time of day -> nanoseconds since 1970-01-01T00:00:00Z (ISO 8601-1:2019; the
+// profile of RFC 3339 section 5.6 plus the basic format):
+//   date       YYYY-MM-DD or YYYYMMDD, a real calendar date, year 1970..2199
+//   separator  'T' (also 't' or one space, as RFC 3339 allows)
+//   time       hh:mm:ss or hhmmss; hh <= 23, mm <= 59, ss <= 60 (23:59:60 is a leap second; it
+//              counts as the first second of the next day, as POSIX time has no leap seconds)
+//   fraction   optional: '.' or ',' then digits, any number, rounded to the nanosecond
+//   zone       optional: Z, +hh:mm, -hh:mm, +hhmm, +hh. Without one, `default_offset_s` (seconds
+//              east of UTC) applies: ISO 8601 calls such a time local time.
+// Returns nullptr on success, else what is wrong.
+inline const char* parseIso8601Ns(std::string_view s, int default_offset_s, std::int64_t& out_ns) {
+    const char* const shape = "expected ISO 8601 YYYY-MM-DDThh:mm:ss[.s][Z|+hh:mm]";
+    auto digitsAt = [&](std::size_t pos, std::size_t n) {
+        if (pos + n > s.size()) return false;
+        for (std::size_t i = 0; i < n; ++i) {
+            if (!isDigit(s[pos + i])) return false;
+        }
+        return true;
+    };
+    if (!digitsAt(0, 4)) return shape;
+    const int year = twoDigits(s.data()) * 100 + twoDigits(s.data() + 2);
+    std::size_t p = 4;
+    const bool ext_date = p < s.size() && s[p] == '-';
+    if (ext_date) ++p;
+    if (!digitsAt(p, 2)) return shape;
+    const int month = twoDigits(s.data() + p);
+    p += 2;
+    if (ext_date) {
+        if (p >= s.size() || s[p] != '-') return shape;
+        ++p;
+    }
+    if (!digitsAt(p, 2)) return shape;
+    const int day = twoDigits(s.data() + p);
+    p += 2;
+    if (p >= s.size() || (s[p] != 'T' && s[p] != 't' && s[p] != ' ')) {
+        return "expected 'T' between the date and the time";
+    }
+    ++p;
+    if (!digitsAt(p, 2)) return shape;
+    const int hh = twoDigits(s.data() + p);
+    p += 2;
+    const bool ext_time = p < s.size() && s[p] == ':';
+    if (ext_time) ++p;
+    if (!digitsAt(p, 2)) return shape;
+    const int mm = twoDigits(s.data() + p);
+    p += 2;
+    if (ext_time) {
+        if (p >= s.size() || s[p] != ':') return "expected seconds (hh:mm:ss)";
+        ++p;
+    }
+    if (!digitsAt(p, 2)) return "expected seconds (hh:mm:ss)";
+    const int ss = twoDigits(s.data() + p);
+    p += 2;
+    std::int64_t frac_ns = 0;
+    if (p < s.size() && (s[p] == '.' || s[p] == ',')) {
+        ++p;
+        std::size_t e = p;
+        while (e < s.size() && isDigit(s[e])) ++e;
+        if (!parseFractionNs(s.substr(p, e - p), frac_ns)) return "expected digits after the decimal sign";
+        p = e;
+    }
+    int offset_s = default_offset_s;
+    if (p < s.size()) {
+        if (const char* what = parseUtcOffset(s.substr(p), offset_s)) return what;
+    }
+    if (year < 1970 || year > 2199) return "year outside 1970..2199";
+    if (month < 1 || month > 12) return "month outside 01..12";
+    const std::chrono::year_month_day ymd{std::chrono::year{year},
+                                          std::chrono::month{static_cast<unsigned>(month)},
+                                          std::chrono::day{static_cast<unsigned>(day)}};
+    if (day < 1 || !ymd.ok()) return "not a calendar date";
+    if (hh > 23) return "hours > 23";
+    if (mm > 59) return "minutes > 59";
+    if (ss > 60) return "seconds > 60";
+    const std::int64_t days = std::chrono::sys_days{ymd}.time_since_epoch().count();
+    out_ns = (days * 86'400 + hh * 3'600 + mm * 60 + ss - offset_s) * kNsPerS + frac_ns;
     return nullptr;
 }
 

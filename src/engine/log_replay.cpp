@@ -6,12 +6,13 @@
 namespace sg::engine {
 
 SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::string>& override_path) {
-    if (override_path) return loadSurveyConfig(*override_path);
+    // Offline: a log made by `import` may hold a config whose inputs have no transport.
+    if (override_path) return loadSurveyConfig(*override_path, config::InputUse::Offline);
     const auto text = reader.configText();
     if (!text) throw config::ConfigError("the log holds no survey config: pass --config FILE");
     std::string file = reader.meta("config_file").value_or("log");
     const auto dir = std::filesystem::path(file).parent_path().string();
-    return parseSurveyConfig(*text, file, dir);
+    return parseSurveyConfig(*text, file, dir, config::InputUse::Offline);
 }
 
 LogReplay::LogReplay(const std::string& log_path, const std::optional<std::string>& config_override)

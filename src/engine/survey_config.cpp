@@ -27,7 +27,7 @@ void parseSurveyInfo(const config::Section& root, SurveyConfig& cfg) {
 }  // namespace
 
 SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
-                               const std::string& dir) {
+                               const std::string& dir, config::InputUse use) {
     SurveyConfig cfg;
     cfg.file = name;
     cfg.text = text;
@@ -38,7 +38,7 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
                     "geomagnetic", "detection", "target", "plan", "coverage", "gaps", "infill",
                     "checks"});
     cfg.fieldmaps = decode::parseFieldMaps(root);
-    cfg.inputs = config::parseInputs(root);
+    cfg.inputs = config::parseInputs(root, use);
     cfg.log = config::parseLog(root);
     cfg.import = config::parseImport(root);
     cfg.nav = nav::parseVesselConfig(root);
@@ -48,13 +48,13 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     return cfg;
 }
 
-SurveyConfig loadSurveyConfig(const std::string& path) {
+SurveyConfig loadSurveyConfig(const std::string& path, config::InputUse use) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw config::ConfigError(path + ": cannot open the survey config file");
     std::ostringstream text;
     text << in.rdbuf();
     const auto dir = std::filesystem::absolute(path).parent_path().string();
-    return parseSurveyConfig(text.str(), path, dir);
+    return parseSurveyConfig(text.str(), path, dir, use);
 }
 
 }  // namespace sg::engine

@@ -44,10 +44,14 @@ struct SurveyConfig {
 };
 
 // Reads and validates a config file. Throws config::ConfigError naming file, key and line.
-SurveyConfig loadSurveyConfig(const std::string& path);
+// `use`: Offline for reading a log back (an [[input]] may then have no transport, as `import`
+// allows), Acquisition for `record` and the demo.
+SurveyConfig loadSurveyConfig(const std::string& path,
+                              config::InputUse use = config::InputUse::Acquisition);
 // The same from text (e.g. the copy stored in a log); `name` stands for the file in messages and
 // `dir` is where relative paths start.
 SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
-                               const std::string& dir);
+                               const std::string& dir,
+                               config::InputUse use = config::InputUse::Acquisition);
 
 }  // namespace sg::engine

@@ -77,7 +77,7 @@ Site discoverSite(const std::vector<std::string>& paths, const std::optional<std
             logs.push_back(p);
         }
     }
-    if (force) site.config_in_force = engine::loadSurveyConfig(*force);
+    if (force) site.config_in_force = engine::loadSurveyConfig(*force, config::InputUse::Offline);
 
     const std::string exclude_abs = exclude.empty() ? "" : fs::weakly_canonical(exclude, ec).string();
     for (const auto& path : logs) {

@@ -150,7 +150,7 @@ engine::SurveyConfig effectiveConfig(const engine::SurveyConfig& log_cfg, const 
     std::ostringstream text;
     text << t;
     return engine::parseSurveyConfig(text.str(), fmt::format("{} (with the site-wide keys of {})", log_cfg.file, site.file),
-                                     log_cfg.dir);
+                                     log_cfg.dir, config::InputUse::Offline);
 }
 
 }  // namespace sg::site
