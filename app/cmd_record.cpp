@@ -18,6 +18,7 @@
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
 #include "io/recorder.hpp"
+#include "io/sources.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
 #include "engine/snapshot_builder.hpp"
@@ -80,8 +81,14 @@ int runRecord(RecordOptions o) {
              : (o.log.empty() ? fromConfig(cfg.log.path) : o.log);
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
+    // A UDP port another process holds ends the run here, before a log is created.
+    io::checkUdpPortsFree(cfg.inputs);
     // The config's own path is stored absolute so replay finds the plan files it names.
-    io::LogWriter writer(log_path, {cfg.log.commit_interval_ms, true},
+    io::LogWriterOptions wopt;
+    wopt.commit_interval_ms = cfg.log.commit_interval_ms;
+    wopt.queue_limit_bytes = static_cast<std::size_t>(cfg.log.queue_limit_mb * 1024.0 * 1024.0);
+    wopt.stop_timeout_s = cfg.log.stop_timeout_s;
+    io::LogWriter writer(log_path, wopt,
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()}});
     int exit_code = 0;
@@ -140,20 +147,49 @@ int runRecord(RecordOptions o) {
             schedule();
         });
     };
-    rec.start();
+    try {
+        rec.start();
+    } catch (const std::exception& e) {
+        std::fprintf(stderr, "record: %s\n", e.what());
+        exit_code = 1;
+        rec.stop();
+        writer.stop();
+        return 1;
+    }
     schedule();
     ctx.run();
     rec.stop();
     writer.stop();
+    for (const auto& s : rec.sources())
+        if (s->dropped() > 0)
+            std::fprintf(stderr, "record: input '%s': %llu datagrams dropped by the kernel before "
+                                 "they were read (not in the log)\n",
+                         s->name().c_str(), static_cast<unsigned long long>(s->dropped()));
     return 0;
     });
     (void)rc;
     const auto st = writer.stats();
-    std::printf("record: %llu lines in %s (%llu commits)%s\n",
+    std::printf("record: %llu lines in %s (%llu commits)\n",
                 static_cast<unsigned long long>(st.raw_committed), log_path.c_str(),
-                static_cast<unsigned long long>(st.commits),
-                st.last_error.empty() ? "" : (" LAST ERROR: " + st.last_error).c_str());
-    if (!st.last_error.empty()) exit_code = 2;
+                static_cast<unsigned long long>(st.commits));
+    if (st.rawLost() > 0) {
+        std::fprintf(stderr,
+                     "record: %llu of %llu lines NOT logged (%llu dropped while the disk did not "
+                     "take rows and the backlog was full, %llu still waiting when stopping)\n",
+                     static_cast<unsigned long long>(st.rawLost()),
+                     static_cast<unsigned long long>(st.raw_posted),
+                     static_cast<unsigned long long>(st.raw_dropped),
+                     static_cast<unsigned long long>(st.raw_unwritten));
+        exit_code = 2;
+    }
+    if (st.decoded_dropped > 0)
+        std::fprintf(stderr, "record: %llu decoded rows not logged (replay recomputes them from "
+                             "the raw lines)\n",
+                     static_cast<unsigned long long>(st.decoded_dropped));
+    if (!st.last_error.empty()) {
+        std::fprintf(stderr, "record: last log error: %s\n", st.last_error.c_str());
+        exit_code = 2;
+    }
     if (site && st.raw_committed > 0) {
         // The new log's own summary, so that the next session opens the site without replaying it.
         try {

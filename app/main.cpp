@@ -3,10 +3,14 @@
 #include <exception>
 
 #include <CLI/CLI.hpp>
+#include <spdlog/sinks/stdout_color_sinks.h>
+#include <spdlog/spdlog.h>
 
 #include "app/commands.hpp"
 
 int main(int argc, char** argv) {
+    // Warnings and errors on stderr: standard output carries status lines and results only.
+    spdlog::set_default_logger(spdlog::stderr_color_mt("swathguard"));
     CLI::App app{"swathguard: live magnetometer survey coverage, checks, gaps and infill"};
     app.set_version_flag("--version", "swathguard 0.1.0");
     app.require_subcommand(1);

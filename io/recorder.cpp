@@ -34,7 +34,10 @@ void Recorder::makeSources(const std::vector<config::InputConfig>& inputs) {
             else m_decoder->onLine(l);
             if (m_decoder->pendingRaw() >= kFlushLines) flush();
         };
-        cb.event = [this](const SourceEvent& e) { m_decoder->onEvent(e); };
+        cb.event = [this](const SourceEvent& e) {
+            if (m_pipeline) m_pipeline->onSourceEvent(e);
+            else m_decoder->onEvent(e);
+        };
         m_sources.push_back(makeSource(m_io, in, std::move(cb)));
     }
 }

@@ -99,6 +99,17 @@ void Source::markFinished() {
         m_cb.event({SourceEvent::Kind::Finished, m_name, utcNowNs(), monoNowNs(), "end of input"});
 }
 
+void Source::reportDrops(std::uint64_t count, std::string detail) {
+    if (count == 0) return;
+    m_dropped += count;
+    spdlog::warn("{}: {}", m_name, detail);
+    if (m_cb.event) {
+        SourceEvent e{SourceEvent::Kind::Drops, m_name, utcNowNs(), monoNowNs(), std::move(detail)};
+        e.count = count;
+        m_cb.event(e);
+    }
+}
+
 void Source::cancelRetry() { m_retry.cancel(); }
 
 }  // namespace sg::io

@@ -50,8 +50,9 @@ class Source {
 public:
     static constexpr std::size_t kMaxLineBytes = 4096;
 
+    // Backoff at most 1 s by default: a port that comes back is read again within a second.
     Source(asio::io_context& io, std::string name, SourceCallbacks callbacks,
-           double backoff_min_s = 0.5, double backoff_max_s = 10.0);
+           double backoff_min_s = 0.25, double backoff_max_s = 1.0);
     virtual ~Source() = default;
     Source(const Source&) = delete;
     Source& operator=(const Source&) = delete;
@@ -66,6 +67,8 @@ public:
     std::uint64_t bytesReceived() const { return m_bytes; }
     std::uint64_t linesDelivered() const { return m_lines; }
     std::uint64_t outages() const { return m_outage_count; }
+    // Datagrams the kernel dropped before this source read them (UDP; 0 for the others).
+    std::uint64_t dropped() const { return m_dropped; }
 
 protected:
     // Frames `bytes`; every complete line goes to the line callback, stamped now.
@@ -79,6 +82,8 @@ protected:
     void markLost(std::string detail);
     // A finite source (file read once) has delivered everything.
     void markFinished();
+    // `count` more datagrams were dropped by the kernel (reported as a Drops event).
+    void reportDrops(std::uint64_t count, std::string detail);
     // Called by the retry timer; reopen the port (and call markConnected or markLost).
     virtual void reopen() = 0;
     void cancelRetry();
@@ -93,7 +98,7 @@ private:
     Backoff m_backoff;
     TimeNs m_chunk_mono = 0, m_chunk_utc = 0;
     bool m_connected = false, m_outage = false, m_finished = false;
-    std::uint64_t m_bytes = 0, m_lines = 0, m_outage_count = 0;
+    std::uint64_t m_bytes = 0, m_lines = 0, m_outage_count = 0, m_dropped = 0;
 };
 
 // Builds the source an [[input]] describes.

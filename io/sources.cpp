@@ -2,12 +2,16 @@
 #include "io/sources.hpp"
 
 #include <fcntl.h>
+#include <linux/sock_diag.h>
+#include <sys/socket.h>
 #include <sys/stat.h>
 #include <termios.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <cstring>
+#include <optional>
 
 #include <boost/asio/connect.hpp>
 #include <boost/asio/post.hpp>
@@ -73,27 +77,85 @@ void SerialSource::stop() {
 
 // ---------------------------------------------------------------- UDP
 
+namespace {
+
+// The socket's drop counter now (Linux SO_MEMINFO, sock_diag.h SK_MEMINFO_DROPS), if known.
+std::optional<std::uint32_t> socketDrops(int fd) {
+    std::uint32_t info[SK_MEMINFO_VARS] = {};
+    socklen_t len = sizeof info;
+    if (::getsockopt(fd, SOL_SOCKET, SO_MEMINFO, info, &len) != 0 ||
+        len < sizeof(std::uint32_t) * (SK_MEMINFO_DROPS + 1))
+        return std::nullopt;
+    return info[SK_MEMINFO_DROPS];
+}
+
+std::string portInUseMessage(const config::InputConfig& cfg) {
+    return fmt::format("input '{}': listen {}:{}: port in use by another process (is another "
+                       "recorder running?); stop it or choose another port",
+                       cfg.name, cfg.listen_host, cfg.listen_port);
+}
+
+}  // namespace
+
+void checkUdpPortsFree(const std::vector<config::InputConfig>& inputs) {
+    for (const auto& in : inputs) {
+        if (in.transport != config::Transport::Udp || in.listen_port == 0) continue;
+        asio::io_context io;
+        asio::ip::udp::socket probe(io);
+        error_code ec;
+        const auto addr = asio::ip::make_address(in.listen_host, ec);
+        if (ec) continue;  // reported by the source itself
+        const asio::ip::udp::endpoint ep(addr, in.listen_port);
+        probe.open(ep.protocol(), ec);
+        if (!ec) probe.bind(ep, ec);
+        if (ec == asio::error::address_in_use) throw UdpSource::PortInUse(portInUseMessage(in));
+    }
+}
+
 UdpSource::UdpSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb)
     : Source(io, cfg.name, std::move(cb)),
       m_host(cfg.listen_host),
       m_port_number(cfg.listen_port),
-      m_socket(io) {}
+      m_rcvbuf_bytes(static_cast<int>(std::min<std::int64_t>(cfg.receive_buffer_bytes, 1 << 30))),
+      m_socket(io),
+      m_drop_timer(io) {}
+
+void UdpSource::start() {
+    m_starting = true;
+    reopen();
+    m_starting = false;
+}
 
 void UdpSource::reopen() {
     if (m_stopped) return;
     error_code ec;
     m_socket.close(ec);
+    m_drop_counter = 0;  // a new socket counts from zero
     const auto addr = asio::ip::make_address(m_host, ec);
     if (ec) return markLost(fmt::format("listen address '{}': {}", m_host, ec.message()));
     const asio::ip::udp::endpoint ep(addr, m_port_number);
     m_socket.open(ep.protocol(), ec);
-    if (!ec) m_socket.set_option(asio::socket_base::reuse_address(true), ec);
+    // No SO_REUSEADDR: on Linux it lets two UDP sockets share a port, and the second one would
+    // silently take the stream from the first.
     // A large receive buffer rides out a busy moment without the kernel dropping datagrams.
-    if (!ec) m_socket.set_option(asio::socket_base::receive_buffer_size(4 << 20), ec);
+    if (!ec) m_socket.set_option(asio::socket_base::receive_buffer_size(m_rcvbuf_bytes), ec);
+    if (!ec) {
+        // The socket's drop counter on every datagram (socket(7), SO_RXQ_OVFL).
+        const int one = 1;
+        if (::setsockopt(m_socket.native_handle(), SOL_SOCKET, SO_RXQ_OVFL, &one, sizeof one) != 0)
+            ec = error_code(errno, boost::system::system_category());
+    }
     if (!ec) m_socket.bind(ep, ec);
     if (ec) {
         error_code ignore;
         m_socket.close(ignore);
+        if (ec == asio::error::address_in_use && m_starting) {
+            m_stopped = true;
+            throw PortInUse(fmt::format("input '{}': listen {}:{}: port in use by another process "
+                                        "(is another recorder running?); stop it or choose "
+                                        "another port",
+                                        name(), m_host, m_port_number));
+        }
         return markLost(fmt::format("listen {}:{}: {}", m_host, m_port_number, ec.message()));
     }
     markConnected();
@@ -106,24 +168,84 @@ std::uint16_t UdpSource::localPort() const {
     return ec ? 0 : ep.port();
 }
 
+void UdpSource::noteDropCounter(std::uint32_t total) {
+    // Modulo 2^32; a datagram queued before a later SO_MEMINFO reading carries an older value.
+    const std::uint32_t fresh = total - m_drop_counter;
+    if (fresh == 0 || fresh > 0x7fffffffu) return;
+    m_drop_counter = total;
+    m_unreported += fresh;
+    // At most one report a second (a burst would otherwise write an event per datagram).
+    const auto now = std::chrono::steady_clock::now();
+    if (now - m_last_report >= std::chrono::seconds(1)) return reportPendingDrops();
+    if (m_timer_armed) return;
+    m_timer_armed = true;
+    m_drop_timer.expires_at(m_last_report + std::chrono::seconds(1));
+    m_drop_timer.async_wait([this](const error_code& ec) {
+        m_timer_armed = false;
+        if (ec || m_stopped) return;
+        if (auto d = socketDrops(m_socket.native_handle())) noteDropCounter(*d);
+        reportPendingDrops();
+    });
+}
+
+void UdpSource::reportPendingDrops() {
+    if (m_unreported == 0) return;
+    const std::uint64_t n = m_unreported;
+    m_unreported = 0;
+    m_last_report = std::chrono::steady_clock::now();
+    reportDrops(n, fmt::format("{} datagrams dropped by the kernel (receive buffer full); {} in "
+                               "total",
+                               n, dropped() + n));
+}
+
 void UdpSource::read() {
-    m_socket.async_receive_from(asio::buffer(m_buf), m_from,
-                                [this](const error_code& ec, std::size_t n) {
+    m_socket.async_wait(asio::ip::udp::socket::wait_read, [this](const error_code& ec) {
         if (m_stopped || ec == asio::error::operation_aborted) return;
         if (ec) {
             error_code ignore;
             m_socket.close(ignore);
             return markLost(fmt::format("receive: {}", ec.message()));
         }
-        onBytes(std::string_view(m_buf.data(), n));
-        flushPartial();
+        const int fd = m_socket.native_handle();
+        // Drain what is queued (bounded, so the other sources get their turn).
+        for (int i = 0; i < 256; ++i) {
+            iovec iov{m_buf.data(), m_buf.size()};
+            alignas(cmsghdr) char control[CMSG_SPACE(sizeof(std::uint32_t))];
+            msghdr msg{};
+            msg.msg_iov = &iov;
+            msg.msg_iovlen = 1;
+            msg.msg_control = control;
+            msg.msg_controllen = sizeof control;
+            const ssize_t n = ::recvmsg(fd, &msg, MSG_DONTWAIT);
+            if (n < 0) {
+                if (errno == EINTR) continue;
+                if (errno == EAGAIN || errno == EWOULDBLOCK) break;
+                const std::string what = std::strerror(errno);
+                error_code ignore;
+                m_socket.close(ignore);
+                return markLost(fmt::format("receive: {}", what));
+            }
+            for (cmsghdr* c = CMSG_FIRSTHDR(&msg); c != nullptr; c = CMSG_NXTHDR(&msg, c)) {
+                if (c->cmsg_level == SOL_SOCKET && c->cmsg_type == SO_RXQ_OVFL) {
+                    std::uint32_t total = 0;
+                    std::memcpy(&total, CMSG_DATA(c), sizeof total);
+                    noteDropCounter(total);
+                }
+            }
+            onBytes(std::string_view(m_buf.data(), static_cast<std::size_t>(n)));
+            flushPartial();
+        }
         read();
     });
 }
 
 void UdpSource::stop() {
+    if (!m_stopped && m_socket.is_open())
+        if (auto d = socketDrops(m_socket.native_handle())) noteDropCounter(*d);
+    reportPendingDrops();
     m_stopped = true;
     cancelRetry();
+    m_drop_timer.cancel();
     error_code ec;
     m_socket.close(ec);
 }
@@ -135,7 +257,8 @@ TcpSource::TcpSource(asio::io_context& io, const config::InputConfig& cfg, Sourc
       m_host(cfg.connect_host),
       m_port_number(cfg.connect_port),
       m_resolver(io),
-      m_socket(io) {}
+      m_socket(io),
+      m_connect_timer(io) {}
 
 void TcpSource::reopen() {
     if (m_stopped) return;
@@ -146,14 +269,37 @@ void TcpSource::reopen() {
         [this](const error_code& rec, const asio::ip::tcp::resolver::results_type& results) {
             if (m_stopped || rec == asio::error::operation_aborted) return;
             if (rec) return markLost(fmt::format("resolve {}: {}", m_host, rec.message()));
+            // A host that does not answer at all would hold a connect for minutes (SYN
+            // retries): give up after kConnectTimeout and try again, so a source that returns
+            // is found within about a second.
+            m_connect_timed_out = false;
+            m_connect_timer.expires_after(kConnectTimeout);
+            m_connect_timer.async_wait([this](const error_code& tec) {
+                if (tec || m_stopped) return;
+                m_connect_timed_out = true;
+                error_code ignore;
+                m_socket.close(ignore);
+            });
             asio::async_connect(m_socket, results,
                                 [this](const error_code& cec, const asio::ip::tcp::endpoint&) {
-                if (m_stopped || cec == asio::error::operation_aborted) return;
+                m_connect_timer.cancel();
+                if (m_stopped) return;
+                if (cec == asio::error::operation_aborted && !m_connect_timed_out) return;
                 if (cec) {
                     error_code ignore;
                     m_socket.close(ignore);
                     return markLost(fmt::format("connect {}:{}: {}", m_host, m_port_number,
-                                                cec.message()));
+                                                m_connect_timed_out ? std::string("timed out")
+                                                                    : cec.message()));
+                }
+                // A retried connect to a local port in the ephemeral range can be given that
+                // very port and connect to itself (TCP simultaneous open): not the source.
+                error_code lec, rec2;
+                if (m_socket.local_endpoint(lec) == m_socket.remote_endpoint(rec2) && !lec && !rec2) {
+                    error_code ignore;
+                    m_socket.close(ignore);
+                    return markLost(fmt::format("connect {}:{}: connected to itself", m_host,
+                                                m_port_number));
                 }
                 markConnected();
                 read();
@@ -178,6 +324,7 @@ void TcpSource::read() {
 void TcpSource::stop() {
     m_stopped = true;
     cancelRetry();
+    m_connect_timer.cancel();
     m_resolver.cancel();
     error_code ec;
     m_socket.close(ec);

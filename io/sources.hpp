@@ -3,7 +3,10 @@
 #pragma once
 
 #include <array>
+#include <chrono>
+#include <stdexcept>
 #include <string>
+#include <vector>
 
 #include <boost/asio/ip/tcp.hpp>
 #include <boost/asio/ip/udp.hpp>
@@ -32,10 +35,17 @@ private:
 
 // UDP listener bound to host:port. Each datagram is framed on its own: a datagram without a
 // final terminator still ends its last line (a datagram is a message boundary).
+// The port is bound exclusively (no SO_REUSEADDR/SO_REUSEPORT): start() throws PortInUse when
+// another socket holds it, so a second recorder cannot silently share or take the stream.
+// Datagrams the kernel drops (receive buffer full) are counted from the socket's drop counter
+// (SO_RXQ_OVFL on each datagram, SO_MEMINFO for the tail) and reported at most once a second.
 class UdpSource final : public Source {
 public:
+    struct PortInUse : std::runtime_error {
+        using std::runtime_error::runtime_error;
+    };
     UdpSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
-    void start() override { reopen(); }
+    void start() override;
     void stop() override;
     // The bound port (useful when the config asks for port 0 in tests).
     std::uint16_t localPort() const;
@@ -43,16 +53,29 @@ public:
 private:
     void reopen() override;
     void read();
+    void noteDropCounter(std::uint32_t total);
+    void reportPendingDrops();
     std::string m_host;
     std::uint16_t m_port_number;
+    int m_rcvbuf_bytes;
     asio::ip::udp::socket m_socket;
-    asio::ip::udp::endpoint m_from;
+    asio::steady_timer m_drop_timer;
     std::array<char, 65536> m_buf{};
     bool m_stopped = false;
+    bool m_starting = false;
+    std::uint32_t m_drop_counter = 0;   // the socket's last drop counter (wraps at 2^32)
+    std::uint64_t m_unreported = 0;     // drops not yet reported
+    std::chrono::steady_clock::time_point m_last_report{};
+    bool m_timer_armed = false;
 };
 
+// Fails (UdpSource::PortInUse) when a UDP input's listen address is held by another socket;
+// run before the log is created so a second recorder leaves nothing behind.
+void checkUdpPortsFree(const std::vector<config::InputConfig>& inputs);
+
 // TCP client: connects to host:port, reconnects with exponential backoff (reconnect_min_s doubling
-// to reconnect_max_s) whenever the connection fails or the peer closes it.
+// to reconnect_max_s, at most 1 s) whenever the connection fails or the peer closes it; a connect
+// that gets no answer is abandoned after 1 s and tried again.
 class TcpSource final : public Source {
 public:
     TcpSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
@@ -64,10 +87,13 @@ private:
     void read();
     std::string m_host;
     std::uint16_t m_port_number;
+    static constexpr auto kConnectTimeout = std::chrono::seconds(1);
     asio::ip::tcp::resolver m_resolver;
     asio::ip::tcp::socket m_socket;
+    asio::steady_timer m_connect_timer;
     std::array<char, 4096> m_buf{};
     bool m_stopped = false;
+    bool m_connect_timed_out = false;
 };
 
 // File: read from the start to the end once (then Finished), or with follow = true keep polling

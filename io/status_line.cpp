@@ -17,6 +17,7 @@ std::string StatusLine::update(const std::map<std::string, engine::SourceCounter
         prev = c.lines;
         if (!out.empty()) out += " | ";
         out += fmt::format("{} {:.1f} l/s {} err", name, rate, c.rejected);
+        if (c.dropped > 0) out += fmt::format(" {} DROPPED", c.dropped);
         if (c.in_outage) out += " OUTAGE";
         if (c.last_lat_deg && c.last_lon_deg) fix = {{*c.last_lat_deg, *c.last_lon_deg}};
         if (c.last_field_nT) field = c.last_field_nT;
@@ -27,6 +28,10 @@ std::string StatusLine::update(const std::map<std::string, engine::SourceCounter
     out += field ? fmt::format(" | field {:.1f} nT", *field) : " | field -";
     out += values;
     out += fmt::format(" | log {}", log.raw_committed);
+    if (log.queued_rows > 0 && !log.last_error.empty())
+        out += fmt::format(" ({} rows waiting, {:.1f} MB)", log.queued_rows,
+                           static_cast<double>(log.queued_bytes) / (1 << 20));
+    if (log.rawLost() > 0) out += fmt::format(" LOST {}", log.rawLost());
     if (!log.last_error.empty()) out += " LOG ERROR: " + log.last_error;
     return out;
 }

@@ -1,5 +1,7 @@
 // The one-line acquisition status printed every second by `record`:
-//   gnss 10.0 l/s 0 err | mag 20.0 l/s 3 err OUTAGE | fix 52.123456 4.123456 | field 48123.4 nT | log 12345
+//   gnss 10.0 l/s 0 err | mag 20.0 l/s 3 err 120 DROPPED OUTAGE | fix 52.123456 4.123456 | field 48123.4 nT | log 12345
+// (DROPPED: datagrams the kernel dropped; after "log": rows waiting and LOST lines while the disk
+// fails)
 #pragma once
 
 #include <map>

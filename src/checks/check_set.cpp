@@ -41,6 +41,9 @@ const std::vector<CheckSpec>& catalogue() {
         {"signal_quality", "%", "magnetometer signal quality", below(60.0, 40.0, 2.0, 1.0)},
         {"forming_gap", "m", "width of the strip left unseen beside the neighbouring run",
          above(0.5, 2.0, 0.2, 2.0)},
+        // Any datagram the kernel dropped is data lost before it reached the log.
+        {"input_drops", "datagrams", "datagrams dropped by the kernel in the last 10 s (UDP inputs)",
+         above(0.5, 0.5, 0.0, 0.0)},
     };
     return specs;
 }

@@ -44,9 +44,9 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
     const std::vector<Section> tables = root.tables("input");
     for (const Section& s : tables) {
         s.allowOnly({"name", "kind", "fieldmap", "role", "transport", "device", "baud", "parity",
-                     "data_bits", "stop_bits", "listen", "connect", "reconnect_min_s",
-                     "reconnect_max_s", "path", "follow", "clock", "latency_ms", "import_align",
-                     "import_rate_hz"});
+                     "data_bits", "stop_bits", "listen", "receive_buffer_bytes", "connect",
+                     "reconnect_min_s", "reconnect_max_s", "path", "follow", "clock",
+                     "latency_ms", "import_align", "import_rate_hz"});
         InputConfig c;
         c.name = s.string("name");
         if (c.name.empty()) s.fail("name", "a non-empty name");
@@ -75,7 +75,7 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
                                             : fmt::format("no '{}' without transport = \"{}\"", k, t));
         };
         onlyFor({"device", "baud", "parity", "data_bits", "stop_bits"}, "serial");
-        onlyFor({"listen"}, "udp");
+        onlyFor({"listen", "receive_buffer_bytes"}, "udp");
         onlyFor({"connect", "reconnect_min_s", "reconnect_max_s"}, "tcp");
         onlyFor({"path", "follow"}, "file");
         if (tr == "serial") {
@@ -89,11 +89,15 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
         } else if (tr == "udp") {
             c.transport = Transport::Udp;
             hostPort(s, "listen", c.listen_host, c.listen_port);
+            c.receive_buffer_bytes =
+                static_cast<std::int64_t>(s.integer("receive_buffer_bytes", 1024, 1 << 30, 4 << 20));
         } else if (tr == "tcp") {
             c.transport = Transport::Tcp;
             hostPort(s, "connect", c.connect_host, c.connect_port);
-            c.reconnect_min_s = s.number("reconnect_min_s", 0.01, 3600.0, 0.5);
-            c.reconnect_max_s = s.number("reconnect_max_s", 0.01, 3600.0, 10.0);
+            // At most 1 s between attempts: a source that comes back is read again within a
+            // second (a longer backoff loses its first seconds of data for nothing).
+            c.reconnect_min_s = s.number("reconnect_min_s", 0.01, 1.0, 0.25);
+            c.reconnect_max_s = s.number("reconnect_max_s", 0.01, 1.0, 0.5);
             if (c.reconnect_max_s < c.reconnect_min_s)
                 s.fail("reconnect_max_s", "a value >= reconnect_min_s");
         } else if (tr == "file") {
@@ -124,9 +128,11 @@ LogConfig parseLog(const Section& root) {
     LogConfig c;
     auto s = root.optionalTable("log");
     if (!s) return c;
-    s->allowOnly({"path", "commit_interval_ms"});
+    s->allowOnly({"path", "commit_interval_ms", "queue_limit_mb", "stop_timeout_s"});
     c.path = s->string("path", "");
     c.commit_interval_ms = s->integer("commit_interval_ms", 10, 1000, 500);
+    c.queue_limit_mb = s->number("queue_limit_mb", 1.0, 4096.0, 64.0);
+    c.stop_timeout_s = s->number("stop_timeout_s", 0.0, 600.0, 5.0);
     return c;
 }
 

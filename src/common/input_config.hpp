@@ -34,10 +34,11 @@ struct InputConfig {
     SerialSettings serial;      // transport serial
     std::string listen_host;    // transport udp: address to bind ("0.0.0.0" for all)
     std::uint16_t listen_port = 0;
+    std::int64_t receive_buffer_bytes = 4 << 20;  // udp: SO_RCVBUF asked for (the kernel caps it)
     std::string connect_host;   // transport tcp
     std::uint16_t connect_port = 0;
-    double reconnect_min_s = 0.5;   // first retry delay after a loss, seconds
-    double reconnect_max_s = 10.0;  // the backoff doubles up to this, seconds
+    double reconnect_min_s = 0.25;  // first retry delay after a loss, seconds (<= 1)
+    double reconnect_max_s = 0.5;   // the backoff doubles up to this, seconds (<= 1)
     std::string path;           // transport file
     bool follow = false;        // file: keep reading as the file grows
     ClockSource clock = ClockSource::Receive;
@@ -60,6 +61,8 @@ enum class InputUse { Acquisition, Offline };
 struct LogConfig {
     std::string path;                  // SQLite file; empty = given on the command line
     std::int64_t commit_interval_ms = 500;  // 10 .. 1000: a crash loses at most this much
+    double queue_limit_mb = 64.0;  // 1 .. 4096 MiB: writer backlog bound while the disk stalls
+    double stop_timeout_s = 5.0;   // 0 .. 600 s: how long stopping waits for a stalled disk
 };
 
 struct ImportConfig {

@@ -212,6 +212,18 @@ void LineDecoder::onEvent(const SourceEvent& e) {
         m_batch.event_ends.push_back(
             {it->second.first, e.utc_ns, toSeconds(e.utc_ns - it->second.second)});
         m_open_outages.erase(it);
+    } else if (e.kind == SourceEvent::Kind::Drops) {
+        // Kept in the events table (receive time, count): a replay feeds them back in.
+        c.dropped += e.count;
+        log::EventRow row;
+        row.id = m_next_event_id();
+        row.kind = "input_drops";
+        row.source = e.source;
+        row.start_utc_ns = e.utc_ns;
+        row.end_utc_ns = e.utc_ns;
+        row.value = static_cast<double>(e.count);
+        row.detail = e.detail;
+        m_batch.events.push_back(std::move(row));
     }
 }
 

@@ -1,7 +1,9 @@
 // Log replay stepping; see log_replay.hpp.
 #include "engine/log_replay.hpp"
 
+#include <algorithm>
 #include <filesystem>
+#include <limits>
 
 namespace sg::engine {
 
@@ -55,13 +57,29 @@ void LogReplay::restart() {
     m_pipeline->decoder().setLogRows(false);
     if (m_make_seed) m_pipeline->engine().seedSite(m_make_seed());
     m_fed = 0;
+    // Datagrams the kernel dropped live are not lines: they come back from the events table, in
+    // receive-time order between the lines, as the readers reported them.
+    m_drops.clear();
+    m_drop_next = 0;
+    for (const auto& e : m_reader.events())
+        if (e.kind == "input_drops" && e.value && *e.value > 0)
+            m_drops.push_back({SourceEvent::Kind::Drops, e.source, e.start_utc_ns, 0, e.detail,
+                               static_cast<std::uint64_t>(*e.value)});
+    std::stable_sort(m_drops.begin(), m_drops.end(),
+                     [](const SourceEvent& a, const SourceEvent& b) { return a.utc_ns < b.utc_ns; });
     prime();
+}
+
+void LogReplay::feedDropsUntil(TimeNs utc_ns) {
+    while (m_drop_next < m_drops.size() && m_drops[m_drop_next].utc_ns <= utc_ns)
+        m_pipeline->onSourceEvent(m_drops[m_drop_next++]);
 }
 
 void LogReplay::prime() { m_has_next = m_reader.next(m_next); }
 
 bool LogReplay::step() {
     if (!m_has_next) return false;
+    feedDropsUntil(m_next.utc_ns);
     m_pipeline->feed(m_next);
     ++m_fed;
     prime();
@@ -74,6 +92,7 @@ std::uint64_t LogReplay::runUntil(TimeNs utc_ns) {
         step();
         ++n;
     }
+    feedDropsUntil(utc_ns);
     m_pipeline->tick(utc_ns);
     return n;
 }
@@ -81,6 +100,7 @@ std::uint64_t LogReplay::runUntil(TimeNs utc_ns) {
 std::uint64_t LogReplay::runToEnd() {
     std::uint64_t n = 0;
     while (step()) ++n;
+    feedDropsUntil(std::numeric_limits<TimeNs>::max());
     return n;
 }
 

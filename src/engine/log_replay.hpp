@@ -8,6 +8,7 @@
 #include <memory>
 #include <optional>
 #include <string>
+#include <vector>
 
 #include "engine/pipeline.hpp"
 #include "engine/survey_config.hpp"
@@ -54,6 +55,7 @@ public:
 private:
     void prime();
     void init();
+    void feedDropsUntil(TimeNs utc_ns);
 
     std::string m_path;
     log::LogReader m_reader;
@@ -67,6 +69,8 @@ private:
     TimeNs m_last_ns = 0;
     std::int64_t m_total = 0;
     std::uint64_t m_fed = 0;
+    std::vector<SourceEvent> m_drops;  // input_drops events of the log, by receive time
+    std::size_t m_drop_next = 0;
 };
 
 }  // namespace sg::engine

@@ -41,12 +41,19 @@ Pipeline::Pipeline(const SurveyConfig& config, std::function<std::int64_t()> nex
 
 void Pipeline::feed(const ReceivedLine& line) {
     ++m_lines;
-    // The clock first: silence at whole seconds before this line is judged without it.
+    // The clocks first: silence at whole seconds before this line is judged without it (the
+    // receive clock here, the line's own survey time once it is decoded and aligned).
     m_engine->advanceTo(line.utc_ns);
     m_decoder.onLine(line);
 }
 
-void Pipeline::onSourceEvent(const SourceEvent& event) { m_decoder.onEvent(event); }
+void Pipeline::onSourceEvent(const SourceEvent& event) {
+    m_decoder.onEvent(event);
+    if (event.kind == SourceEvent::Kind::Drops) {
+        m_engine->advanceTo(event.utc_ns);
+        m_engine->onInputDrops(event.source, event.count, event.utc_ns);
+    }
+}
 
 void Pipeline::tick(TimeNs utc_ns) { m_engine->advanceTo(utc_ns); }
 
@@ -78,6 +85,7 @@ void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line
     const auto aligned = align(input, line, instrument_utc_ns);
     if (!aligned) return;
     const TimeNs t = *aligned;
+    m_engine->advanceSurveyClock(t, line.utc_ns);
     auto& engine = *m_engine;
     if (const auto* g = std::get_if<decode::Gga>(&s.data)) {
         m_has_fix_sentence[input.name] = true;
@@ -115,6 +123,7 @@ void Pipeline::onFields(const config::InputConfig& input, const ReceivedLine& li
     const auto aligned = align(input, line, instrument_utc_ns);
     if (!aligned) return;
     const TimeNs t = *aligned;
+    m_engine->advanceSurveyClock(t, line.utc_ns);
     auto& engine = *m_engine;
     if (input.role == "mag") {
         engine.onMagSample(t, r.sensor, r.field_nT, r.quality, r.depth_m, r.altitude_m);

@@ -29,7 +29,8 @@ public:
 
     // Decodes and processes one line.
     void feed(const ReceivedLine& line);
-    // An input's outage began or ended (logged as an event).
+    // An input's outage began or ended (logged as an event), or it lost datagrams (logged, and
+    // fed to the input_drops check).
     void onSourceEvent(const SourceEvent& event);
     // The receive clock reached utc_ns without a line (live: called about once a second).
     void tick(TimeNs utc_ns);

@@ -127,9 +127,9 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
     ensureCrs(lon_deg, lat_deg);
     const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
     if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
-    // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
-    m_last_fix_ns = m_clock_ns;
-    m_checks.update("gnss_silence", m_clock_ns, 0.0);
+    // Silence is measured on the survey clock, which this fix has already moved on.
+    m_last_fix_ns = m_survey_ns;
+    m_checks.update("gnss_silence", m_survey_ns, 0.0);
     drainEpisodes();
 }
 
@@ -189,10 +189,10 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     ++s.samples;
     if (field_nT) {
         // Silence is per sensor: one sensor's dropout counts even while the others report.
-        m_last_mag_ns = m_clock_ns;
-        if (!m_first_mag_ns) m_first_mag_ns = m_clock_ns;
-        m_last_mag_by_slot[slot] = m_clock_ns;
-        m_checks.update("mag_silence", m_clock_ns, magSilence_s(m_clock_ns));
+        m_last_mag_ns = m_survey_ns;
+        if (!m_first_mag_ns) m_first_mag_ns = m_survey_ns;
+        m_last_mag_by_slot[slot] = m_survey_ns;
+        m_checks.update("mag_silence", m_survey_ns, magSilence_s(m_survey_ns));
     }
     s.noise_nT = noise.sigma_nT();
     processSample(s, t_ns);
@@ -255,8 +255,8 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         valid = false;
         ++m_invalid.no_altitude;
     } else {
-        m_last_altitude_ns = m_clock_ns;
-        m_checks.update("altitude_lost", m_clock_ns, 0.0);
+        m_last_altitude_ns = m_survey_ns;
+        m_checks.update("altitude_lost", m_survey_ns, 0.0);
     }
     const int needed = std::min(kNoiseWarmupDifferences, m_noise[slot].window());
     if (s.field_nT && m_noise[slot].differences() < needed) {
@@ -415,24 +415,59 @@ double SurveyEngine::magSilence_s(TimeNs at) const {
     return worst;
 }
 
-void SurveyEngine::advanceTo(TimeNs t_ns) {
-    if (t_ns <= m_clock_ns) return;
-    const auto evaluate = [&](TimeNs at) {
-        if (m_last_mag_ns) m_checks.update("mag_silence", at, magSilence_s(at));
-        if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
-        if (m_last_altitude_ns)
-            m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));
-    };
-    if (m_clock_ns == 0) {
-        m_clock_ns = t_ns;
-        evaluate(t_ns);
+void SurveyEngine::evaluateSilences(TimeNs at) {
+    if (m_last_mag_ns) m_checks.update("mag_silence", at, magSilence_s(at));
+    if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
+    if (m_last_altitude_ns)
+        m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));
+    if (!m_drop_reports.empty()) m_checks.update("input_drops", at, recentDrops(at));
+}
+
+void SurveyEngine::setSurveyClock(TimeNs s_ns) {
+    if (s_ns <= m_survey_ns) return;
+    if (m_survey_ns == 0) {
+        m_survey_ns = s_ns;
+        evaluateSilences(s_ns);
         drainEpisodes();
         return;
     }
-    TimeNs b = (m_clock_ns / kNsPerSecond + 1) * kNsPerSecond;
-    if ((t_ns - b) / kNsPerSecond > kMaxSilenceSteps) b = (t_ns / kNsPerSecond - kMaxSilenceSteps) * kNsPerSecond;
-    for (; b <= t_ns; b += kNsPerSecond) evaluate(b);
-    m_clock_ns = t_ns;
+    TimeNs b = (m_survey_ns / kNsPerSecond + 1) * kNsPerSecond;
+    if ((s_ns - b) / kNsPerSecond > kMaxSilenceSteps) b = (s_ns / kNsPerSecond - kMaxSilenceSteps) * kNsPerSecond;
+    for (; b <= s_ns; b += kNsPerSecond) evaluateSilences(b);
+    m_survey_ns = s_ns;
+    drainEpisodes();
+}
+
+void SurveyEngine::advanceTo(TimeNs recv_utc_ns) {
+    if (recv_utc_ns <= m_clock_ns) return;
+    m_clock_ns = recv_utc_ns;
+    // No line has moved S since the anchor: S follows the receive clock from there.
+    if (m_survey_ns != 0) setSurveyClock(m_anchor_survey_ns + (recv_utc_ns - m_anchor_recv_ns));
+}
+
+void SurveyEngine::advanceSurveyClock(TimeNs t_ns, TimeNs recv_utc_ns) {
+    if (t_ns <= m_survey_ns) return;
+    setSurveyClock(t_ns);
+    m_anchor_survey_ns = t_ns;
+    m_anchor_recv_ns = recv_utc_ns;
+}
+
+double SurveyEngine::recentDrops(TimeNs at) {
+    // Datagrams dropped in the 10 s of survey time up to `at`.
+    constexpr TimeNs kWindowNs = 10 * kNsPerSecond;
+    std::erase_if(m_drop_reports, [&](const auto& r) { return r.first <= at - kWindowNs; });
+    std::uint64_t n = 0;
+    for (const auto& r : m_drop_reports) n += r.second;
+    return static_cast<double>(n);
+}
+
+void SurveyEngine::onInputDrops(const std::string& input, std::uint64_t count, TimeNs recv_utc_ns) {
+    if (count == 0) return;
+    m_input_drops[input] += count;
+    // Before any line has set the survey clock, the report's receive time dates it.
+    const TimeNs at = m_survey_ns != 0 ? m_survey_ns : recv_utc_ns;
+    m_drop_reports.emplace_back(at, count);
+    m_checks.update("input_drops", at, recentDrops(at));
     drainEpisodes();
 }
 
@@ -475,7 +510,7 @@ void SurveyEngine::drainEpisodes() {
             log::EventRow row;
             row.id = m_next_event_id();
             row.kind = "alarm_escalated." + ep.check;
-            row.start_utc_ns = ep.end_ns.value_or(m_clock_ns);
+            row.start_utc_ns = ep.end_ns.value_or(m_survey_ns);
             row.value = ep.peak_value;
             row.detail = std::string(checks::levelName(ep.peak_level)) + " (alarm event " +
                          std::to_string(m_episode_event[ep.id]) + ")";

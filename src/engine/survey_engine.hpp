@@ -83,11 +83,24 @@ public:
     void onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
                      std::optional<double> quality, std::optional<double> depth_m,
                      std::optional<double> altitude_m);
-    // Receive-clock time has reached t_ns: evaluates the silence checks at every whole second up
-    // to it (so live ticks and a replay of the same lines give the same alarm times). The
-    // Pipeline calls it with each line's UTC receive time before the line is processed; silence
-    // checks work on this clock, every other check on the aligned (instrument) times.
-    void advanceTo(TimeNs t_ns);
+    // The survey clock (docs/checks.md, "The survey clock"): the silence checks run on the time
+    // of the instruments, not on the receive clock, so a simulation sent faster than real time
+    // sees the same silences as the survey did. Survey time S is the latest aligned time of any
+    // processed line; while no line moves it, S advances with the receive clock from the
+    // receive time of the line that last set it (all inputs silent: the alarm still fires).
+    // Silence checks are evaluated at every whole second of S (so live ticks and a replay of
+    // the same lines give the same alarm times).
+    //
+    // Receive-clock time has reached recv_utc_ns (each line's receive time before it is
+    // decoded; live also about every 100 ms): S moves on by the receive time elapsed.
+    void advanceTo(TimeNs recv_utc_ns);
+    // A line with aligned (instrument) time t_ns, received at recv_utc_ns, is about to be
+    // processed: S moves to t_ns if that is later (the seconds in between are judged without
+    // the line).
+    void advanceSurveyClock(TimeNs t_ns, TimeNs recv_utc_ns);
+    // An input's datagrams dropped by the kernel before they were read (`count` new ones,
+    // reported at recv_utc_ns): feeds the input_drops check at the survey clock.
+    void onInputDrops(const std::string& input, std::uint64_t count, TimeNs recv_utc_ns);
 
     // A site: joins the earlier sessions' coverage, runs and history before the first line (the
     // CRS and plan are set up from seed.epsg when the config names none). From then on raster()
@@ -134,7 +147,12 @@ public:
     std::optional<double> speed_mps() const { return m_speed; }
     std::optional<double> deviation_m() const { return m_deviation; }
     std::optional<double> formingGap_m() const { return m_forming_gap; }
+    // Receive clock (UTC receive time of the latest line or tick): replay pacing and seeking.
     TimeNs clock_ns() const { return m_clock_ns; }
+    // Survey clock (instrument time, see advanceTo); 0 before the first aligned line.
+    TimeNs surveyClock_ns() const { return m_survey_ns; }
+    // Datagrams dropped by the kernel, per input, as reported by the readers.
+    const std::map<std::string, std::uint64_t>& inputDrops() const { return m_input_drops; }
     // The altitude limit derived from the detection model (the highest altitude at which the
     // swaths of adjacent lines still meet), or nullopt when there is no plan spacing.
     std::optional<double> maxOverlapAltitude_m() const { return m_max_overlap_altitude; }
@@ -180,11 +198,19 @@ private:
     std::optional<double> m_forming_gap;
     std::optional<double> m_max_overlap_altitude;
     std::optional<coverage::Point> m_last_ref_pos;
+    void setSurveyClock(TimeNs s_ns);
+    void evaluateSilences(TimeNs at_ns);
+    double recentDrops(TimeNs at_ns);
     TimeNs m_clock_ns = 0;           // receive clock (UTC receive time of the line being fed)
+    TimeNs m_survey_ns = 0;          // survey clock S (0: no aligned line yet)
+    TimeNs m_anchor_recv_ns = 0;     // receive time of the line that last moved S
+    TimeNs m_anchor_survey_ns = 0;   // the S it set
+    std::map<std::string, std::uint64_t> m_input_drops;
+    std::vector<std::pair<TimeNs, std::uint64_t>> m_drop_reports;  // (S, count), last 10 s
     std::optional<TimeNs> m_last_fix_ns;
     std::optional<TimeNs> m_last_mag_ns;
     std::optional<TimeNs> m_first_mag_ns;
-    std::map<std::size_t, TimeNs> m_last_mag_by_slot;  // receive clock of each sensor's last field
+    std::map<std::size_t, TimeNs> m_last_mag_by_slot;  // survey clock of each sensor's last field
     std::optional<TimeNs> m_last_altitude_ns;
     int m_run_of_last_sample = coverage::kRunNone;
 

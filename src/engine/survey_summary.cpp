@@ -33,7 +33,9 @@ std::vector<OutageSummary> sessionOutages(const SurveyEngine& engine, const LogC
                            duration(e.start_utc_ns, e.end_utc_ns), e.detail, session});
     for (const auto& ep : engine.checks().episodes())
         if (isSilenceCheck(ep.check))
-            out.push_back({ep.check, "", ep.start_ns, ep.end_ns, duration(ep.start_ns, ep.end_ns),
+            // Silence episodes are on the survey clock: one still open ends at its reading.
+            out.push_back({ep.check, "", ep.start_ns, ep.end_ns,
+                           toSeconds(std::max<TimeNs>(0, ep.end_ns.value_or(engine.surveyClock_ns()) - ep.start_ns)),
                            fmt::format("peak {:.1f} s without data", ep.peak_value), session});
     std::stable_sort(out.begin(), out.end(),
                      [](const OutageSummary& a, const OutageSummary& b) { return a.start_ns < b.start_ns; });

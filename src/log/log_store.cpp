@@ -1,12 +1,20 @@
 // SQLite survey log; see log_store.hpp and docs/log-schema.md.
 #include "log/log_store.hpp"
 
+#include <fcntl.h>
 #include <sqlite3.h>
+#include <sys/file.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
+#include <cerrno>
 #include <chrono>
+#include <cstring>
 #include <filesystem>
+#include <fstream>
 #include <span>
 
+#include <fmt/chrono.h>
 #include <fmt/format.h>
 
 namespace sg::log {
@@ -91,7 +99,72 @@ CREATE TABLE IF NOT EXISTS events (
 );
 )sql";
 
+// "file:" URI of a path for sqlite3_open_v2 with SQLITE_OPEN_URI (RFC 3986 percent-encoding of
+// the characters SQLite's URI parser treats specially; https://sqlite.org/uri.html).
+std::string fileUri(const std::string& path) {
+    std::string out = "file:";
+    const std::string abs = std::filesystem::absolute(path).string();
+    for (unsigned char c : abs) {
+        if (c == '%' || c == '?' || c == '#' || c < 0x20 || c >= 0x7f)
+            out += fmt::format("%{:02X}", c);
+        else
+            out += static_cast<char>(c);
+    }
+    return out;
+}
+
+// What a file that `record` is asked to create already holds.
+enum class Existing { None, EmptyDatabase, SwathguardLog, Foreign };
+
 }  // namespace
+
+// ---------------------------------------------------------------- WriteLock
+
+WriteLock::WriteLock(const std::string& log_path) : m_path(log_path + ".lock") {
+    // flock(2) on a lock file beside the log: released by the kernel when the process ends, so a
+    // killed recorder leaves no stale lock. The file is checked to still be the one at the path
+    // after locking (another process may have removed it while we waited for the lock).
+    for (int attempt = 0; attempt < 5; ++attempt) {
+        m_fd = ::open(m_path.c_str(), O_RDWR | O_CREAT | O_CLOEXEC, 0644);
+        if (m_fd < 0)
+            throw LogError(fmt::format("{}: cannot create the lock file {}: {}", log_path, m_path,
+                                       std::strerror(errno)));
+        if (::flock(m_fd, LOCK_EX | LOCK_NB) != 0) {
+            const int err = errno;
+            std::string holder;
+            {
+                std::ifstream in(m_path);
+                std::getline(in, holder);
+            }
+            ::close(m_fd);
+            m_fd = -1;
+            if (err == EWOULDBLOCK)
+                throw LogError(fmt::format(
+                    "{}: another process is writing this log ({}; lock file {}): stop it or "
+                    "choose another log file",
+                    log_path, holder.empty() ? "pid unknown" : holder, m_path));
+            throw LogError(fmt::format("{}: cannot lock {}: {}", log_path, m_path, std::strerror(err)));
+        }
+        struct stat held {}, now {};
+        if (::fstat(m_fd, &held) == 0 && ::stat(m_path.c_str(), &now) == 0 &&
+            held.st_ino == now.st_ino && held.st_dev == now.st_dev) {
+            const std::string who = fmt::format("pid {}\n", static_cast<long>(::getpid()));
+            if (::ftruncate(m_fd, 0) == 0 && ::pwrite(m_fd, who.data(), who.size(), 0) < 0) {
+                // The pid is only a courtesy for the message of a second writer.
+            }
+            return;
+        }
+        ::close(m_fd);
+        m_fd = -1;
+    }
+    throw LogError(fmt::format("{}: the lock file {} keeps being replaced", log_path, m_path));
+}
+
+WriteLock::~WriteLock() {
+    if (m_fd < 0) return;
+    ::unlink(m_path.c_str());  // while still locked: the next writer creates a fresh one
+    ::close(m_fd);
+}
 
 const char* toString(DecodeStatus s) {
     switch (s) {
@@ -224,11 +297,23 @@ std::string_view Statement::columnBlobView(int i) const {
 
 LogStore::LogStore(const std::string& path, OpenMode mode, StoreOptions options) : m_path(path) {
     int flags = SQLITE_OPEN_NOMUTEX;
-    if (mode == OpenMode::ReadOnly) flags |= SQLITE_OPEN_READONLY;
+    if (mode == OpenMode::ReadOnly) flags |= SQLITE_OPEN_READONLY | SQLITE_OPEN_URI;
     else flags |= SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE;
     if (mode == OpenMode::ReadOnly && !std::filesystem::exists(path))
         throw LogError(fmt::format("{}: no such log file", path));
-    if (sqlite3_open_v2(path.c_str(), &m_db, flags, nullptr) != SQLITE_OK) {
+    if (mode == OpenMode::ReadWrite && !std::filesystem::exists(path))
+        throw LogError(fmt::format("{}: no such log file", path));
+    // One writer per log: a second process fails here with the first one's pid.
+    if (mode != OpenMode::ReadOnly) m_lock = std::make_unique<WriteLock>(path);
+    // Read commands never write: "mode=ro" opens read-only media, and "immutable=1" (only when no
+    // -wal file exists, i.e. no writer has the log open and no crash left a WAL to apply) also
+    // needs no -shm file and takes no locks (https://sqlite.org/uri.html).
+    const bool wal_exists = std::filesystem::exists(path + "-wal");
+    const std::string target =
+        mode == OpenMode::ReadOnly ? fileUri(path) + (wal_exists ? "?mode=ro" : "?mode=ro&immutable=1")
+                                   : path;
+    if (mode != OpenMode::ReadOnly) refuseForeign(path, mode);
+    if (sqlite3_open_v2(target.c_str(), &m_db, flags, nullptr) != SQLITE_OK) {
         std::string msg = m_db ? sqlite3_errmsg(m_db) : "out of memory";
         sqlite3_close(m_db);
         m_db = nullptr;
@@ -249,11 +334,6 @@ LogStore::LogStore(const std::string& path, OpenMode mode, StoreOptions options)
         Statement probe(m_db, "SELECT count(*) FROM sqlite_master WHERE name='meta'", m_path);
         probe.step();
         const bool existing = probe.columnInt(0) > 0;
-        if (mode == OpenMode::Create && existing) {
-            Statement rows(m_db, "SELECT count(*) FROM raw_lines", m_path);
-            if (rows.step() && rows.columnInt(0) > 0)
-                throw LogError(fmt::format("{}: already holds a log; choose a new file", path));
-        }
         createSchema();
         if (!existing) {
             setMeta("schema_version", std::to_string(kSchemaVersion));
@@ -277,6 +357,72 @@ LogStore::LogStore(const std::string& path, OpenMode mode, StoreOptions options)
 LogStore::~LogStore() {
     m_cache.clear();  // statements must be finalised before the connection closes
     if (m_db) sqlite3_close(m_db);
+}
+
+void LogStore::refuseForeign(const std::string& path, OpenMode mode) {
+    // Looked at through a separate read-only connection before anything is written: the checks
+    // must not change the file (journal_mode=WAL alone would convert a foreign database).
+    std::error_code ec;
+    const auto size = std::filesystem::file_size(path, ec);
+    if (ec || size == 0) {
+        if (mode == OpenMode::ReadWrite)
+            throw LogError(fmt::format("{}: no swathguard log to append to (empty file)", path));
+        return;  // a new or empty file
+    }
+    Existing what = Existing::Foreign;
+    std::string detail = "not an SQLite database";
+    std::string created;
+    sqlite3* db = nullptr;
+    if (sqlite3_open_v2((fileUri(path) + "?mode=ro").c_str(), &db,
+                        SQLITE_OPEN_READONLY | SQLITE_OPEN_URI | SQLITE_OPEN_NOMUTEX, nullptr) == SQLITE_OK) {
+        sqlite3_busy_timeout(db, 5000);
+        sqlite3_stmt* st = nullptr;
+        if (sqlite3_prepare_v2(db, "SELECT name FROM sqlite_master WHERE type='table' ORDER BY name", -1,
+                               &st, nullptr) == SQLITE_OK) {
+            std::string tables;
+            bool has_meta = false, has_raw = false;
+            while (sqlite3_step(st) == SQLITE_ROW) {
+                const std::string n(reinterpret_cast<const char*>(sqlite3_column_text(st, 0)));
+                has_meta |= n == "meta";
+                has_raw |= n == "raw_lines";
+                tables += (tables.empty() ? "" : ", ") + n;
+            }
+            sqlite3_finalize(st);
+            st = nullptr;
+            if (tables.empty()) {
+                what = Existing::EmptyDatabase;
+            } else if (has_meta && has_raw &&
+                       sqlite3_prepare_v2(db, "SELECT value FROM meta WHERE key='created_utc_ns'", -1,
+                                          &st, nullptr) == SQLITE_OK) {
+                what = Existing::SwathguardLog;
+                if (sqlite3_step(st) == SQLITE_ROW)
+                    created = reinterpret_cast<const char*>(sqlite3_column_text(st, 0));
+            } else {
+                detail = "its tables are " + tables;
+            }
+            sqlite3_finalize(st);
+        }
+    }
+    sqlite3_close(db);
+    if (what == Existing::Foreign)
+        throw LogError(fmt::format(
+            "{}: not a swathguard log ({}); refusing to write into it: choose a new file", path,
+            detail));
+    if (what == Existing::EmptyDatabase && mode == OpenMode::ReadWrite)
+        throw LogError(fmt::format("{}: no swathguard log to append to (no tables)", path));
+    if (what == Existing::SwathguardLog && mode == OpenMode::Create) {
+        std::string when = "an earlier session";
+        if (!created.empty()) {
+            const auto t = std::chrono::system_clock::time_point(
+                std::chrono::duration_cast<std::chrono::system_clock::duration>(
+                    std::chrono::nanoseconds(std::stoll(created))));
+            when = fmt::format("a session created {:%Y-%m-%d %H:%M:%S} UTC",
+                               std::chrono::floor<std::chrono::seconds>(t));
+        }
+        throw LogError(fmt::format(
+            "{}: already holds the log of {}; each session writes a new file: choose a new file",
+            path, when));
+    }
 }
 
 void LogStore::exec(std::string_view sql) {

@@ -5,6 +5,7 @@
 
 #include <functional>
 #include <map>
+#include <memory>
 #include <span>
 #include <optional>
 #include <type_traits>
@@ -67,6 +68,22 @@ private:
 
 enum class OpenMode { Create, ReadOnly, ReadWrite };
 
+// The one-writer rule: an exclusive flock(2) on "<log>.lock" (which holds the writer's pid), held
+// by every LogStore opened for writing. A second writer, in this or another process, gets a
+// LogError naming the pid. Removed when released; a killed process's lock ends with it.
+class WriteLock {
+public:
+    explicit WriteLock(const std::string& log_path);
+    ~WriteLock();
+    WriteLock(const WriteLock&) = delete;
+    WriteLock& operator=(const WriteLock&) = delete;
+    const std::string& path() const { return m_path; }
+
+private:
+    std::string m_path;
+    int m_fd = -1;
+};
+
 struct StoreOptions {
     // FULL: every commit reaches the disk (one fsync per commit, about once a second).
     // NORMAL is safe against a killed process but may lose the last commits on power loss.
@@ -75,8 +92,10 @@ struct StoreOptions {
 
 class LogStore {
 public:
-    // Create makes a new file (fails if it already holds a log), ReadWrite appends to an existing
-    // log, ReadOnly is for replay and reports.
+    // Create makes a new file: it refuses a file that holds anything but nothing (a foreign
+    // database, or a swathguard log of an earlier session, even an empty one). ReadWrite appends to
+    // an existing swathguard log. Both take the WriteLock. ReadOnly is for replay and reports: it
+    // never writes (read-only media work; "immutable" when no -wal file exists).
     LogStore(const std::string& path, OpenMode mode, StoreOptions options = {});
     ~LogStore();
     LogStore(const LogStore&) = delete;
@@ -116,7 +135,9 @@ public:
 
 private:
     void createSchema();
+    static void refuseForeign(const std::string& path, OpenMode mode);
     std::int64_t writeRows(Batch& batch);
+    std::unique_ptr<WriteLock> m_lock;  // writable modes only
     sqlite3* m_db = nullptr;
     std::string m_path;
     std::map<std::string, std::unique_ptr<Statement>, std::less<>> m_cache;

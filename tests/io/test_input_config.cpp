@@ -51,7 +51,7 @@ role = "heading"
 transport = "tcp"
 connect = "10.0.0.5:4001"
 reconnect_min_s = 0.2
-reconnect_max_s = 5
+reconnect_max_s = 0.8
 
 [[input]]
 name = "alt"
@@ -90,7 +90,7 @@ max_clock_disagreement_s = 0.5
     EXPECT_EQ(in[1].listen_port, 5005);
     EXPECT_EQ(in[2].connect_host, "10.0.0.5");
     EXPECT_EQ(in[2].connect_port, 4001);
-    EXPECT_DOUBLE_EQ(in[2].reconnect_max_s, 5.0);
+    EXPECT_DOUBLE_EQ(in[2].reconnect_max_s, 0.8);
     EXPECT_EQ(in[3].path, "alt.txt");
     EXPECT_TRUE(in[3].follow);
     EXPECT_EQ(in[3].clock, ClockSource::Receive);  // the default
@@ -133,7 +133,7 @@ TEST(InputConfig, BadValuesNameFileKeyAndLine) {
         {head + "transport = \"pigeon\"\n", "survey.toml:5", "input[0].transport"},
         {head + "transport = \"file\"\npath = \"x\"\nbaud = 9600\n", "survey.toml:7",
          "input[0].baud"},
-        {head + "transport = \"tcp\"\nconnect = \"h:1\"\nreconnect_min_s = 5\nreconnect_max_s = 1\n",
+        {head + "transport = \"tcp\"\nconnect = \"h:1\"\nreconnect_min_s = 0.9\nreconnect_max_s = 0.5\n",
          "survey.toml:8", "input[0].reconnect_max_s"},
         {"[[input]]\nname = \"m\"\nkind = \"fieldmap\"\nfieldmap = \"nope\"\nrole = \"mag\"\n"
          "transport = \"file\"\npath = \"x\"\n",
