@@ -214,8 +214,9 @@ TEST(SiteSessions, TwoVesselsWithDifferentArraysMerge) {
     EXPECT_NE(txt.out.find("MV Harrow Tern"), std::string::npos);
 }
 
-// Two `record --site` sessions over UDP on loopback at 40x, the simulator stopped in the turn
-// and started again: the record path itself continues a site.
+// Two `record --site` sessions over UDP on loopback at 20x (the speed scripts/demo.sh records
+// at), the simulator stopped in the turn and started again: the record path itself continues a
+// site.
 TEST(SiteSessions, TwoRecordSessionsOverUdpContinueTheSite) {
     const auto& one = singleLog();
     ASSERT_FALSE(one.is_null());
@@ -244,7 +245,7 @@ TEST(SiteSessions, TwoRecordSessionsOverUdpContinueTheSite) {
         std::this_thread::sleep_for(std::chrono::milliseconds(1000));
         const std::string window = session == 0 ? "--to " + std::to_string(kSplitS) : "--from " + std::to_string(kSplitS);
         const auto sim = run(kSim + " --scenario " + kDemo + "/scenario.toml --out udp --base-port " +
-                             std::to_string(base) + " --speed 40 " + window + " --dir " + workDir() + "/udp" +
+                             std::to_string(base) + " --speed 20 " + window + " --dir " + workDir() + "/udp" +
                              std::to_string(session));
         ASSERT_EQ(sim.rc, 0) << sim.err;
         std::this_thread::sleep_for(std::chrono::milliseconds(1500));  // last datagrams logged
