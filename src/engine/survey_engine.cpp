@@ -317,18 +317,33 @@ coverage::SwathSample SurveyEngine::swathSample(const SensorState& s) const {
 }
 
 std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
-    if (!outer.valid || !m_cov) return std::nullopt;
+    if (!outer.valid || !m_cov || !m_last_ref_pos) return std::nullopt;
     const auto sw = swathSample(outer);
     const double spacing = m_cov->plan().line_spacing_m;
-    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, spacing > 0 ? spacing : 20.0);
+    const double search_m = spacing > 0 ? spacing : 20.0;
+    const auto& lines = m_cov->lines();
+    const int line = lines.activeLine();
+    if (line < 0) return std::nullopt;
+    // A gap forms only against ground a pass has already gone by. With a planned line beside this
+    // one on that side, that is a run of that line abreast of here: until it is run, the strip
+    // between is simply not surveyed yet (no alarm). Once it was, the gap is the distance to its
+    // coverage, or the whole search distance when none is near (its swath failed here too).
+    const int neighbour = lines.neighbourLine(line, *m_last_ref_pos, sw.dir_e, sw.dir_n, starboard);
+    if (neighbour >= 0) {
+        if (!lines.passedBy(neighbour, *m_last_ref_pos)) return std::nullopt;
+        const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
+        return probe.found ? probe.gap_m : search_m;
+    }
+    // The outermost line on that side: coverage of another run, else the area edge if it is
+    // within the search distance, is the neighbour.
+    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
     if (probe.found) return probe.gap_m;
-    // Nothing covered within a spacing: the area edge, if it is that close, is the neighbour.
     const double dir_e = sw.dir_e, dir_n = sw.dir_n;
     const double side_e = starboard ? dir_n : -dir_n;
     const double side_n = starboard ? -dir_e : dir_e;
     const double hw = starboard ? sw.right_m : sw.left_m;
     const double cell = m_cov->raster().cellSize();
-    const int steps = static_cast<int>((spacing > 0 ? spacing : 20.0) / cell) + 1;
+    const int steps = static_cast<int>(search_m / cell) + 1;
     for (int k = 1; k <= steps; ++k) {
         const double d = k * cell;
         const coverage::Point q{sw.e_m + side_e * (hw + d), sw.n_m + side_n * (hw + d)};

@@ -162,6 +162,8 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
         d.survey_heading_deg = plan->surveyHeadingDeg();
     }
     d.max_overlap_altitude_m = engine.maxOverlapAltitude_m();
+    d.extrapolation_s = cfg.nav.vessel.extrapolation_s;
+    d.fix_max_age_s = cfg.nav.vessel.fix_max_age_s;
     s.outages = outages(engine, log);
     for (const auto& ep : engine.checks().episodes()) {
         const auto& c = engine.checks().check(ep.check);
@@ -291,7 +293,9 @@ nlohmann::json toJson(const SurveySummary& s) {
                       {"line_spacing_m", d.line_spacing_m},
                       {"planned_altitude_m", d.planned_altitude_m},
                       {"planned_half_width_m", d.planned_half_width_m},
-                      {"survey_heading_deg", d.survey_heading_deg}};
+                      {"survey_heading_deg", d.survey_heading_deg},
+                      {"extrapolation_s", d.extrapolation_s},
+                      {"fix_max_age_s", d.fix_max_age_s}};
     j["detection"]["max_overlap_altitude_m"] =
         d.max_overlap_altitude_m ? json(*d.max_overlap_altitude_m) : json(nullptr);
     j["invalid_samples"] = {{"no_field", s.invalid.no_field},       {"pose", s.invalid.pose},

@@ -32,7 +32,8 @@ enum PoseFlag : std::uint32_t {
     kUnknownSensor = 1u << 9,         // no [[sensor]] with this index
     // Notes (information, not problems):
     kHeadingFromCmg = 1u << 16,       // tow-point offset rotated by course made good
-    kExtrapolated = 1u << 17,         // sample time after the last fix (within fix_max_age_s)
+    kExtrapolated = 1u << 17,         // sample time after the last fix (within fix_max_age_s):
+                                      // held at it, or carried on for extrapolation_s at most
     kFixedCableOut = 1u << 18,        // cable out from the configuration
     kFixedSensorDepth = 1u << 19,     // sensor depth from the configuration
 };
