@@ -124,6 +124,7 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
     }
     ensureCrs(lon_deg, lat_deg);
     const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
+    releasePending(t_ns, true);  // samples waiting for a fix after them
     if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
     // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
     m_last_fix_ns = m_clock_ns;
@@ -177,14 +178,11 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
         if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
         if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
     }
-    SensorState& s = m_sensors[slot];
     auto& noise = m_noise[slot];
-    if (!field_nT || (s.samples > 0 && t_ns - s.t_ns > kNoiseResetGapNs)) noise.reset();
+    const auto prev = m_last_arrival_ns.find(slot);
+    if (!field_nT || (prev != m_last_arrival_ns.end() && t_ns - prev->second > kNoiseResetGapNs)) noise.reset();
     if (field_nT) noise.add(*field_nT);
-    s.t_ns = t_ns;
-    s.field_nT = field_nT;
-    s.quality = quality;
-    ++s.samples;
+    m_last_arrival_ns[slot] = t_ns;
     if (field_nT) {
         // Silence is per sensor: one sensor's dropout counts even while the others report.
         m_last_mag_ns = m_clock_ns;
@@ -192,14 +190,51 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
         m_last_mag_by_slot[slot] = m_clock_ns;
         m_checks.update("mag_silence", m_clock_ns, magSilence_s(m_clock_ns));
     }
-    s.noise_nT = noise.sigma_nT();
-    processSample(s, t_ns);
-    if (slot == 0) updateChecks(t_ns);
-    if (m_observer) m_observer(s);
+    const int needed = std::min(kNoiseWarmupDifferences, noise.window());
+    const PendingSample p{t_ns, slot, field_nT, quality, noise.sigma_nT(), noise.differences() >= needed};
+    // Positions are interpolated, never extrapolated by default: a sample later than the last fix
+    // waits for the next fix (live, one fix interval at most), so that it is placed between two
+    // fixes. One that no fix follows within fix_max_age_s is placed then: held at the last fix
+    // (or carried on for [vessel] extrapolation_s), and stale beyond.
+    releasePending(t_ns - static_cast<TimeNs>(m_cfg.nav.vessel.fix_max_age_s * 1e9), false);
+    if (m_positioner && m_positioner->pathPoints() > 0 && !m_positioner->hasFixAtOrAfter(t_ns)) {
+        m_pending.push_back(p);
+    } else {
+        releasePending(t_ns, false);
+        processPending(p);
+    }
     drainEpisodes();
 }
 
-void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
+void SurveyEngine::processPending(const PendingSample& p) {
+    SensorState& s = m_sensors[p.slot];
+    s.t_ns = p.t_ns;
+    s.field_nT = p.field_nT;
+    s.quality = p.quality;
+    ++s.samples;
+    s.noise_nT = p.noise_nT;
+    processSample(s, p.t_ns, p.warmed_up);
+    if (p.slot == 0) updateChecks(p.t_ns);
+    if (m_observer) m_observer(s);
+}
+
+void SurveyEngine::releasePending(TimeNs up_to_ns, bool by_fix) {
+    while (!m_pending.empty()) {
+        const PendingSample& p = m_pending.front();
+        const bool placed = by_fix ? m_positioner->hasFixAtOrAfter(p.t_ns) : p.t_ns <= up_to_ns;
+        if (!placed) break;
+        const PendingSample q = p;
+        m_pending.pop_front();
+        processPending(q);
+    }
+}
+
+void SurveyEngine::finishPending() {
+    releasePending(std::numeric_limits<TimeNs>::max(), false);
+    drainEpisodes();
+}
+
+void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
     const std::size_t slot = m_sensor_slot[s.index];
     const auto& det = m_cfg.detection.detection;
     s.threshold_nT = detect::detectionThreshold_nT(det.min_anomaly_nT, det.k, s.noise_nT);
@@ -231,8 +266,7 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         m_last_altitude_ns = m_clock_ns;
         m_checks.update("altitude_lost", m_clock_ns, 0.0);
     }
-    const int needed = std::min(kNoiseWarmupDifferences, m_noise[slot].window());
-    if (s.field_nT && m_noise[slot].differences() < needed) {
+    if (s.field_nT && !warmed_up) {
         valid = false;
         ++m_invalid.noise_warmup;
     }
@@ -295,7 +329,7 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
     if (m_cov) {
         m_cov->addSample(swathSample(s));
         // Per-run noise (for the report's line table): warmed-up estimates only.
-        if (s.field_nT && m_noise[slot].differences() >= needed)
+        if (s.field_nT && warmed_up)
             m_cov->lines().addNoise(m_run_of_last_sample, s.noise_nT);
     }
 }

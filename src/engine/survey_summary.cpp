@@ -107,6 +107,7 @@ std::string lineName(const SurveySummary& s, int line) {
 }
 
 SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log) {
+    engine.finishPending();  // magnetometer samples still waiting for a fix after their time
     SurveySummary s;
     s.log_path = log.path;
     s.first_ns = log.first_ns;

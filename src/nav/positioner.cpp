@@ -461,6 +461,10 @@ void Positioner::applyCross(const SensorOffset& o, const PathPos& p, double dir,
     out.heading_true_rad = wrapTwoPi(dir + p.convergence);
 }
 
+bool Positioner::hasFixAtOrAfter(std::int64_t mag_t_ns) const {
+    return !m_path.empty() && m_path.back().t_ns >= mag_t_ns - millis(m_cfg.tow.mag_latency_ms);
+}
+
 SensorPose Positioner::poseAt(std::int64_t t_ns, int sensor_index) const {
     const auto it = std::find_if(m_cfg.sensors.begin(), m_cfg.sensors.end(),
                                  [&](const SensorOffset& o) { return o.index == sensor_index; });

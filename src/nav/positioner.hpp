@@ -115,6 +115,9 @@ public:
 
     const NavConfig& config() const { return m_cfg; }
     std::size_t pathPoints() const { return m_path.size(); }
+    // Whether a fix at or after magnetometer time t_ns (its latency removed) is known: a pose at
+    // t_ns is then interpolated between fixes, not held or extrapolated past the last one.
+    bool hasFixAtOrAfter(std::int64_t mag_t_ns) const;
     std::int64_t rejectedFixes() const { return m_rejected_fixes; }
 
 private:

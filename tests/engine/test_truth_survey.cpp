@@ -506,6 +506,55 @@ TEST_P(TruthSurvey, FormingGapAlarmsOnlyBesideTheGapsAgainstGroundAlreadyRun) {
     EXPECT_GE(forming, 4);
 }
 
+// GNSS at 1 Hz, magnetometer at 10 Hz between the fixes: each sample waits for the fix after it and
+// is placed between the two (not held at the last fix, not extrapolated past it); the samples after
+// the last fix are placed at the end of the data, held at it. Straight northbound track at 2 m/s,
+// fish 20 m behind the antenna: expected northing = 2 t - 20 (this test's own arithmetic).
+TEST(TruthSurveyTiming, SamplesBetweenFixesAreInterpolatedAndNothingGoesPastTheLastFix) {
+    const std::string dir = std::string(SG_BINARY_DIR) + "/test_truth_survey";
+    (void)outcome(5.0);  // writes the plan files into dir
+    const auto cfg = sg::engine::parseSurveyConfig(configText(), dir + "/truth.toml", dir);
+    sg::engine::Pipeline pipe(cfg, [] { return 0; });
+    sg::nav::SurveyCrs crs(32631);
+    struct Seen {
+        TimeNs t;
+        double n;
+        bool valid;
+    };
+    std::vector<Seen> seen;
+    pipe.engine().setSampleObserver(
+        [&](const sg::engine::SensorState& st) { seen.push_back({st.t_ns, st.pose.northing_m - kN0, st.valid}); });
+    const TimeNs t0 = 1780000000LL * 1'000'000'000LL;
+    const double e = lineE(3);
+    for (int k = 0; k < 600; ++k) {  // 60 s: fixes at whole seconds, samples at 0.05 s past each 0.1 s
+        const double t = k / kRate;
+        if (k % 10 == 0) {
+            const auto ll = crs.inverse(kE0 + e, kN0 - 60.0 + kSpeed * t);
+            const TimeNs utc = t0 + static_cast<TimeNs>(std::llround(t * 1e9));
+            pipe.feed({"gnss", utc, utc, gga(t, ll.lon_deg, ll.lat_deg), 0});
+        }
+        const TimeNs ts = t0 + static_cast<TimeNs>(std::llround((t + 0.05) * 1e9));
+        pipe.feed({"mag", ts, ts, "TM,50000.000,3.000", 0});
+    }
+    // Samples after the last fix (59.0 s) are still waiting: nothing placed past it yet.
+    EXPECT_EQ(pipe.engine().pendingSamples(), 10u);
+    const auto summary = sg::engine::summarise(pipe.engine(), 1200);
+    EXPECT_EQ(pipe.engine().pendingSamples(), 0u);
+    EXPECT_GT(summary.raster_covered_cells, 0u);
+    ASSERT_EQ(seen.size(), 600u);
+    int checked = 0;
+    for (const auto& x : seen) {
+        const double t = sg::toSeconds(x.t - t0);
+        if (t < 11.0) continue;  // the fish needs 20 m of path behind it first
+        const double expect = t <= 59.0 ? -60.0 + kSpeed * t - kLayback : -60.0 + kSpeed * 59.0 - kLayback;
+        EXPECT_NEAR(x.n, expect, 1e-3) << "sample at " << t << " s";
+        ++checked;
+    }
+    EXPECT_EQ(checked, 490);
+    // Time order kept: the observer saw the samples in the order they were taken.
+    for (std::size_t i = 1; i < seen.size(); ++i) EXPECT_LT(seen[i - 1].t, seen[i].t);
+}
+
 INSTANTIATE_TEST_SUITE_P(Excursions, TruthSurvey, ::testing::Values(5.0, 15.0, 30.0),
                          [](const ::testing::TestParamInfo<double>& p) {
                              return std::to_string(static_cast<int>(p.param)) + "m";
