@@ -191,7 +191,7 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
         m_checks.update("mag_silence", m_clock_ns, magSilence_s(m_clock_ns));
     }
     const int needed = std::min(kNoiseWarmupDifferences, noise.window());
-    const PendingSample p{t_ns, slot, field_nT, quality, noise.sigma_nT(), noise.differences() >= needed};
+    const PendingSample p{t_ns, slot, field_nT, quality, noise.sigma_nT(), noise.differences() >= needed, m_clock_ns};
     // Positions are interpolated, never extrapolated by default: a sample later than the last fix
     // waits for the next fix (live, one fix interval at most), so that it is placed between two
     // fixes. One that no fix follows within fix_max_age_s is placed then: held at the last fix
@@ -442,8 +442,13 @@ void SurveyEngine::advanceTo(TimeNs t_ns) {
     const auto evaluate = [&](TimeNs at) {
         if (m_last_mag_ns) m_checks.update("mag_silence", at, magSilence_s(at));
         if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
-        if (m_last_altitude_ns)
-            m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));
+        if (m_last_altitude_ns) {
+            // A sample waiting for the fix after it has its altitude judged when it is placed:
+            // until then its altitude does not count as lost (else every GNSS gap would raise it).
+            TimeNs last = *m_last_altitude_ns;
+            if (!m_pending.empty()) last = std::max(last, m_pending.back().arrival_clock_ns);
+            m_checks.update("altitude_lost", at, toSeconds(at - last));
+        }
     };
     if (m_clock_ns == 0) {
         m_clock_ns = t_ns;

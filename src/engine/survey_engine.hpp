@@ -148,6 +148,7 @@ private:
         std::optional<double> field_nT, quality;
         double noise_nT = 0.0;
         bool warmed_up = false;  // the noise window was filled when it arrived
+        TimeNs arrival_clock_ns = 0;  // receive clock when it arrived
     };
     void processPending(const PendingSample& p);
     // Processes waiting samples in order: those at or before up_to_ns, or (by_fix) those that
