@@ -521,6 +521,15 @@ void modelPage(PdfDoc& d, const SurveySummary& s) {
     d.bullet("Sensor positions come from the GNSS antenna through the configured offsets and a straight-cable "
              "layback placed along the path the tow point travelled; errors in offsets, cable out or sensor depth "
              "move the painted swath.");
+    d.bullet(det.extrapolation_s > 0
+                 ? fmt::format("Past the last GNSS fix the position is carried on along the last course for at most "
+                               "{:g} s ([vessel] extrapolation_s, set for this survey; the default is 0) and counted as "
+                               "covered; beyond {:g} s from a fix a sample covers nothing.",
+                               det.extrapolation_s, det.fix_max_age_s)
+                 : fmt::format("No position is extrapolated past the last GNSS fix ([vessel] extrapolation_s = 0, the "
+                               "default): samples after it are held at the last fix, so no ground beyond it is counted "
+                               "as covered; beyond {:g} s from a fix a sample covers nothing.",
+                               det.fix_max_age_s));
     d.bullet("Altitude is the sensor's height above the seabed from the altimeter, else water depth minus sensor "
              "depth; the target lies at the configured burial depth below the seabed.");
     d.bullet("Geology, remanent magnetisation and the target's orientation can make a real anomaly smaller than the "

@@ -1,4 +1,5 @@
-// Line selection with hysteresis, cross-track deviation and run statistics; see line_runs.hpp.
+// Line choice (acquisition, settling, keeping the line), cross-track deviation and run statistics; see
+// line_runs.hpp.
 #include "coverage/line_runs.hpp"
 
 #include <algorithm>
@@ -12,6 +13,8 @@ LineTracker::LineTracker(std::vector<PlanLine> lines, const LineTrackerOptions& 
     : m_lines(std::move(lines)), m_opt(options) {
     if (m_opt.max_offset_m <= 0.0) m_opt.max_offset_m = m_opt.line_spacing_m;
     if (m_opt.hysteresis_m <= 0.0) m_opt.hysteresis_m = 0.25 * m_opt.line_spacing_m;
+    if (m_opt.settle_m <= 0.0) m_opt.settle_m = m_opt.line_spacing_m;
+    if (m_opt.turn_hold_m <= 0.0) m_opt.turn_hold_m = m_opt.line_spacing_m;
     // update() looks at every line at every epoch: the per-line constants are worked out once.
     m_cos_max_angle = std::cos(m_opt.max_angle_deg * std::numbers::pi / 180.0);
     for (const auto& l : m_lines) m_length_m.push_back(l.length_m());
@@ -50,7 +53,10 @@ void LineTracker::startRun(int line, bool reversed, std::int64_t t_ns, Point pos
     r.reversed = reversed;
     r.start_t_ns = r.end_t_ns = t_ns;
     r.start_pos = r.end_pos = pos;
+    r.along_min_m = r.along_max_m = alongTrack(line, pos);
     m_runs.push_back(r);
+    m_run_travel_m = 0.0;
+    m_off_axis_m = 0.0;
     m_open_run = r.id;
     m_active_line = line;
 }
@@ -64,50 +70,88 @@ void LineTracker::closeRun(std::int64_t t_ns) {
     m_active_line = -1;
 }
 
+int LineTracker::nearestLine(Point pos, double dir_e, double dir_n, bool& reversed, double& dist) const {
+    int want = -1;
+    dist = 1e300;
+    for (int i = 0; i < static_cast<int>(m_lines.size()); ++i) {
+        bool rev = false;
+        if (!directionMatches(i, dir_e, dir_n, rev)) continue;
+        const double a = alongTrack(i, pos);
+        if (a < -m_opt.end_margin_m || a > m_length_m[static_cast<std::size_t>(i)] + m_opt.end_margin_m) continue;
+        const double d = std::abs(crossTrack(i, pos, dir_e, dir_n));
+        if (d > m_opt.max_offset_m) continue;
+        if (d < dist) {
+            dist = d;
+            want = i;
+            reversed = rev;
+        }
+    }
+    return want;
+}
+
+bool LineTracker::keepsRun(Point pos, double dir_e, double dir_n, double step_m, std::int64_t gap_ns) {
+    const LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
+    // A turn: the direction has left the line's axis (or reversed) for turn_hold_m of travel. A
+    // shorter swing (a steering correction back from an excursion) keeps the line.
+    bool rev = false;
+    const bool along_axis = directionMatches(r.line, dir_e, dir_n, rev) && rev == r.reversed;
+    m_off_axis_m = along_axis ? 0.0 : m_off_axis_m + step_m;
+    if (m_off_axis_m > m_opt.turn_hold_m) return false;
+    // Leaving the line's along-track extent (with the run's extra room) ends it.
+    const double a = alongTrack(r.line, pos);
+    const double room = m_opt.end_margin_m + m_opt.hysteresis_m;
+    if (a < -room || a > m_length_m[static_cast<std::size_t>(r.line)] + room) return false;
+    // After a break in the positions (a GNSS outage) the run goes on only where it could start.
+    if (gap_ns > static_cast<std::int64_t>(m_opt.continuity_gap_s * 1e9) &&
+        std::abs(crossTrack(r.line, pos, dir_e, dir_n)) > m_opt.max_offset_m)
+        return false;
+    return true;
+}
+
 int LineTracker::update(std::int64_t t_ns, Point pos, double dir_e, double dir_n,
                         std::optional<double> altitude_m) {
-    int want = -1;
-    bool want_rev = false;
+    const double step = m_have_last ? std::hypot(pos.e_m - m_last_pos.e_m, pos.n_m - m_last_pos.n_m) : 0.0;
+    const std::int64_t gap_ns = m_have_last ? t_ns - m_last_t_ns : 0;
+    m_have_last = true;
+    m_last_pos = pos;
+    m_last_t_ns = t_ns;
+
     if (m_forced >= 0) {
-        want = m_forced;
-        directionMatches(want, dir_e, dir_n, want_rev);
+        bool rev = false;
+        directionMatches(m_forced, dir_e, dir_n, rev);
+        if (m_open_run != kRunNone) {
+            const LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
+            if (m_forced != r.line || rev != r.reversed) closeRun(t_ns);
+        }
+        if (m_open_run == kRunNone) startRun(m_forced, rev, t_ns, pos);
     } else {
-        // Candidates: direction within max_angle of the axis, inside the line's along-track span
-        // and within max_offset (the current line gets the hysteresis as extra room).
-        double best = 1e300;
-        double cur_dist = 1e300;
-        bool cur_rev = false;
-        for (int i = 0; i < static_cast<int>(m_lines.size()); ++i) {
+        if (m_open_run != kRunNone && (m_reacquire || !keepsRun(pos, dir_e, dir_n, step, gap_ns)))
+            closeRun(t_ns);
+        m_reacquire = false;
+        if (m_open_run == kRunNone) {
             bool rev = false;
-            if (!directionMatches(i, dir_e, dir_n, rev)) continue;
-            const double room = (i == m_active_line) ? m_opt.hysteresis_m : 0.0;
-            const double a = alongTrack(i, pos);
-            if (a < -m_opt.end_margin_m - room || a > m_length_m[static_cast<std::size_t>(i)] + m_opt.end_margin_m + room) {
-                continue;
-            }
-            const double d = std::abs(crossTrack(i, pos, dir_e, dir_n));
-            if (d > m_opt.max_offset_m + room) continue;
-            if (i == m_active_line) {
-                cur_dist = d;
-                cur_rev = rev;
-            }
-            if (d < best) {
-                best = d;
-                want = i;
-                want_rev = rev;
+            double d = 0.0;
+            const int want = nearestLine(pos, dir_e, dir_n, rev, d);
+            if (want >= 0) startRun(want, rev, t_ns, pos);
+        } else {
+            m_run_travel_m += step;
+            LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
+            if (m_run_travel_m <= m_opt.settle_m) {
+                // Settling (run-in): a line nearer by more than the hysteresis takes the run over.
+                bool rev = false;
+                double d = 0.0;
+                const int other = nearestLine(pos, dir_e, dir_n, rev, d);
+                if (other >= 0 && other != r.line &&
+                    d + m_opt.hysteresis_m < std::abs(crossTrack(r.line, pos, dir_e, dir_n))) {
+                    r.line = other;
+                    r.reversed = rev;
+                    r.worst_deviation_m = 0.0;
+                    r.along_min_m = r.along_max_m = alongTrack(other, pos);
+                    m_active_line = other;
+                }
             }
         }
-        // Hysteresis: keep the current line unless another is nearer by more than hysteresis_m.
-        if (cur_dist < 1e300 && want != m_active_line && best + m_opt.hysteresis_m >= cur_dist) {
-            want = m_active_line;
-            want_rev = cur_rev;
-        }
     }
-    if (m_open_run != kRunNone) {
-        const LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
-        if (want != r.line || want_rev != r.reversed) closeRun(t_ns);
-    }
-    if (want >= 0 && m_open_run == kRunNone) startRun(want, want_rev, t_ns, pos);
     if (m_open_run == kRunNone) return kRunNone;
 
     LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
@@ -123,6 +167,9 @@ int LineTracker::update(std::int64_t t_ns, Point pos, double dir_e, double dir_n
     }
     const double dev = crossTrack(r.line, pos, dir_e, dir_n);
     if (std::abs(dev) > std::abs(r.worst_deviation_m)) r.worst_deviation_m = dev;
+    const double a = alongTrack(r.line, pos);
+    r.along_min_m = std::min(r.along_min_m, a);
+    r.along_max_m = std::max(r.along_max_m, a);
     return r.id;
 }
 
@@ -136,12 +183,53 @@ void LineTracker::adoptEarlierRuns(std::vector<LineRun> runs, int session) {
     m_session = session;
 }
 
+int LineTracker::neighbourLine(int index, Point pos, double dir_e, double dir_n, bool starboard) const {
+    if (index < 0 || index >= static_cast<int>(m_lines.size())) return -1;
+    const PlanLine& l = m_lines[static_cast<std::size_t>(index)];
+    const double len = m_length_m[static_cast<std::size_t>(index)];
+    const double ue = (l.end.e_m - l.start.e_m) / len, un = (l.end.n_m - l.start.n_m) / len;
+    int best = -1;
+    double best_off = 1.5 * m_opt.line_spacing_m;
+    for (int j = 0; j < static_cast<int>(m_lines.size()); ++j) {
+        if (j == index) continue;
+        const PlanLine& o = m_lines[static_cast<std::size_t>(j)];
+        const double olen = m_length_m[static_cast<std::size_t>(j)];
+        const double oe = (o.end.e_m - o.start.e_m) / olen, on = (o.end.n_m - o.start.n_m) / olen;
+        if (std::abs(ue * oe + un * on) < m_cos_max_angle) continue;  // not parallel
+        const double a = alongTrack(j, pos);
+        if (a < -m_opt.end_margin_m || a > olen + m_opt.end_margin_m) continue;
+        // Offset of line j from line `index` where pos projects on j, starboard of travel positive.
+        const Point q{o.start.e_m + a * oe, o.start.n_m + a * on};
+        double off = crossTrack(index, q, dir_e, dir_n);
+        if (!starboard) off = -off;
+        if (off < 0.25 * m_opt.line_spacing_m) continue;  // the other side, or the same line
+        if (off < best_off) {
+            best_off = off;
+            best = j;
+        }
+    }
+    return best;
+}
+
+bool LineTracker::passedBy(int index, Point pos) const {
+    const double a = alongTrack(index, pos);
+    for (const auto& r : m_runs) {
+        if (r.line != index || r.id == m_open_run) continue;
+        if (a >= r.along_min_m && a <= r.along_max_m) return true;
+    }
+    return false;
+}
+
 void LineTracker::choose(int index) {
     if (index < 0 || index >= static_cast<int>(m_lines.size())) return;
     m_forced = index;
 }
 
-void LineTracker::automatic() { m_forced = -1; }
+void LineTracker::automatic() {
+    // The operator's choice ends: the next position picks its line afresh.
+    if (m_forced >= 0) m_reacquire = true;
+    m_forced = -1;
+}
 
 void LineTracker::addAlarm(int run) {
     if (run >= 0 && run < static_cast<int>(m_runs.size())) ++m_runs[static_cast<std::size_t>(run)].alarms;

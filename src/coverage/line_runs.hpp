@@ -1,6 +1,9 @@
-// Line runs: which planned line the vessel is on (picked automatically with hysteresis, or chosen
-// by the operator), the signed cross-track deviation from it, and per-run statistics (start, end,
-// corridor coverage, altitude, worst deviation, alarm count).
+// Line runs: which planned line the vessel is on (picked automatically, or chosen by the operator),
+// the signed cross-track deviation from it, and per-run statistics (start, end, corridor coverage,
+// altitude, worst deviation, alarm count). Once a run is open it keeps its line: an excursion of
+// any size off the line is a deviation on that line, and a new run starts only at a real line
+// change (turn or reversal, leaving the line's along-track extent, operator choice, or a break in
+// continuity that resumes away from the line).
 #pragma once
 
 #include <cstdint>
@@ -14,11 +17,20 @@ namespace sg::coverage {
 
 struct LineTrackerOptions {
     double line_spacing_m = 10.0;     // planned spacing; the corridor is line +- spacing/2 (m, > 0)
-    double max_offset_m = 0.0;        // farthest cross-track offset still "on" a line; 0: spacing
-    double hysteresis_m = 0.0;        // a nearer line must be this much nearer to take over;
-                                      // 0: spacing / 4
+    double max_offset_m = 0.0;        // farthest cross-track offset at which a run starts on a
+                                      // line (acquisition); 0: spacing
+    double hysteresis_m = 0.0;        // while settling, a nearer line must be this much nearer to
+                                      // take over; also the extra along-track room of an open run
+                                      // beyond the line ends; 0: spacing / 4
     double max_angle_deg = 30.0;      // travel within this angle of the line axis (either way)
     double end_margin_m = 0.0;        // along-track tolerance beyond the line ends (m)
+    double settle_m = 0.0;            // first metres of an automatic run during which it may move
+                                      // to a nearer line (a run-in that starts closer to the
+                                      // neighbour); 0: spacing
+    double turn_hold_m = 0.0;         // travel outside max_angle_deg (or reversed) before the run
+                                      // ends as a turn; 0: spacing
+    double continuity_gap_s = 10.0;   // after a break this long in the positions, the run goes on
+                                      // only if the vessel is back within max_offset_m of its line
 };
 
 struct LineRun {
@@ -40,6 +52,7 @@ struct LineRun {
     std::int64_t noise_samples = 0;
     double worst_noise_nT = 0.0;
     double corridor_covered_pct = 0.0;  // of the line +- spacing/2 corridor, at the last refresh
+    double along_min_m = 0.0, along_max_m = 0.0;  // along-track extent passed on its line (m)
     double meanAltitude_m() const {
         return altitude_samples > 0 ? altitude_sum_m / static_cast<double>(altitude_samples) : 0.0;
     }
@@ -97,9 +110,23 @@ public:
     // Along-track position of `pos` on line `index` from its start (m).
     double alongTrack(int index, Point pos) const;
 
+    // The planned line next to line `index` on one side (starboard of travel along dir when
+    // `starboard`, else port), roughly parallel to it (within max_angle_deg), whose along-track
+    // span contains the projection of `pos`, and no farther than 1.5 spacings from line
+    // `index`; -1 when there is none (line `index` is the outermost on that side here).
+    int neighbourLine(int index, Point pos, double dir_e, double dir_n, bool starboard) const;
+    // Whether a run other than the open one, on line `index`, has already passed the along-track
+    // position of `pos` (its ground has been gone by, whatever its coverage).
+    bool passedBy(int index, Point pos) const;
+
 private:
     bool directionMatches(int index, double dir_e, double dir_n, bool& reversed) const;
     void startRun(int line, bool reversed, std::int64_t t_ns, Point pos);
+    // Nearest line whose direction matches, inside its along-track span and within max_offset_m
+    // of pos; -1 when none.
+    int nearestLine(Point pos, double dir_e, double dir_n, bool& reversed, double& dist) const;
+    // Whether the open run goes on at this position (see the file comment).
+    bool keepsRun(Point pos, double dir_e, double dir_n, double step_m, std::int64_t gap_ns);
 
     std::vector<PlanLine> m_lines;
     LineTrackerOptions m_opt;
@@ -110,6 +137,12 @@ private:
     int m_open_run = kRunNone;
     int m_forced = -1;
     int m_session = 0;
+    bool m_reacquire = false;  // back to automatic: the open run ends at the next position
+    bool m_have_last = false;
+    Point m_last_pos;
+    std::int64_t m_last_t_ns = 0;
+    double m_run_travel_m = 0.0;  // travelled since the open run started
+    double m_off_axis_m = 0.0;    // travelled since the direction last matched the open run's
 };
 
 // Fraction (0..100 %) of the cells of the corridor line +- half_width_m whose margin >= 1.

@@ -126,6 +126,7 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
     }
     ensureCrs(lon_deg, lat_deg);
     const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
+    releasePending(t_ns, true);  // samples waiting for a fix after them
     if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
     // Silence is measured on the survey clock, which this fix has already moved on.
     m_last_fix_ns = m_survey_ns;
@@ -179,14 +180,11 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
         if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
         if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
     }
-    SensorState& s = m_sensors[slot];
     auto& noise = m_noise[slot];
-    if (!field_nT || (s.samples > 0 && t_ns - s.t_ns > kNoiseResetGapNs)) noise.reset();
+    const auto prev = m_last_arrival_ns.find(slot);
+    if (!field_nT || (prev != m_last_arrival_ns.end() && t_ns - prev->second > kNoiseResetGapNs)) noise.reset();
     if (field_nT) noise.add(*field_nT);
-    s.t_ns = t_ns;
-    s.field_nT = field_nT;
-    s.quality = quality;
-    ++s.samples;
+    m_last_arrival_ns[slot] = t_ns;
     if (field_nT) {
         // Silence is per sensor: one sensor's dropout counts even while the others report.
         m_last_mag_ns = m_survey_ns;
@@ -194,10 +192,19 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
         m_last_mag_by_slot[slot] = m_survey_ns;
         m_checks.update("mag_silence", m_survey_ns, magSilence_s(m_survey_ns));
     }
-    s.noise_nT = noise.sigma_nT();
-    processSample(s, t_ns);
-    if (slot == 0) updateChecks(t_ns);
-    if (m_observer) m_observer(s);
+    const int needed = std::min(kNoiseWarmupDifferences, noise.window());
+    const PendingSample p{t_ns, slot, field_nT, quality, noise.sigma_nT(), noise.differences() >= needed, m_survey_ns};
+    // Positions are interpolated, never extrapolated by default: a sample later than the last fix
+    // waits for the next fix (live, one fix interval at most), so that it is placed between two
+    // fixes. One that no fix follows within fix_max_age_s is placed then: held at the last fix
+    // (or carried on for [vessel] extrapolation_s), and stale beyond.
+    releasePending(t_ns - static_cast<TimeNs>(m_cfg.nav.vessel.fix_max_age_s * 1e9), false);
+    if (m_positioner && m_positioner->pathPoints() > 0 && !m_positioner->hasFixAtOrAfter(t_ns)) {
+        m_pending.push_back(p);
+    } else {
+        releasePending(t_ns, false);
+        processPending(p);
+    }
     drainEpisodes();
 }
 
@@ -224,7 +231,35 @@ void SurveyEngine::seedSite(SiteSeed seed) {
     m_cov->lines().adoptEarlierRuns(std::move(seed.runs), static_cast<int>(m_prior_sessions.size()));
 }
 
-void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
+void SurveyEngine::processPending(const PendingSample& p) {
+    SensorState& s = m_sensors[p.slot];
+    s.t_ns = p.t_ns;
+    s.field_nT = p.field_nT;
+    s.quality = p.quality;
+    ++s.samples;
+    s.noise_nT = p.noise_nT;
+    processSample(s, p.t_ns, p.warmed_up);
+    if (p.slot == 0) updateChecks(p.t_ns);
+    if (m_observer) m_observer(s);
+}
+
+void SurveyEngine::releasePending(TimeNs up_to_ns, bool by_fix) {
+    while (!m_pending.empty()) {
+        const PendingSample& p = m_pending.front();
+        const bool placed = by_fix ? m_positioner->hasFixAtOrAfter(p.t_ns) : p.t_ns <= up_to_ns;
+        if (!placed) break;
+        const PendingSample q = p;
+        m_pending.pop_front();
+        processPending(q);
+    }
+}
+
+void SurveyEngine::finishPending() {
+    releasePending(std::numeric_limits<TimeNs>::max(), false);
+    drainEpisodes();
+}
+
+void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
     const std::size_t slot = m_sensor_slot[s.index];
     if (m_first_sample_ns == 0) m_first_sample_ns = t_ns;
     m_last_sample_ns = std::max(m_last_sample_ns, t_ns);
@@ -258,8 +293,7 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         m_last_altitude_ns = m_survey_ns;
         m_checks.update("altitude_lost", m_survey_ns, 0.0);
     }
-    const int needed = std::min(kNoiseWarmupDifferences, m_noise[slot].window());
-    if (s.field_nT && m_noise[slot].differences() < needed) {
+    if (s.field_nT && !warmed_up) {
         valid = false;
         ++m_invalid.noise_warmup;
     }
@@ -322,7 +356,7 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
     if (m_cov) {
         m_cov->addSample(swathSample(s));
         // Per-run noise (for the report's line table): warmed-up estimates only.
-        if (s.field_nT && m_noise[slot].differences() >= needed)
+        if (s.field_nT && warmed_up)
             m_cov->lines().addNoise(m_run_of_last_sample, s.noise_nT);
     }
 }
@@ -344,18 +378,33 @@ coverage::SwathSample SurveyEngine::swathSample(const SensorState& s) const {
 }
 
 std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
-    if (!outer.valid || !m_cov) return std::nullopt;
+    if (!outer.valid || !m_cov || !m_last_ref_pos) return std::nullopt;
     const auto sw = swathSample(outer);
     const double spacing = m_cov->plan().line_spacing_m;
-    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, spacing > 0 ? spacing : 20.0);
+    const double search_m = spacing > 0 ? spacing : 20.0;
+    const auto& lines = m_cov->lines();
+    const int line = lines.activeLine();
+    if (line < 0) return std::nullopt;
+    // A gap forms only against ground a pass has already gone by. With a planned line beside this
+    // one on that side, that is a run of that line abreast of here: until it is run, the strip
+    // between is simply not surveyed yet (no alarm). Once it was, the gap is the distance to its
+    // coverage, or the whole search distance when none is near (its swath failed here too).
+    const int neighbour = lines.neighbourLine(line, *m_last_ref_pos, sw.dir_e, sw.dir_n, starboard);
+    if (neighbour >= 0) {
+        if (!lines.passedBy(neighbour, *m_last_ref_pos)) return std::nullopt;
+        const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
+        return probe.found ? probe.gap_m : search_m;
+    }
+    // The outermost line on that side: coverage of another run, else the area edge if it is
+    // within the search distance, is the neighbour.
+    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
     if (probe.found) return probe.gap_m;
-    // Nothing covered within a spacing: the area edge, if it is that close, is the neighbour.
     const double dir_e = sw.dir_e, dir_n = sw.dir_n;
     const double side_e = starboard ? dir_n : -dir_n;
     const double side_n = starboard ? -dir_e : dir_e;
     const double hw = starboard ? sw.right_m : sw.left_m;
     const double cell = m_cov->raster().cellSize();
-    const int steps = static_cast<int>((spacing > 0 ? spacing : 20.0) / cell) + 1;
+    const int steps = static_cast<int>(search_m / cell) + 1;
     for (int k = 1; k <= steps; ++k) {
         const double d = k * cell;
         const coverage::Point q{sw.e_m + side_e * (hw + d), sw.n_m + side_n * (hw + d)};
@@ -418,8 +467,13 @@ double SurveyEngine::magSilence_s(TimeNs at) const {
 void SurveyEngine::evaluateSilences(TimeNs at) {
     if (m_last_mag_ns) m_checks.update("mag_silence", at, magSilence_s(at));
     if (m_last_fix_ns) m_checks.update("gnss_silence", at, toSeconds(at - *m_last_fix_ns));
-    if (m_last_altitude_ns)
-        m_checks.update("altitude_lost", at, toSeconds(at - *m_last_altitude_ns));
+    if (m_last_altitude_ns) {
+        // A sample waiting for the fix after it has its altitude judged when it is placed:
+        // until then its altitude does not count as lost (else every GNSS gap would raise it).
+        TimeNs last = *m_last_altitude_ns;
+        if (!m_pending.empty()) last = std::max(last, m_pending.back().arrival_clock_ns);
+        m_checks.update("altitude_lost", at, toSeconds(at - last));
+    }
     if (!m_drop_reports.empty()) m_checks.update("input_drops", at, recentDrops(at));
 }
 

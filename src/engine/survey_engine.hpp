@@ -8,6 +8,7 @@
 #pragma once
 
 #include <cstdint>
+#include <deque>
 #include <functional>
 #include <map>
 #include <memory>
@@ -138,6 +139,10 @@ public:
     coverage::SurveyCoverage* coverage() { return m_cov.get(); }
     // Paints pending swath stretches (call before reading the raster for gaps or a snapshot).
     void flushCoverage();
+    // End of the data: processes the magnetometer samples still waiting for a fix after their
+    // time (they are placed held at the last fix, or stale). summarise() calls it.
+    void finishPending();
+    std::size_t pendingSamples() const { return m_pending.size(); }
     const coverage::LineTracker* lines() const { return m_cov ? &m_cov->lines() : nullptr; }
     const checks::CheckSet& checks() const { return m_checks; }
     const std::vector<SensorState>& sensors() const { return m_sensors; }
@@ -170,7 +175,20 @@ private:
     void ensureCrs(double lon_deg, double lat_deg);
     void loadPlan();
     void updateChecks(TimeNs t_ns);
-    void processSample(SensorState& s, TimeNs t_ns);
+    // A magnetometer sample as it arrived, waiting for a fix at or after its time.
+    struct PendingSample {
+        TimeNs t_ns = 0;
+        std::size_t slot = 0;
+        std::optional<double> field_nT, quality;
+        double noise_nT = 0.0;
+        bool warmed_up = false;  // the noise window was filled when it arrived
+        TimeNs arrival_clock_ns = 0;  // survey clock when it arrived
+    };
+    void processPending(const PendingSample& p);
+    // Processes waiting samples in order: those at or before up_to_ns, or (by_fix) those that
+    // now have a fix at or after their time.
+    void releasePending(TimeNs up_to_ns, bool by_fix);
+    void processSample(SensorState& s, TimeNs t_ns, bool warmed_up);
     std::optional<double> probeFormingGap(const SensorState& outer, bool starboard) const;
     coverage::SwathSample swathSample(const SensorState& s) const;
     std::vector<double> sensorCross() const;
@@ -213,6 +231,8 @@ private:
     std::map<std::size_t, TimeNs> m_last_mag_by_slot;  // survey clock of each sensor's last field
     std::optional<TimeNs> m_last_altitude_ns;
     int m_run_of_last_sample = coverage::kRunNone;
+    std::deque<PendingSample> m_pending;            // in arrival order
+    std::map<std::size_t, TimeNs> m_last_arrival_ns;  // aligned time of each slot's last sample
 
     bool m_site_seeded = false;
     std::vector<AlarmSummary> m_prior_alarms;

@@ -123,6 +123,7 @@ std::string lineName(const SurveySummary& s, int line) {
 }
 
 SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log) {
+    engine.finishPending();  // magnetometer samples still waiting for a fix after their time
     SurveySummary s;
     s.log_path = log.path;
     s.first_ns = log.first_ns;
@@ -178,6 +179,8 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
         d.survey_heading_deg = plan->surveyHeadingDeg();
     }
     d.max_overlap_altitude_m = engine.maxOverlapAltitude_m();
+    d.extrapolation_s = cfg.nav.vessel.extrapolation_s;
+    d.fix_max_age_s = cfg.nav.vessel.fix_max_age_s;
     const int session = static_cast<int>(engine.priorSessions().size());
     s.outages = engine.priorOutages();
     for (auto& o : sessionOutages(engine, log, session)) s.outages.push_back(std::move(o));
@@ -360,7 +363,9 @@ nlohmann::json toJson(const SurveySummary& s) {
                       {"line_spacing_m", d.line_spacing_m},
                       {"planned_altitude_m", d.planned_altitude_m},
                       {"planned_half_width_m", d.planned_half_width_m},
-                      {"survey_heading_deg", d.survey_heading_deg}};
+                      {"survey_heading_deg", d.survey_heading_deg},
+                      {"extrapolation_s", d.extrapolation_s},
+                      {"fix_max_age_s", d.fix_max_age_s}};
     j["detection"]["max_overlap_altitude_m"] =
         d.max_overlap_altitude_m ? json(*d.max_overlap_altitude_m) : json(nullptr);
     j["invalid_samples"] = {{"no_field", s.invalid.no_field},       {"pose", s.invalid.pose},

@@ -35,6 +35,11 @@ struct DetectionSummary {
     double planned_half_width_m = 0.0;             // coverage class, at the planned altitude
     std::optional<double> max_overlap_altitude_m;  // highest altitude keeping swaths overlapping
     double survey_heading_deg = 0.0;
+    // Positions past the last fix: the tow point is carried on for at most this long ([vessel]
+    // extrapolation_s; 0, the default: held at the last fix, no coverage beyond it), and a sample
+    // further than fix_max_age_s from a fix covers nothing.
+    double extrapolation_s = 0.0;
+    double fix_max_age_s = 0.0;
 };
 
 // Why a gap may be there: the line runs that passed within one line spacing of it, the time each

@@ -28,7 +28,7 @@ NavConfig parseVesselConfig(const config::Section& root) {
     NavConfig cfg;
     if (auto v = root.optionalTable("vessel")) {
         v->allowOnly({"name", "antenna_m", "tow_point_m", "heading_source", "heading_max_age_s",
-                      "cmg_min_speed_mps", "cmg_window_s", "fix_max_age_s", "draft_m",
+                      "cmg_min_speed_mps", "cmg_window_s", "fix_max_age_s", "extrapolation_s", "draft_m",
                       "transducer_depth_m", "sounder_max_age_s", "gnss_latency_ms",
                       "heading_latency_ms", "sounder_latency_ms"});
         VesselConfig& c = cfg.vessel;
@@ -43,6 +43,9 @@ NavConfig parseVesselConfig(const config::Section& root) {
         c.cmg_min_speed_mps = v->number("cmg_min_speed_mps", 0.0, 50.0, c.cmg_min_speed_mps);
         c.cmg_window_s = v->number("cmg_window_s", 0.1, 120.0, c.cmg_window_s);
         c.fix_max_age_s = v->number("fix_max_age_s", 0.01, 60.0, c.fix_max_age_s);
+        c.extrapolation_s = v->number("extrapolation_s", 0.0, 60.0, c.extrapolation_s);
+        if (c.extrapolation_s > c.fix_max_age_s)
+            v->fail("extrapolation_s", "at most fix_max_age_s (past it a position is stale anyway)");
         c.draft_m = v->number("draft_m", 0.0, 30.0, c.draft_m);
         c.transducer_depth_m = v->number("transducer_depth_m", 0.0, 30.0, c.transducer_depth_m);
         c.sounder_max_age_s = v->number("sounder_max_age_s", 0.01, 600.0, c.sounder_max_age_s);

@@ -31,6 +31,9 @@ struct VesselConfig {
     double cmg_min_speed_mps = 0.5;   // slower than this, course made good is not trusted
     double cmg_window_s = 5.0;        // baseline of the course-made-good estimate
     double fix_max_age_s = 2.0;       // a position further than this from a fix is stale
+    double extrapolation_s = 0.0;     // how long past the last fix the tow point is carried on
+                                      // along the last direction (s, 0..fix_max_age_s); 0: it is
+                                      // held at the last fix, so nothing is placed beyond it
     double draft_m = 0.0;             // keel below the waterline (for DPT with a keel offset)
     double transducer_depth_m = 0.0;  // echo-sounder transducer below the waterline
     double sounder_max_age_s = 5.0;

@@ -306,7 +306,9 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
         pose.layback_m = pose.cable_out_m = pose.sensor_depth_m = pose.altitude_m = kNaN;
         return pose;
     }
-    // Tow point at time t: interpolated on the path, or extrapolated (flagged) past the last fix.
+    // Tow point at time t: interpolated on the path; past the last fix (flagged) it is held there,
+    // or carried on along the last segment for at most [vessel] extrapolation_s (default 0: no
+    // position, hence no coverage, beyond what the last fix supports).
     double s_tow = 0.0;
     double extra_head = 0.0;  // length travelled past the last fix (extrapolation)
     double head_dir = 0.0;
@@ -320,7 +322,8 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
             const PathPoint& prev = m_path[m_path.size() - 2];
             const double seg_t = static_cast<double>(last.t_ns - prev.t_ns) / 1e9;
             const double speed = (last.s - prev.s) / seg_t;
-            extra_head = speed * static_cast<double>(std::min(dt, max_age)) / 1e9;
+            const std::int64_t ahead = std::min({dt, max_age, seconds(m_cfg.vessel.extrapolation_s)});
+            extra_head = speed * static_cast<double>(ahead) / 1e9;
             head_dir = std::atan2(last.e - prev.e, last.n - prev.n);
         }
         s_tow = last.s + extra_head;
@@ -456,6 +459,10 @@ void Positioner::applyCross(const SensorOffset& o, const PathPos& p, double dir,
     out.northing_m = p.n - o.cross_m * std::sin(dir);
     out.heading_grid_rad = wrapTwoPi(dir);
     out.heading_true_rad = wrapTwoPi(dir + p.convergence);
+}
+
+bool Positioner::hasFixAtOrAfter(std::int64_t mag_t_ns) const {
+    return !m_path.empty() && m_path.back().t_ns >= mag_t_ns - millis(m_cfg.tow.mag_latency_ms);
 }
 
 SensorPose Positioner::poseAt(std::int64_t t_ns, int sensor_index) const {

@@ -32,7 +32,8 @@ enum PoseFlag : std::uint32_t {
     kUnknownSensor = 1u << 9,         // no [[sensor]] with this index
     // Notes (information, not problems):
     kHeadingFromCmg = 1u << 16,       // tow-point offset rotated by course made good
-    kExtrapolated = 1u << 17,         // sample time after the last fix (within fix_max_age_s)
+    kExtrapolated = 1u << 17,         // sample time after the last fix (within fix_max_age_s):
+                                      // held at it, or carried on for extrapolation_s at most
     kFixedCableOut = 1u << 18,        // cable out from the configuration
     kFixedSensorDepth = 1u << 19,     // sensor depth from the configuration
 };
@@ -114,6 +115,9 @@ public:
 
     const NavConfig& config() const { return m_cfg; }
     std::size_t pathPoints() const { return m_path.size(); }
+    // Whether a fix at or after magnetometer time t_ns (its latency removed) is known: a pose at
+    // t_ns is then interpolated between fixes, not held or extrapolated past the last one.
+    bool hasFixAtOrAfter(std::int64_t mag_t_ns) const;
     std::int64_t rejectedFixes() const { return m_rejected_fixes; }
 
 private:

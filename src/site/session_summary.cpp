@@ -52,7 +52,8 @@ json runJson(const coverage::LineRun& r) {
             {"alt", {r.altitude_sum_m, r.altitude_samples, r.altitude_missing, r.worst_altitude_m}},
             {"worst_deviation_m", r.worst_deviation_m}, {"alarms", r.alarms},
             {"noise", {r.noise_sum_nT, r.noise_samples, r.worst_noise_nT}},
-            {"corridor_covered_pct", r.corridor_covered_pct}};
+            {"corridor_covered_pct", r.corridor_covered_pct},
+            {"along", {r.along_min_m, r.along_max_m}}};
 }
 coverage::LineRun runFrom(const json& j) {
     coverage::LineRun r;
@@ -78,6 +79,8 @@ coverage::LineRun runFrom(const json& j) {
     r.noise_samples = n.at(1);
     r.worst_noise_nT = n.at(2);
     r.corridor_covered_pct = j.at("corridor_covered_pct");
+    r.along_min_m = j.at("along").at(0);
+    r.along_max_m = j.at("along").at(1);
     return r;
 }
 

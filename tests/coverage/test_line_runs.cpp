@@ -1,5 +1,6 @@
-// Line runs: automatic line choice with hysteresis, explicit choice, signed cross-track deviation
-// (starboard positive), run statistics and corridor coverage.
+// Line runs: automatic line choice (acquisition, settling, keeping the line through excursions of
+// 5, 15, 30 and 45 m, turns, outages), explicit choice, signed cross-track deviation (starboard
+// positive), neighbour lines, run statistics and corridor coverage.
 #include <cmath>
 #include <optional>
 
@@ -27,8 +28,8 @@ TEST(LineRuns, CrossTrackIsStarboardPositiveForEitherDirection) {
     EXPECT_DOUBLE_EQ(t.alongTrack(1, {17, 50}), 50.0);
 }
 
-TEST(LineRuns, PicksNearestMatchingLineWithHysteresis) {
-    LineTracker t(threeLines(), LineTrackerOptions{20.0});  // hysteresis 5 m, max offset 20 m
+TEST(LineRuns, AcquiresNearestMatchingLineAndKeepsIt) {
+    LineTracker t(threeLines(), LineTrackerOptions{20.0});  // hysteresis 5 m, acquire within 20 m
     // Crossing the lines at right angles matches no line.
     EXPECT_EQ(t.update(0, {10, 50}, 1.0, 0.0, 3.0), kRunNone);
     // Northbound 2 m east of B -> run 0 on B.
@@ -36,18 +37,135 @@ TEST(LineRuns, PicksNearestMatchingLineWithHysteresis) {
     EXPECT_EQ(t.update(1, {22, 60}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
     EXPECT_DOUBLE_EQ(t.activeCrossTrack({22, 60}, 0.0, 1.0).value(), 2.0);
-    // Drifting east to 11 m (9 m from C): C is nearer, but not by more than 5 m -> stay on B.
+    // Drifting east to 11 m, then 13 m (7 m from C): still B. (Before issue #14 the tracker took
+    // C here, as a new run, and the deviation from B was never seen.)
     EXPECT_EQ(t.update(2, {31, 70}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.update(3, {33, 80}, 0.0, 1.0, 3.0), 0);
     EXPECT_EQ(t.activeLine(), 1);
-    // 13 m east of B, 7 m from C: nearer by 6 m > 5 m -> new run on C.
-    EXPECT_EQ(t.update(3, {33, 80}, 0.0, 1.0, 3.0), 1);
-    EXPECT_EQ(t.activeLine(), 2);
-    EXPECT_FALSE(t.runs()[0].open);
-    // Past the end of C (200 m + hysteresis): no line.
+    EXPECT_DOUBLE_EQ(t.runs()[0].worst_deviation_m, 13.0);
+    // Past the end of B (200 m + hysteresis): no line.
     EXPECT_EQ(t.update(4, {40, 230}, 0.0, 1.0, 3.0), kRunNone);
+    EXPECT_FALSE(t.runs()[0].open);
     // Turning and coming back south on C: a new, reversed run.
-    EXPECT_EQ(t.update(5, {40, 190}, 0.0, -1.0, 3.0), 2);
-    EXPECT_TRUE(t.runs()[2].reversed);
+    EXPECT_EQ(t.update(5, {40, 190}, 0.0, -1.0, 3.0), 1);
+    EXPECT_EQ(t.activeLine(), 2);
+    EXPECT_TRUE(t.runs()[1].reversed);
+}
+
+// An excursion of `offset_m` to starboard (east) in the middle of line B, northbound, at 1 m
+// steps, reached and left at about 20 degrees (a helmsman's correction; within the 30 degree axis
+// tolerance) or at 40 degrees for a shorter stretch than the turn hold.
+struct Excursion {
+    double offset_m;
+    double angle_deg;
+};
+
+class LineRunsExcursion : public ::testing::TestWithParam<Excursion> {};
+
+TEST_P(LineRunsExcursion, StaysOnTheLineAsADeviation) {
+    const Excursion x = GetParam();
+    // Three 600 m lines 20 m apart (room for a 45 m excursion at 25 degrees).
+    LineTracker t({{"A", {0, 0}, {0, 600}}, {"B", {20, 0}, {20, 600}}, {"C", {40, 0}, {40, 600}}},
+                  LineTrackerOptions{20.0});
+    const double slope = std::tan(x.angle_deg * 3.14159265358979 / 180.0);  // east per north
+    const double ramp_m = x.offset_m / slope;
+    // Offset profile: ramp out from N 50, hold 50 m at the full offset, ramp back.
+    const double n_hold = 50.0 + ramp_m, n_back = n_hold + 50.0;
+    std::int64_t ti = 0;
+    double worst = 0.0;
+    double e_prev = 20.0, n_prev = -1.0;
+    for (double n = 0.0; n <= 600.0; n += 1.0) {
+        double off = 0.0;
+        if (n > 50.0) off = std::min(x.offset_m, (n - 50.0) * slope);
+        if (n > n_back) off = std::max(0.0, x.offset_m - (n - n_back) * slope);
+        const double e = 20.0 + off;
+        const double de = e - e_prev, dn = n - n_prev;
+        const double len = std::hypot(de, dn);
+        const int run = t.update(ti++ * 500'000'000LL, {e, n}, de / len, dn / len, 3.0);
+        ASSERT_EQ(run, 0) << "at N " << n << ", offset " << off;
+        ASSERT_EQ(t.activeLine(), 1);
+        worst = std::max(worst, t.activeCrossTrack({e, n}, de / len, dn / len).value());
+        e_prev = e;
+        n_prev = n;
+    }
+    ASSERT_EQ(t.runs().size(), 1U);
+    EXPECT_NEAR(t.runs()[0].worst_deviation_m, x.offset_m, 1e-9);
+    EXPECT_NEAR(worst, x.offset_m, 1e-9);
+    EXPECT_FALSE(t.runs()[0].reversed);
+}
+
+INSTANTIATE_TEST_SUITE_P(Offsets, LineRunsExcursion,
+                         ::testing::Values(Excursion{5.0, 20.0}, Excursion{15.0, 20.0}, Excursion{30.0, 20.0},
+                                           Excursion{45.0, 25.0}, Excursion{5.0, 40.0}));
+
+TEST(LineRuns, ARunInNearerTheNeighbourSettlesOnTheRightLine) {
+    LineTracker t(threeLines(), LineTrackerOptions{20.0});  // settle over the first 20 m
+    // Coming onto the lines at N 0, 9 m east of A (11 m from B): A first.
+    EXPECT_EQ(t.update(0, {9, 0}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.activeLine(), 0);
+    // 4 m further north the boat is 1 m from B: B is nearer by 7 m > 5 m -> the run moves to B
+    // (the same run id: its cells are not repainted).
+    EXPECT_EQ(t.update(1, {19, 4}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.activeLine(), 1);
+    EXPECT_EQ(t.runs()[0].line, 1);
+    // After the settling distance, the line is kept even 15 m off.
+    EXPECT_EQ(t.update(2, {20, 40}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.update(3, {35, 60}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.activeLine(), 1);
+    EXPECT_DOUBLE_EQ(t.runs()[0].worst_deviation_m, 15.0);
+}
+
+TEST(LineRuns, ATurnEndsTheRunAfterTheTurnHold) {
+    LineTracker t(threeLines(), LineTrackerOptions{20.0});  // turn hold 20 m
+    std::int64_t ti = 0;
+    for (double n = 0; n <= 100; n += 2) EXPECT_EQ(t.update(ti++, {20, n}, 0.0, 1.0, 3.0), 0);
+    // Heading east (90 degrees off the axis) for 16 m: still the run (a sharp correction).
+    for (double e = 22; e <= 36; e += 2) EXPECT_EQ(t.update(ti++, {e, 100}, 1.0, 0.0, 3.0), 0);
+    // More than 20 m off the axis: the run ends, and heading east matches no line.
+    for (double e = 38; e <= 44; e += 2) t.update(ti++, {e, 100}, 1.0, 0.0, 3.0);
+    EXPECT_EQ(t.activeRun(), kRunNone);
+    EXPECT_FALSE(t.runs()[0].open);
+    // Back along the axis southbound near C: a new reversed run on C.
+    EXPECT_EQ(t.update(ti++, {42, 98}, 0.0, -1.0, 3.0), 1);
+    EXPECT_EQ(t.activeLine(), 2);
+    EXPECT_TRUE(t.runs()[1].reversed);
+}
+
+TEST(LineRuns, AfterAnOutageTheRunGoesOnOnlyNearItsLine) {
+    LineTracker t(threeLines(), LineTrackerOptions{20.0});  // continuity gap 10 s
+    const std::int64_t s = 1'000'000'000LL;
+    EXPECT_EQ(t.update(0, {20, 10}, 0.0, 1.0, 3.0), 0);
+    EXPECT_EQ(t.update(1 * s, {20, 12}, 0.0, 1.0, 3.0), 0);
+    // 30 s without positions, back 3 m off B: the same run.
+    EXPECT_EQ(t.update(31 * s, {23, 72}, 0.0, 1.0, 3.0), 0);
+    // A 5 s break 26 m off B (on the far side of C): still B (short breaks do not matter).
+    EXPECT_EQ(t.update(36 * s, {46, 82}, 0.0, 1.0, 3.0), 0);
+    // A 30 s break resuming 26 m off B: no longer B; C is 6 m away -> a new run on C.
+    EXPECT_EQ(t.update(66 * s, {46, 142}, 0.0, 1.0, 3.0), 1);
+    EXPECT_EQ(t.activeLine(), 2);
+}
+
+TEST(LineRuns, NeighbourLinesAndWhetherTheyWereRun) {
+    LineTracker t(threeLines(), LineTrackerOptions{20.0});
+    // Northbound on B: C to starboard (east), A to port.
+    EXPECT_EQ(t.neighbourLine(1, {20, 50}, 0.0, 1.0, true), 2);
+    EXPECT_EQ(t.neighbourLine(1, {20, 50}, 0.0, 1.0, false), 0);
+    // Southbound on B the sides swap; even 15 m off B towards C, C is still B's neighbour.
+    EXPECT_EQ(t.neighbourLine(1, {35, 50}, 0.0, -1.0, true), 0);
+    EXPECT_EQ(t.neighbourLine(1, {35, 50}, 0.0, -1.0, false), 2);
+    // A is the outermost line to the west; beyond the line ends there is no neighbour.
+    EXPECT_EQ(t.neighbourLine(0, {0, 50}, 0.0, 1.0, false), -1);
+    EXPECT_EQ(t.neighbourLine(1, {20, 250}, 0.0, 1.0, true), -1);
+    // Run A northbound from N 0 to N 120, then B: A has been passed up to N 120 only.
+    std::int64_t ti = 0;
+    for (double n = 0; n <= 120; n += 2) t.update(ti++, {0, n}, 0.0, 1.0, 3.0);
+    EXPECT_FALSE(t.passedBy(0, {20, 60}));  // A's run is still open
+    for (double e = 2; e <= 40; e += 2) t.update(ti++, {e, 125}, 1.0, 0.0, 3.0);
+    for (double n = 0; n <= 200; n += 2) t.update(ti++, {20, n}, 0.0, 1.0, 3.0);
+    EXPECT_EQ(t.activeLine(), 1);
+    EXPECT_TRUE(t.passedBy(0, {20, 60}));
+    EXPECT_FALSE(t.passedBy(0, {20, 150}));
+    EXPECT_FALSE(t.passedBy(2, {20, 60}));  // C never run
 }
 
 TEST(LineRuns, ExplicitChoiceHoldsTheLine) {

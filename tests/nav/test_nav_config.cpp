@@ -85,6 +85,16 @@ TEST(NavConfig, ErrorsNameFileAndKey) {
     std::string src = kGood;
     src.replace(src.find("\"hdt\""), 5, "\"gyro\"");
     EXPECT_NE(errorOf(src).find("vessel.heading_source"), std::string::npos) << errorOf(src);
+
+    // Extrapolation past the last fix: 0 by default, at most fix_max_age_s (2 s by default).
+    std::string ex = kGood;
+    ex.replace(ex.find("draft_m"), 7, "extrapolation_s = 1.5\ndraft_m");
+    auto t = sg::config::parseText(ex, "vessel.toml");
+    EXPECT_DOUBLE_EQ(parseVesselConfig(Section(t, "vessel.toml")).vessel.extrapolation_s, 1.5);
+    ex.replace(ex.find("1.5\n"), 3, "2.5");
+    EXPECT_NE(errorOf(ex).find("vessel.extrapolation_s"), std::string::npos) << errorOf(ex);
+    auto e = sg::config::parseText("", "empty.toml");
+    EXPECT_DOUBLE_EQ(parseVesselConfig(Section(e, "empty.toml")).vessel.extrapolation_s, 0.0);
 }
 
 }  // namespace

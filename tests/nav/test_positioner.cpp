@@ -210,6 +210,31 @@ TEST(Interpolation, BetweenFixesAndWithLatency) {
     EXPECT_NEAR(r.poseAt(5 * kS, 0).northing_m, 6000000.0 + 10.2, 1e-6);
 }
 
+// Issue #14: by default no position past the last fix (held there, so no coverage beyond it);
+// [vessel] extrapolation_s carries the tow point on along the last segment for that long at most.
+TEST(Extrapolation, HeldAtTheLastFixUnlessConfigured) {
+    NavConfig c = basic();
+    c.tow.cable_out_m = 0.0;  // fish at the tow point (no layback), to read the tow point directly
+    c.tow.sensor_depth_m = 0.0;
+    EXPECT_DOUBLE_EQ(c.vessel.extrapolation_s, 0.0);  // the default
+    Positioner p(c, nullptr);
+    northbound(p, 2.0, 10.0);  // last fix at t = 10 s, N 6000020
+    const SensorPose held = p.poseAt(11 * kS, 0);
+    EXPECT_TRUE(held.flags & kExtrapolated);
+    EXPECT_TRUE(held.positionOk());
+    EXPECT_DOUBLE_EQ(held.northing_m, 6000020.0);
+    EXPECT_TRUE(p.poseAt(12 * kS + 1, 0).flags & kStaleFix);  // past fix_max_age_s (2 s)
+
+    c.vessel.extrapolation_s = 0.5;
+    Positioner q(c, nullptr);
+    northbound(q, 2.0, 10.0);
+    // 0.3 s past the last fix at 2 m/s: 0.6 m on; 1.5 s past: only 0.5 s of it (1.0 m).
+    EXPECT_NEAR(q.poseAt(10 * kS + 300'000'000LL, 0).northing_m, 6000020.6, 1e-6);
+    EXPECT_NEAR(q.poseAt(11 * kS + 500'000'000LL, 0).northing_m, 6000021.0, 1e-6);
+    // Between fixes nothing changes: interpolated as before.
+    EXPECT_NEAR(q.poseAt(5 * kS + 50'000'000LL, 0).northing_m, 6000010.1, 1e-6);
+}
+
 TEST(Flags, MissingAndStaleInputsAreFlaggedNotZeroed) {
     NavConfig c = basic();
     Positioner p(c, nullptr);
@@ -227,7 +252,7 @@ TEST(Flags, MissingAndStaleInputsAreFlaggedNotZeroed) {
     EXPECT_EQ(a.altitude_source, AltitudeSource::None);
     EXPECT_FALSE(a.ok());
 
-    // Past the last fix: extrapolated (a note) within fix_max_age_s, stale after it.
+    // Past the last fix: flagged kExtrapolated (a note) within fix_max_age_s, stale after it.
     const SensorPose b = p.poseAt(11 * kS, 0);
     EXPECT_TRUE(b.flags & kExtrapolated);
     EXPECT_FALSE(b.flags & kStaleFix);
