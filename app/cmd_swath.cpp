@@ -1,7 +1,9 @@
 // `swathguard swath`: the planning aid. For each target class of a survey configuration, the
 // detection range, the left/right detectable half-widths of the array at a planned altitude and
 // line heading, the line spacing that keeps adjacent swaths overlapping, and the highest altitude
-// at which the configured spacing still overlaps. A model's estimate: see docs/detection-model.md.
+// at which the configured spacing still overlaps. Every number comes from the direct solve (root
+// finding on the model's anomaly, no interpolation table); the live path's table half-widths are
+// shown beside it in the JSON. A model's estimate: see docs/detection-model.md.
 #include <cmath>
 #include <cstdio>
 #include <optional>
@@ -73,7 +75,8 @@ int runSwath(const SwathOptions& o) {
     const auto models = detect::makeModels(det);
     std::vector<detect::ClassPlan> plans;
     for (const detect::TargetModel& m : models) {
-        plans.push_back(detect::planClass(m, cross, o.altitude_m, heading_rad, threshold, *spacing));
+        plans.push_back(detect::planClass(m, cross, o.altitude_m, heading_rad, threshold, *spacing,
+                                          detect::Evaluation::Direct));
     }
 
     if (o.json) {
@@ -85,6 +88,7 @@ int runSwath(const SwathOptions& o) {
         j["threshold_nT"] = threshold;
         j["line_spacing_m"] = *spacing;
         j["sensor_cross_m"] = cross;
+        j["evaluation"] = "direct";
         j["field"] = {{"inclination_deg", det.field.inclination_deg},
                       {"declination_deg", det.field.declination_deg},
                       {"intensity_nT", det.field.intensity_nT}};
@@ -97,8 +101,17 @@ int runSwath(const SwathOptions& o) {
             e["model"] = detect::modelName(c.model);
             if (c.model != detect::ModelKind::MassRule) {
                 e["orientation"] = detect::orientationName(c.orientation);
+                e["orientation_rule"] = detect::orientationRule(c);
+                if (c.orientation == detect::Orientation::InducedRemanent) {
+                    e["remanence_ratio"] = c.remanence_ratio;
+                }
                 e["moment_Am2"] = models[i].moment_Am2();
             }
+            // What the live path's tables give for the same geometry (their error is bounded
+            // against this direct solve, docs/detection-model.md).
+            const detect::ArraySwath live = detect::arraySwathAt(
+                models[i], cross, o.altitude_m, heading_rad, threshold, detect::Evaluation::Table);
+            e["live_table"] = {{"port_m", live.port_m}, {"starboard_m", live.starboard_m}};
             e["burial_m"] = c.burial_m;
             e["detection_range_m"] = p.detection_range_m;
             e["max_altitude_m"] = p.max_altitude_m;
@@ -124,7 +137,7 @@ int runSwath(const SwathOptions& o) {
                                   " threshold {:.3f} nT, {} sensor(s), line spacing {:.2f} m\n\n",
                                   o.heading_deg, o.altitude_m, o.noise_nT, threshold, cross.size(),
                                   *spacing).c_str());
-    std::printf("%s", fmt::format("{:<18} {:<9} {:<8} {:>8} {:>8} {:>8} {:>8} {:>8} {:>9} {:>10}\n", "class",
+    std::printf("%s", fmt::format("{:<18} {:<9} {:<16} {:>8} {:>8} {:>8} {:>8} {:>8} {:>9} {:>10}\n", "class",
                                   "model", "orient", "range_m", "maxalt_m", "port_m", "stbd_m",
                                   "margin", "spacing_m", "alt@spc_m").c_str());
     for (std::size_t i = 0; i < plans.size(); ++i) {
@@ -132,7 +145,7 @@ int runSwath(const SwathOptions& o) {
         const auto& c = models[i].targetClass();
         const std::string orient =
             c.model == detect::ModelKind::MassRule ? "-" : detect::orientationName(c.orientation);
-        std::printf("%s", fmt::format("{:<18} {:<9} {:<8} {:>8.2f} {:>8.2f} {:>8.2f} {:>8.2f} {:>8.2f} {:>9.2f} "
+        std::printf("%s", fmt::format("{:<18} {:<9} {:<16} {:>8.2f} {:>8.2f} {:>8.2f} {:>8.2f} {:>8.2f} {:>9.2f} "
                                       "{:>10}{}\n",
                                       p.name.substr(0, 18), detect::modelName(c.model), orient,
                                       p.detection_range_m, p.max_altitude_m, p.swath.port_m,
@@ -140,7 +153,15 @@ int runSwath(const SwathOptions& o) {
                                       fmtOpt(p.max_altitude_for_spacing_m),
                                       note(p.swath)).c_str());
     }
-    std::printf("\n  range_m: largest sensor-to-target vertical distance; maxalt_m: range minus burial;\n"
+    std::printf("\n  orientation rule in force (dipole and sphere classes):\n");
+    for (const detect::TargetModel& m : models) {
+        const std::string rule = detect::orientationRule(m.targetClass());
+        if (!rule.empty()) {
+            std::printf("%s", fmt::format("    {}: {}\n", m.targetClass().name, rule).c_str());
+        }
+    }
+    std::printf("\n  All values by direct solve of the model (no lookup table).\n"
+                "  range_m: largest sensor-to-target vertical distance; maxalt_m: range minus burial;\n"
                 "  port_m/stbd_m: array half-widths at this altitude and heading; margin: peak/threshold\n"
                 "  on the line; spacing_m: widest spacing with no gap whichever way the next line runs;\n"
                 "  alt@spc_m: highest altitude at which lines at the given spacing still overlap.\n"

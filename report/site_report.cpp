@@ -62,13 +62,19 @@ std::string join(const std::vector<std::string>& v, const char* sep = " ") {
     return out;
 }
 
+std::string orientationShort(const detect::TargetClass& t) {
+    if (t.orientation == detect::Orientation::InducedRemanent)
+        return fmt::format("induced + remanent <= {:g} x induced", t.remanence_ratio);
+    return detect::orientationName(t.orientation);
+}
+
 std::string targetSize(const detect::TargetClass& t) {
     switch (t.model) {
     case detect::ModelKind::MassRule: return fmt::format("{:g} kg of steel", t.mass_kg);
-    case detect::ModelKind::Dipole: return fmt::format("moment {:g} A m2, {}", t.moment_Am2, detect::orientationName(t.orientation));
+    case detect::ModelKind::Dipole: return fmt::format("moment {:g} A m2, {}", t.moment_Am2, orientationShort(t));
     case detect::ModelKind::Sphere:
         return fmt::format("radius {:g} m, susceptibility {:g}, {}", t.radius_m, t.susceptibility,
-                           detect::orientationName(t.orientation));
+                           orientationShort(t));
     }
     return "";
 }
@@ -513,6 +519,24 @@ void modelPage(PdfDoc& d, const SurveySummary& s) {
     d.subheading("Assumptions");
     for (const auto& t : det.targets)
         if (t.name == s.coverage_class) d.bullet(std::string("Coverage class model: ") + modelSource(t.model) + ".");
+    for (const auto& t : det.targets) {
+        if (t.model == detect::ModelKind::MassRule) continue;
+        std::string why;
+        switch (t.orientation) {
+        case detect::Orientation::InducedRemanent:
+            why = " A stated bound on the remanent to induced moment ratio (Koenigsberger ratio); ordnance "
+                  "measured on a test stand showed remanence mostly smaller than its induced moment (Billings, "
+                  "Pasion, Walker and Beran 2006, IEEE TGRS 44(8)); the bound is the survey's assumption, to be "
+                  "reviewed against its own test items.";
+            break;
+        case detect::Orientation::Induced: why = " No remanence is allowed for: the optimistic reading."; break;
+        case detect::Orientation::Worst:
+            why = " The whole moment in its least favourable direction: blind straight below magnetic north-south "
+                  "lines.";
+            break;
+        }
+        d.bullet(fmt::format("Orientation rule in force for {}: {}.{}", t.name, detect::orientationRule(t), why));
+    }
     d.bullet("A cell's margin is the peak anomaly of the coverage class at that cross-track offset divided by the "
              "threshold at that sample; the cell is covered when the best margin over all passes is at least 1. "
              "Margins are kept rounded down to 1/16.");

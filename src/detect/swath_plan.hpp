@@ -52,15 +52,20 @@ struct ClassPlan {
 
 inline constexpr double kMinPlanAltitude_m = 0.5;
 
+// How half-widths, ranges and margins are computed: from the model's interpolation tables (the
+// live path) or by the direct solve (root finding on the anomaly, no table; `swath`).
+enum class Evaluation { Table, Direct };
+
 // sensor_cross_m: cross-track offsets of the array's sensors (starboard positive).
 // altitude_m: sensor above the seabed (> 0); heading_true_rad: line heading; threshold_nT > 0;
 // spacing_m: planned line spacing (> 0).
 ClassPlan planClass(const TargetModel& model, std::span<const double> sensor_cross_m,
                     double altitude_m, double heading_true_rad, double threshold_nT,
-                    double spacing_m);
+                    double spacing_m, Evaluation eval = Evaluation::Table);
 
 // Array swath of one class at a sensor altitude (all sensors at the same altitude).
 ArraySwath arraySwathAt(const TargetModel& model, std::span<const double> sensor_cross_m,
-                        double altitude_m, double heading_true_rad, double threshold_nT);
+                        double altitude_m, double heading_true_rad, double threshold_nT,
+                        Evaluation eval = Evaluation::Table);
 
 }  // namespace sg::detect

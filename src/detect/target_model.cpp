@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <cstdio>
 #include <utility>
 
 #include "common/config_section.hpp"
@@ -196,45 +197,202 @@ double worstPeak(const PassGeometry& g) {
     return best_v;
 }
 
+// min over moments m = f + q v, |v| <= 1 (the induced moment plus a remanent one of at most q
+// times its size, in any direction) of max over the pass of |m . a(s)|. The peak is a convex
+// function of m (a maximum of absolute values of linear functions) and the ball is convex, so the
+// problem has one minimum, found by the central-cut ellipsoid method (Shor 1977; Nemirovski and
+// Yudin 1983; see Boyd and Vandenberghe's lecture notes on the ellipsoid method for the update
+// used here): each step cuts the ellipsoid through its centre with a subgradient (the sensitivity
+// row of the active sample) or, outside the ball, with the ball's gradient. In 3 dimensions the
+// volume shrinks by 0.84 per step; 260 steps reduce the radius about 1e-6 times. The pass is
+// sampled at 1-degree steps of alpha: a sampled maximum is never above the true one (safe side).
+double remanentBoundedPeak(const PassGeometry& g, double q) {
+    constexpr int kPass = 177;  // alpha in [-88, 88] degrees, 1-degree steps
+    std::array<Vec3, kPass> a{};
+    for (int i = 0; i < kPass; ++i) {
+        a[static_cast<std::size_t>(i)] =
+            g.sensitivity(-kAlphaMax + 2.0 * kAlphaMax * i / (kPass - 1));
+    }
+    auto peak = [&](Vec3 m, Vec3& sub) {
+        double v = -1.0;
+        for (const Vec3& ai : a) {
+            const double d = dot(m, ai);
+            if (std::fabs(d) > v) {
+                v = std::fabs(d);
+                sub = d >= 0.0 ? ai : -1.0 * ai;
+            }
+        }
+        return v;
+    };
+    Vec3 sub{};
+    double best = peak(g.f, sub);  // the induced moment alone is a candidate
+    if (!(q > 0.0)) return best;
+    // Ellipsoid {x : (x - c)^T P^-1 (x - c) <= 1}, P symmetric (row-major 3x3), starting as the ball.
+    Vec3 c = g.f;
+    std::array<double, 9> P{q * q, 0, 0, 0, q * q, 0, 0, 0, q * q};
+    constexpr double kN = 3.0;
+    for (int it = 0; it < 260; ++it) {
+        const Vec3 d = c - g.f;
+        Vec3 cut{};
+        if (dot(d, d) > q * q) {
+            cut = d;  // infeasible centre: cut toward the ball
+        } else {
+            best = std::min(best, peak(c, cut));
+            if (best <= 0.0) return 0.0;
+        }
+        const Vec3 pg{P[0] * cut.x + P[1] * cut.y + P[2] * cut.z,
+                      P[3] * cut.x + P[4] * cut.y + P[5] * cut.z,
+                      P[6] * cut.x + P[7] * cut.y + P[8] * cut.z};
+        const double gpg = dot(cut, pg);
+        if (!(gpg > 1e-300)) break;
+        const Vec3 b = (1.0 / std::sqrt(gpg)) * pg;
+        c = c - (1.0 / (kN + 1.0)) * b;
+        const double s = kN * kN / (kN * kN - 1.0);
+        const double bb[3] = {b.x, b.y, b.z};
+        for (int r = 0; r < 3; ++r) {
+            for (int k = 0; k < 3; ++k) {
+                P[static_cast<std::size_t>(3 * r + k)] =
+                    s * (P[static_cast<std::size_t>(3 * r + k)] - 2.0 / (kN + 1.0) * bb[r] * bb[k]);
+            }
+        }
+    }
+    return best;
+}
+
+// The half-width as a root: the smallest offset d > 0 at which margin(d) = peak / threshold falls
+// below 1, where margin(0) >= 1. The offset is scanned in steps of `step` up to `d_max`; a
+// crossing between two samples is bisected (`halvings` times). A dip of the margin narrower than
+// the step would pass between two samples, so at every sampled local minimum below kDipWatch the
+// minimum is located by golden-section search, and a minimum below 1 is a crossing before it.
+// Returns d_max when no crossing is found.
+template <typename Margin>
+double firstCrossing(const Margin& margin, double step, double d_max, int halvings) {
+    constexpr double kDipWatch = 1.5;
+    constexpr double kInvPhi = 0.6180339887498949;
+    auto bisect = [&](double lo, double hi) {
+        for (int it = 0; it < halvings; ++it) {
+            const double mid = 0.5 * (lo + hi);
+            (margin(mid) >= 1.0 ? lo : hi) = mid;
+        }
+        return lo;
+    };
+    double d_prev2 = 0.0, m_prev2 = margin(0.0);
+    double d_prev = 0.0, m_prev = m_prev2;
+    for (double d = step; d <= d_max + 0.5 * step; d += step) {
+        const double m = margin(d);
+        if (m < 1.0) return bisect(d_prev, d);
+        if (d_prev > 0.0 && m_prev <= m_prev2 && m_prev <= m && m_prev < kDipWatch) {
+            // Golden-section search of the minimum in [d_prev2, d].
+            double a = d_prev2, b = d;
+            double x1 = b - kInvPhi * (b - a), x2 = a + kInvPhi * (b - a);
+            double f1 = margin(x1), f2 = margin(x2);
+            for (int it = 0; it < 40 && f1 >= 1.0 && f2 >= 1.0; ++it) {
+                if (f1 < f2) {
+                    b = x2; x2 = x1; f2 = f1; x1 = b - kInvPhi * (b - a); f1 = margin(x1);
+                } else {
+                    a = x1; x1 = x2; f1 = f2; x2 = a + kInvPhi * (b - a); f2 = margin(x2);
+                }
+            }
+            if (f1 < 1.0) return bisect(d_prev2, x1);
+            if (f2 < 1.0) return bisect(d_prev2, x2);
+        }
+        d_prev2 = d_prev;
+        m_prev2 = m_prev;
+        d_prev = d;
+        m_prev = m;
+    }
+    return d_max;
+}
+
 }  // namespace
 
 double peakFactorDirect(Orientation orientation, double inclination_rad, double depression_rad,
-                        double heading_mag_rad) {
+                        double heading_mag_rad, double remanence_ratio) {
     const PassGeometry g(inclination_rad, depression_rad, heading_mag_rad);
-    return orientation == Orientation::Induced ? inducedPeak(g) : worstPeak(g);
+    switch (orientation) {
+    case Orientation::Induced: return inducedPeak(g);
+    case Orientation::Worst: return worstPeak(g);
+    case Orientation::InducedRemanent:
+        return remanence_ratio > 0.0 ? remanentBoundedPeak(g, remanence_ratio) : inducedPeak(g);
+    }
+    return 0.0;
 }
 
 // ---------------------------------------------------------------------------------------------
 // PeakTable
 
-PeakTable::PeakTable(Orientation orientation, double inclination_rad)
-    : m_orientation(orientation), m_inclination_rad(inclination_rad) {
+PeakTable::PeakTable(Orientation orientation, double inclination_rad, double remanence_ratio)
+    : m_orientation(orientation), m_inclination_rad(inclination_rad),
+      m_remanence_ratio(orientation == Orientation::InducedRemanent ? remanence_ratio : 0.0) {
     m_g.resize(static_cast<std::size_t>((kDeprSteps + 1) * kHeadingSteps));
     // East-west mirror symmetry (the field lies in the magnetic meridian plane): a target to
     // starboard of heading psi is seen exactly as one to port of heading -psi, i.e. to starboard
     // of heading pi - psi. Compute psi in [-90, 90] degrees and copy the rest.
     static_assert(kHeadingSteps % 4 == 0);
     const int quarter = kHeadingSteps / 4;
+    auto mirrorOf = [&](int j) { return (2 * quarter - j + kHeadingSteps) % kHeadingSteps; };
+    auto computed = [&](int j) { return j <= quarter || j >= 3 * quarter; };
     for (int j = 0; j < kHeadingSteps; ++j) {
-        if (j > quarter && j < 3 * quarter) continue;
+        if (!computed(j)) continue;
         const double heading = kTwoPi * j / kHeadingSteps;
         for (int i = 0; i <= kDeprSteps; ++i) {
             const double depr = kHalfPi * i / kDeprSteps;
             m_g[static_cast<std::size_t>(j * (kDeprSteps + 1) + i)] =
-                peakFactorDirect(orientation, inclination_rad, depr, heading);
+                peakFactorDirect(orientation, inclination_rad, depr, heading, m_remanence_ratio);
         }
     }
-    for (int j = quarter + 1; j < 3 * quarter; ++j) {
-        const int mirror = (2 * quarter - j + kHeadingSteps) % kHeadingSteps;
-        std::copy_n(&m_g[static_cast<std::size_t>(mirror * (kDeprSteps + 1))], kDeprSteps + 1,
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        if (computed(j)) continue;
+        std::copy_n(&m_g[static_cast<std::size_t>(mirrorOf(j) * (kDeprSteps + 1))], kDeprSteps + 1,
                     &m_g[static_cast<std::size_t>(j * (kDeprSteps + 1))]);
     }
-    m_width2.resize(static_cast<std::size_t>((kHeightSteps + 1) * kHeadingSteps));
+    const auto rows = static_cast<std::size_t>(kHeightSteps + 1);
+    m_width2.resize(rows * kHeadingSteps);
+    m_jump_h.assign(rows * kHeadingSteps, 0.0);
     for (int j = 0; j < kHeadingSteps; ++j) {
+        if (!computed(j)) continue;
+        double* col = &m_width2[static_cast<std::size_t>(j) * rows];
         for (int i = 0; i <= kHeightSteps; ++i) {
-            const double h = kMaxHeightNorm * i / kHeightSteps;
-            m_width2[static_cast<std::size_t>(j * (kHeightSteps + 1) + i)] =
-                halfWidthSquaredFromG(h, j);
+            col[i] = halfWidthSquaredFromG(kMaxHeightNorm * i / kHeightSteps, j);
+        }
+    }
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        double* col = &m_width2[static_cast<std::size_t>(j) * rows];
+        if (!computed(j)) {
+            std::copy_n(&m_width2[static_cast<std::size_t>(mirrorOf(j)) * rows], rows, col);
+        }
+    }
+    // A cell across which the half-width jumps (a dip of the peak along the offset crossing the
+    // threshold) holds the height of the jump, found by bisection: interpolating across it would
+    // overstate the swath on one side of it.
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        const double* col = &m_width2[static_cast<std::size_t>(j) * rows];
+        const int src = computed(j) ? j : mirrorOf(j);
+        double* jump = &m_jump_h[static_cast<std::size_t>(j) * rows];
+        for (int i = 0; i < kHeightSteps; ++i) {
+            if (std::fabs(col[i + 1] - col[i]) <= kJumpWidth2) continue;
+            double lo = kMaxHeightNorm * i / kHeightSteps;
+            double hi = kMaxHeightNorm * (i + 1) / kHeightSteps;
+            for (int it = 0; it < 30; ++it) {
+                const double mid = 0.5 * (lo + hi);
+                const double v = halfWidthSquaredFromG(mid, src);
+                (std::fabs(v - col[i]) < std::fabs(v - col[i + 1]) ? lo : hi) = mid;
+            }
+            jump[i] = hi;
+        }
+    }
+    // For each cell, the nearest cell holding a jump within kJumpBand cells (-1: none).
+    m_near_jump.assign(rows * kHeadingSteps, -1);
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        const double* jump = &m_jump_h[static_cast<std::size_t>(j) * rows];
+        std::int16_t* near = &m_near_jump[static_cast<std::size_t>(j) * rows];
+        for (int i = 0; i < kHeightSteps; ++i) {
+            int best = -1;
+            for (int n = std::max(i - kJumpBand, 0); n <= std::min(i + kJumpBand, kHeightSteps - 1);
+                 ++n) {
+                if (jump[n] > 0.0 && (best < 0 || std::abs(n - i) < std::abs(best - i))) best = n;
+            }
+            near[i] = static_cast<std::int16_t>(best);
         }
     }
 }
@@ -257,41 +415,34 @@ double PeakTable::peakFactor(double depression_rad, double heading_mag_rad, bool
 // The largest normalised offset d such that every offset in [0, d] is detectable (peak factor /
 // rho^3 >= 1), squared. When even the track centre is not detectable, a negative value
 // g(centre)^(2/3) - h^2 is stored instead, so interpolation crosses zero where the swath closes.
+// g between the 1-degree depression nodes: cubic (Catmull-Rom) interpolation, whose error falls
+// with the fourth power of the step where g is smooth (linear interpolation: the square).
 double PeakTable::halfWidthSquaredFromG(double h, int heading_index) const {
-    // The heading sits on a grid column: interpolate in depression only.
     const double* column = &m_g[static_cast<std::size_t>(heading_index * (kDeprSteps + 1))];
     auto gAt = [&](double depr) {
         const double dp = std::clamp(depr, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
         const int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
-        const double w = dp - i0;
-        return (1 - w) * column[i0] + w * column[i0 + 1];
+        const double t = dp - i0;
+        const double p0 = column[std::max(i0 - 1, 0)];
+        const double p1 = column[i0];
+        const double p2 = column[i0 + 1];
+        const double p3 = column[std::min(i0 + 2, kDeprSteps)];
+        return p1 + 0.5 * t * (p2 - p0 + t * (2.0 * p0 - 5.0 * p1 + 4.0 * p2 - p3 +
+                                              t * (3.0 * (p1 - p2) + p3 - p0)));
     };
-    auto detectable = [&](double d) {
+    auto margin = [&](double d) {
         const double rho2 = h * h + d * d;
-        if (rho2 <= 1e-12) return true;
-        return gAt(std::atan2(h, d)) >= rho2 * std::sqrt(rho2);
+        if (rho2 <= 1e-12) return 1e300;
+        return gAt(std::atan2(h, d)) / (rho2 * std::sqrt(rho2));
     };
-    if (!detectable(0.0)) {
+    if (margin(0.0) < 1.0) {
         const double g0 = column[kDeprSteps];
         return std::min(std::cbrt(g0 * g0) - h * h, 0.0);
     }
-    const double d_max = std::sqrt(std::max(0.0, std::cbrt(kMaxPeakFactor * kMaxPeakFactor)));
-    constexpr double kStep = 0.004;
-    double lo = 0.0;
-    double hi = -1.0;
-    for (double d = kStep; d <= d_max + kStep; d += kStep) {
-        if (!detectable(d)) {
-            hi = d;
-            break;
-        }
-        lo = d;
-    }
-    if (hi < 0) return lo * lo;
-    for (int it = 0; it < 30; ++it) {
-        const double mid = 0.5 * (lo + hi);
-        (detectable(mid) ? lo : hi) = mid;
-    }
-    return lo * lo;
+    // No geometry gives a peak factor above 2: beyond 2^(1/3) nothing is detectable.
+    const double d_max = std::cbrt(kMaxPeakFactor) + 0.01;
+    const double d = firstCrossing(margin, 0.004, d_max, 30);
+    return d * d;
 }
 
 double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, bool starboard) const {
@@ -305,17 +456,49 @@ double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, boo
     const double ip = h_norm / kMaxHeightNorm * kHeightSteps;
     const int i0 = std::min(static_cast<int>(ip), kHeightSteps - 1);
     const double wi = ip - i0;
-    const double* r0 = &m_width2[static_cast<std::size_t>(j0 * (kHeightSteps + 1) + i0)];
-    const double* r1 = &m_width2[static_cast<std::size_t>(j1 * (kHeightSteps + 1) + i0)];
-    const double lo = std::min({r0[0], r0[1], r1[0], r1[1]});
-    const double hi = std::max({r0[0], r0[1], r1[0], r1[1]});
-    // A cell whose corners differ a lot straddles a jump of the half-width (a dip of the peak
-    // along the offset crossing the threshold): interpolating across it would overstate the
-    // swath, so take the smallest corner (the safe side).
-    const double w2 = hi - lo > kJumpWidth2
-                          ? lo
-                          : (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) +
-                                wj * ((1 - wi) * r1[0] + wi * r1[1]);
+    constexpr auto rows = static_cast<std::size_t>(kHeightSteps + 1);
+    const std::size_t b0 = static_cast<std::size_t>(j0) * rows;
+    const std::size_t b1 = static_cast<std::size_t>(j1) * rows;
+    const int n0 = m_near_jump[b0 + static_cast<std::size_t>(i0)];
+    const int n1 = m_near_jump[b1 + static_cast<std::size_t>(i0)];
+    if (n0 < 0 && n1 < 0) {  // the usual case: bilinear in (d/R_T)^2
+        const double* r0 = &m_width2[b0 + static_cast<std::size_t>(i0)];
+        const double* r1 = &m_width2[b1 + static_cast<std::size_t>(i0)];
+        const double w2 = (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) +
+                          wj * ((1 - wi) * r1[0] + wi * r1[1]);
+        return w2 > 0.0 ? std::sqrt(w2) : 0.0;
+    }
+    // A jump of the half-width (a dip of the peak along the offset crossing the threshold) lies
+    // within kJumpBand cells. Each column is read on one branch, before (pre) or after (post) the
+    // jump, extending that branch linearly past the jump where needed; the branch is chosen by
+    // the jump height interpolated between the columns.
+    auto branch = [&](std::size_t base, int n, bool pre) {
+        const double* c = &m_width2[base];
+        const double* jh = &m_jump_h[base];
+        if (n < 0 || (pre && n > i0) || (!pre && n < i0)) {
+            return (1 - wi) * c[i0] + wi * c[i0 + 1];
+        }
+        if (pre) {  // last node before the jump is n; slope of the cell below it
+            const double slope = n > 0 && !(jh[n - 1] > 0.0) ? c[n] - c[n - 1] : 0.0;
+            return c[n] + slope * (ip - n);
+        }
+        // first node after the jump is n + 1; slope of the cell above it
+        const double slope = n + 2 <= kHeightSteps && !(jh[n + 1] > 0.0) ? c[n + 2] - c[n + 1] : 0.0;
+        return c[n + 1] + slope * (ip - (n + 1));
+    };
+    double w2;
+    if (n0 >= 0 && n1 >= 0) {
+        const double h_jump = (1 - wj) * m_jump_h[b0 + static_cast<std::size_t>(n0)] +
+                              wj * m_jump_h[b1 + static_cast<std::size_t>(n1)];
+        const bool pre = h_norm < h_jump;
+        w2 = (1 - wj) * branch(b0, n0, pre) + wj * branch(b1, n1, pre);
+    } else {
+        // Only one column has the jump nearby: each column on its own side; where they differ by
+        // a jump's size it is not known which side this heading is on: the smaller (safe side).
+        const double v0 = branch(b0, n0, n0 >= 0 && h_norm < m_jump_h[b0 + static_cast<std::size_t>(n0)]);
+        const double v1 = branch(b1, n1, n1 >= 0 && h_norm < m_jump_h[b1 + static_cast<std::size_t>(n1)]);
+        w2 = std::fabs(v1 - v0) > kJumpWidth2 ? std::min(v0, v1) : (1 - wj) * v0 + wj * v1;
+    }
     return w2 > 0.0 ? std::sqrt(w2) : 0.0;
 }
 
@@ -324,35 +507,27 @@ double PeakTable::maxNormalisedHeight(double heading_mag_rad) const {
     return std::cbrt(peakFactor(kHalfPi, heading_mag_rad, true));
 }
 
+double PeakTable::maxNormalisedHeightDirect(double heading_mag_rad) const {
+    return std::cbrt(peakFactorDirect(m_orientation, m_inclination_rad, kHalfPi, heading_mag_rad,
+                                      m_remanence_ratio));
+}
+
+// Direct solve: root of peak / threshold = 1 in the offset (firstCrossing: a scan in steps of
+// 0.01 R_T with every sampled dip searched for its minimum, then 30 halvings, 1e-11 R_T). The
+// peak at each offset comes from peakFactorDirect, with no table.
 double PeakTable::normalisedHalfWidthDirect(double h, double heading_mag_rad,
                                             bool starboard) const {
     const double heading = starboard ? heading_mag_rad : heading_mag_rad + kPi;
-    auto detectable = [&](double d) {
+    auto margin = [&](double d) {
         const double rho2 = h * h + d * d;
-        if (rho2 <= 1e-12) return true;
+        if (rho2 <= 1e-12) return 1e300;
         const double g = peakFactorDirect(m_orientation, m_inclination_rad, std::atan2(h, d),
-                                          heading);
-        return g >= rho2 * std::sqrt(rho2);
+                                          heading, m_remanence_ratio);
+        return g / (rho2 * std::sqrt(rho2));
     };
-    if (!detectable(0.0)) return 0.0;
-    constexpr double kStep = 0.01;
-    double lo = 0.0;
-    double hi = -1.0;
-    for (double d = kStep; d <= 1.6; d += kStep) {
-        if (!detectable(d)) {
-            hi = d;
-            break;
-        }
-        lo = d;
-    }
-    if (hi < 0) return lo;
-    for (int it = 0; it < 25; ++it) {
-        const double mid = 0.5 * (lo + hi);
-        (detectable(mid) ? lo : hi) = mid;
-    }
-    return lo;
+    if (margin(0.0) < 1.0) return 0.0;
+    return firstCrossing(margin, 0.01, std::cbrt(kMaxPeakFactor) + 0.01, 30);
 }
-
 // ---------------------------------------------------------------------------------------------
 // TargetModel
 
@@ -430,7 +605,8 @@ double TargetModel::peakAnomalyDirect_nT(double vertical_m, double offset_m,
     if (!m_table) return m_strength * inv_rho3;
     const double psi = magHeading(heading_true_rad) + (offset_m >= 0.0 ? 0.0 : kPi);
     const double g = peakFactorDirect(m_table->orientation(), m_inclination_rad,
-                                      std::atan2(vertical_m, std::fabs(offset_m)), psi);
+                                      std::atan2(vertical_m, std::fabs(offset_m)), psi,
+                                      m_table->remanence_ratio());
     return m_strength * g * inv_rho3;
 }
 
@@ -441,18 +617,31 @@ double TargetModel::detectionRange_m(double heading_true_rad, double threshold_n
     return range * m_table->maxNormalisedHeight(magHeading(heading_true_rad));
 }
 
+double TargetModel::detectionRangeDirect_m(double heading_true_rad, double threshold_nT) const {
+    if (!(threshold_nT > 0.0)) return 0.0;
+    const double range = std::cbrt(m_strength / threshold_nT);
+    if (!m_table) return range;
+    return range * m_table->maxNormalisedHeightDirect(magHeading(heading_true_rad));
+}
+
 std::vector<TargetModel> makeModels(const DetectionConfig& cfg) {
     const double incl = cfg.field.inclination_deg * kDegToRad;
-    std::shared_ptr<const PeakTable> induced;
-    std::shared_ptr<const PeakTable> worst;
+    // One table per orientation rule (and remanence bound), shared by the classes using it.
+    std::vector<std::shared_ptr<const PeakTable>> tables;
     std::vector<TargetModel> out;
     out.reserve(cfg.targets.size());
     for (const TargetClass& t : cfg.targets) {
         std::shared_ptr<const PeakTable> table;
         if (t.model != ModelKind::MassRule) {
-            auto& slot = t.orientation == Orientation::Induced ? induced : worst;
-            if (!slot) slot = std::make_shared<const PeakTable>(t.orientation, incl);
-            table = slot;
+            const double ratio =
+                t.orientation == Orientation::InducedRemanent ? t.remanence_ratio : 0.0;
+            for (const auto& x : tables) {
+                if (x->orientation() == t.orientation && x->remanence_ratio() == ratio) table = x;
+            }
+            if (!table) {
+                table = std::make_shared<const PeakTable>(t.orientation, incl, ratio);
+                tables.push_back(table);
+            }
         }
         out.emplace_back(t, cfg.field, cfg.detection.mass_rule_C, table);
     }
@@ -469,7 +658,28 @@ const char* modelName(ModelKind kind) {
 }
 
 const char* orientationName(Orientation o) {
-    return o == Orientation::Induced ? "induced" : "worst";
+    switch (o) {
+    case Orientation::Induced: return "induced";
+    case Orientation::Worst: return "worst";
+    case Orientation::InducedRemanent: return "induced_remanent";
+    }
+    return "?";
+}
+
+std::string orientationRule(const TargetClass& t) {
+    if (t.model == ModelKind::MassRule) return {};
+    switch (t.orientation) {
+    case Orientation::Induced: return "induced only (moment along the field)";
+    case Orientation::Worst: return "worst direction of the whole moment (blind below magnetic N-S lines)";
+    case Orientation::InducedRemanent: {
+        char buf[160];
+        std::snprintf(buf, sizeof buf,
+                      "induced + remanent up to %.2g x induced in the worst direction (Koenigsberger ratio Q <= %.2g)",
+                      t.remanence_ratio, t.remanence_ratio);
+        return buf;
+    }
+    }
+    return {};
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -501,7 +711,7 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
     if (targets.empty()) root.fail("target", "at least one [[target]] table");
     for (const config::Section& t : targets) {
         t.allowOnly({"name", "model", "mass_kg", "moment_Am2", "radius_m", "susceptibility",
-                     "burial_m", "orientation"});
+                     "burial_m", "orientation", "remanence_ratio"});
         TargetClass c;
         c.name = t.string("name");
         const std::string model = t.choice("model", {"mass_rule", "dipole", "sphere"});
@@ -513,13 +723,22 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
         };
         if (model == "mass_rule") {
             c.model = ModelKind::MassRule;
-            reject({"moment_Am2", "radius_m", "susceptibility", "orientation"},
+            reject({"moment_Am2", "radius_m", "susceptibility", "orientation", "remanence_ratio"},
                    "no such key for model \"mass_rule\" (it uses mass_kg)");
             c.mass_kg = t.number("mass_kg", 1e-3, 1e7);
         } else {
-            c.orientation = t.choice("orientation", {"induced", "worst"}, "worst") == "induced"
-                                ? Orientation::Induced
-                                : Orientation::Worst;
+            const std::string o = t.choice("orientation", {"induced_remanent", "induced", "worst"},
+                                           "induced_remanent");
+            c.orientation = o == "induced"  ? Orientation::Induced
+                            : o == "worst" ? Orientation::Worst
+                                           : Orientation::InducedRemanent;
+            if (c.orientation == Orientation::InducedRemanent) {
+                c.remanence_ratio = t.number("remanence_ratio", 0.0, kMaxRemanenceRatio,
+                                             kDefaultRemanenceRatio);
+            } else if (t.has("remanence_ratio")) {
+                t.fail("remanence_ratio",
+                       "no remanence_ratio unless orientation = \"induced_remanent\"");
+            }
             if (model == "dipole") {
                 c.model = ModelKind::Dipole;
                 reject({"mass_kg", "radius_m", "susceptibility"},

@@ -14,6 +14,7 @@
 // built once and interpolated per sample; see docs/detection-model.md for its error.
 #pragma once
 
+#include <cstdint>
 #include <memory>
 #include <string>
 #include <vector>
@@ -34,7 +35,22 @@ inline constexpr double kMassRuleC_nTm3_per_kg =
     kHundredFeet_m * kHundredFeet_m * kHundredFeet_m / kShortTon_kg;
 
 enum class ModelKind { MassRule, Dipole, Sphere };
-enum class Orientation { Induced, Worst };
+// Direction rule of a dipole's or sphere's moment:
+// - Induced: the moment along the ambient field, magnitude as configured.
+// - InducedRemanent (the default): the induced moment plus a remanent moment of at most
+//   `remanence_ratio` times its size in ANY direction; per pass geometry the remanent direction
+//   that makes the peak smallest is taken (a bound on the remanent/induced ratio, the
+//   Koenigsberger ratio Q; see docs/detection-model.md for the value and its sources).
+// - Worst: a moment of the configured magnitude in any direction, the direction that makes the
+//   peak smallest (blind straight below a magnetic north-south line).
+enum class Orientation { Induced, Worst, InducedRemanent };
+
+// Default bound on the remanent / induced moment ratio for InducedRemanent (a stated assumption,
+// see docs/detection-model.md "Default orientation rule"); valid range [0, kMaxRemanenceRatio].
+inline constexpr double kDefaultRemanenceRatio = 0.5;
+// Above 1 the remanent moment can cancel the induced one and nothing is ever detectable; the
+// config refuses ratios above this value and points to "worst" instead.
+inline constexpr double kMaxRemanenceRatio = 0.9;
 
 struct GeomagneticField {
     double inclination_deg = 65.0;  // positive down, [-90, 90]
@@ -50,7 +66,8 @@ struct TargetClass {
     double radius_m = 0.0;       // sphere
     double susceptibility = 0.0; // sphere, SI volume susceptibility
     double burial_m = 0.0;       // depth of the target below the seabed
-    Orientation orientation = Orientation::Induced;  // dipole and sphere
+    Orientation orientation = Orientation::InducedRemanent;  // dipole and sphere
+    double remanence_ratio = kDefaultRemanenceRatio;  // InducedRemanent: remanent <= ratio x induced
 };
 
 struct DetectionSettings {
@@ -81,18 +98,20 @@ struct HalfWidths {
 // rho cos(depr), with the target to STARBOARD of the pass. heading_mag_rad: pass heading clockwise
 // from magnetic north. inclination_rad: of the ambient field. Induced: moment along the field;
 // Worst: the moment direction that makes this peak smallest (min over directions of max over the
-// pass). depression_rad in [0, pi/2].
+// pass). InducedRemanent: the same minimum over remanent moments of at most remanence_ratio
+// times the induced one, added to it. depression_rad in [0, pi/2].
 double peakFactorDirect(Orientation orientation, double inclination_rad, double depression_rad,
-                        double heading_mag_rad);
+                        double heading_mag_rad, double remanence_ratio = 0.0);
 
 // Interpolation table of the peak factor g(depression, heading) and of the normalised half-width
 // for one field inclination and one orientation rule. Immutable once built; share it.
 class PeakTable {
 public:
-    PeakTable(Orientation orientation, double inclination_rad);
+    PeakTable(Orientation orientation, double inclination_rad, double remanence_ratio = 0.0);
 
     Orientation orientation() const { return m_orientation; }
     double inclination_rad() const { return m_inclination_rad; }
+    double remanence_ratio() const { return m_remanence_ratio; }
 
     // g at (depression, heading), target to starboard; port = starboard at heading + pi.
     double peakFactor(double depression_rad, double heading_mag_rad, bool starboard) const;
@@ -100,23 +119,29 @@ public:
     double normalisedHalfWidth(double h_norm, double heading_mag_rad, bool starboard) const;
     // Largest h/R_T at which the target is detectable directly below or beside the pass.
     double maxNormalisedHeight(double heading_mag_rad) const;
+    double maxNormalisedHeightDirect(double heading_mag_rad) const;
 
     // Exact normalised half-width from peakFactorDirect (slow; for tests and the table build).
     double normalisedHalfWidthDirect(double h_norm, double heading_mag_rad, bool starboard) const;
 
 private:
-    static constexpr int kDeprSteps = 90;     // 1 degree
-    static constexpr int kHeadingSteps = 72;  // 5 degrees, periodic
-    static constexpr int kHeightSteps = 280;  // 0 .. kMaxHeightNorm
+    static constexpr int kDeprSteps = 90;      // 1 degree
+    static constexpr int kHeadingSteps = 144;  // 2.5 degrees, periodic
+    static constexpr int kHeightSteps = 560;   // 0 .. kMaxHeightNorm, steps of 0.0025
     static constexpr double kMaxHeightNorm = 1.4;  // > 2^(1/3): g <= 2 for any geometry
-    static constexpr double kJumpWidth2 = 0.02;    // corner spread marking a jump, (d/R_T)^2
+    static constexpr double kJumpWidth2 = 0.02;    // step between nodes marking a jump, (d/R_T)^2
+    static constexpr int kJumpBand = 24;           // cells around a height searched for a jump
 
     double halfWidthSquaredFromG(double h_norm, int heading_index) const;
 
     Orientation m_orientation;
     double m_inclination_rad;
+    double m_remanence_ratio;
     std::vector<double> m_g;       // (kDeprSteps + 1) x kHeadingSteps, starboard
     std::vector<double> m_width2;  // (kHeightSteps + 1) x kHeadingSteps, (d/R_T)^2, starboard
+    // Same layout: the normalised height of the jump in the cell [i, i+1], 0 when none.
+    std::vector<double> m_jump_h;
+    std::vector<std::int16_t> m_near_jump;  // same layout: nearest cell with a jump, -1: none
 };
 
 // One target class ready for per-sample use.
@@ -147,9 +172,14 @@ public:
                   double threshold_nT) const {
         return peakAnomaly_nT(vertical_m, offset_m, heading_true_rad) / threshold_nT;
     }
-    // Largest sensor-to-target vertical distance (m) at which the target is still detectable
-    // somewhere on the pass of this heading.
+    // Largest sensor-to-target vertical distance (m) at which the target straight below the pass
+    // of this heading is still detectable.
     double detectionRange_m(double heading_true_rad, double threshold_nT) const;
+    double detectionRangeDirect_m(double heading_true_rad, double threshold_nT) const;
+    double marginDirect(double vertical_m, double offset_m, double heading_true_rad,
+                        double threshold_nT) const {
+        return peakAnomalyDirect_nT(vertical_m, offset_m, heading_true_rad) / threshold_nT;
+    }
 
 private:
     double magHeading(double heading_true_rad) const;
@@ -169,5 +199,8 @@ std::vector<TargetModel> makeModels(const DetectionConfig& cfg);
 // Names used in the config file.
 const char* modelName(ModelKind kind);
 const char* orientationName(Orientation o);
+// The orientation rule of a class in words, for `swath` and the report, e.g. "induced + remanent
+// <= 0.5 x induced, any direction". Empty for the mass rule.
+std::string orientationRule(const TargetClass& t);
 
 }  // namespace sg::detect

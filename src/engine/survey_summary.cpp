@@ -350,7 +350,11 @@ nlohmann::json toJson(const SurveySummary& s) {
                            {"radius_m", t.radius_m},
                            {"susceptibility", t.susceptibility},
                            {"burial_m", t.burial_m},
-                           {"orientation", detect::orientationName(t.orientation)}});
+                           {"orientation", detect::orientationName(t.orientation)},
+                           {"orientation_rule", detect::orientationRule(t)},
+                           {"remanence_ratio", t.orientation == detect::Orientation::InducedRemanent
+                                                   ? json(t.remanence_ratio)
+                                                   : json(nullptr)}});
     j["detection"] = {{"inclination_deg", d.field.inclination_deg},
                       {"declination_deg", d.field.declination_deg},
                       {"intensity_nT", d.field.intensity_nT},

@@ -68,7 +68,8 @@ TEST(DetectionConfig, ParsesAllSections) {
     EXPECT_DOUBLE_EQ(cfg.targets[0].mass_kg, 227.0);
     EXPECT_EQ(cfg.targets[1].orientation, Orientation::Induced);
     EXPECT_EQ(cfg.targets[2].model, ModelKind::Sphere);
-    EXPECT_EQ(cfg.targets[2].orientation, Orientation::Worst);  // the safe default
+    EXPECT_EQ(cfg.targets[2].orientation, Orientation::InducedRemanent);  // the default
+    EXPECT_DOUBLE_EQ(cfg.targets[2].remanence_ratio, kDefaultRemanenceRatio);
     EXPECT_DOUBLE_EQ(cfg.targets[2].burial_m, 0.5);
 }
 
