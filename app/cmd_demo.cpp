@@ -13,6 +13,7 @@
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/setup_gate.hpp"
 #include "common/line_framer.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
@@ -24,9 +25,40 @@ namespace sg::app {
 
 namespace {
 
+constexpr const char* kDefaultScenario = "replay_logs/demo/scenario.toml";
+constexpr const char* kDefaultConfig = "replay_logs/demo/survey.toml";
+
+// The demo files from any working folder: a path that exists as given is used; the default
+// paths are also looked up beside the executable (an installed share/swathguard/demo, or the
+// source tree above a build folder) and in the source tree the executable was built from.
+std::string findDemoFile(const std::string& given, const char* default_path) {
+    namespace fs = std::filesystem;
+    if (given != default_path || fs::exists(given)) return given;
+    const auto name = fs::path(given).filename();
+    std::vector<fs::path> candidates;
+    std::error_code ec;
+    const auto exe = fs::read_symlink("/proc/self/exe", ec);
+    if (!ec) {
+        const auto dir = exe.parent_path();
+        candidates.push_back(dir / "../share/swathguard/demo" / name);
+        candidates.push_back(dir / "../replay_logs/demo" / name);
+        candidates.push_back(dir / "../../replay_logs/demo" / name);
+    }
+#ifdef SG_SOURCE_DIR
+    candidates.push_back(fs::path(SG_SOURCE_DIR) / "replay_logs/demo" / name);
+#endif
+    for (const auto& c : candidates)
+        if (fs::exists(c)) return fs::weakly_canonical(c).string();
+    std::string tried;
+    for (const auto& c : candidates) tried += "\n  " + c.lexically_normal().string();
+    throw std::runtime_error(fmt::format("demo: cannot find {} (not in the working folder; tried:{}); pass "
+                                         "--scenario and --config",
+                                         given, tried));
+}
+
 struct DemoOptions {
-    std::string scenario = "replay_logs/demo/scenario.toml";
-    std::string config = "replay_logs/demo/survey.toml";
+    std::string scenario = kDefaultScenario;
+    std::string config = kDefaultConfig;
     std::string out_dir = "out/demo";
     std::uint64_t seed = 1;
     double duration_s = 0.0;
@@ -34,7 +66,10 @@ struct DemoOptions {
     ScreenArgs screen;
 };
 
-int runDemo(const DemoOptions& o) {
+int runDemo(const DemoOptions& opts) {
+    DemoOptions o = opts;
+    o.scenario = findDemoFile(o.scenario, kDefaultScenario);
+    o.config = findDemoFile(o.config, kDefaultConfig);
     const auto cfg = engine::loadSurveyConfig(o.config);
     auto scenario = sim::loadScenario(o.scenario);
     sim::SimOptions sim_opts;
@@ -139,6 +174,7 @@ int runDemo(const DemoOptions& o) {
     const auto written = engine::writeExports(summary, pipeline.engine(), o.out_dir);
     std::printf("log: %s\n", log_path.c_str());
     for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
+    const int covered_rc = nothingCoveredExit(summary, pipeline.engine(), "demo");
     std::printf("Coverage is a model's estimate. Clearance of unexploded ordnance follows the "
                 "project's risk assessment, local regulations and licensed specialists; the "
                 "master decides on navigation.\n");
@@ -150,7 +186,7 @@ int runDemo(const DemoOptions& o) {
             std::this_thread::sleep_for(std::chrono::milliseconds(200));
         }
     }
-    return 0;
+    return covered_rc;
     });
 }
 
@@ -166,7 +202,10 @@ void addDemoCommand(CLI::App& app) {
     cmd->add_option("--duration", o->duration_s, "Simulated seconds (default: the whole plan)");
     cmd->add_option("--speed", o->speed, "Simulated seconds per wall second, or max")->capture_default_str();
     addScreenOptions(*cmd, o->screen);
-    cmd->callback([o] { runDemo(*o); });
+    cmd->callback([o] {
+        const int rc = runDemo(*o);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

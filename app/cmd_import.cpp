@@ -1,6 +1,7 @@
 // `swathguard import`: builds a survey log from one capture file per instrument, merged by
 // instrument time, as if recorded live (see io/importer.hpp).
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -10,6 +11,9 @@
 #include "common/config_section.hpp"
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
+#include "app/setup_gate.hpp"
+#include "engine/setup_check.hpp"
+#include "engine/survey_config.hpp"
 #include "io/importer.hpp"
 
 namespace sg::app {
@@ -24,15 +28,11 @@ struct ImportOptions {
 };
 
 int runImport(const ImportOptions& o) {
-    std::ifstream in(o.config, std::ios::binary);
-    if (!in) throw std::runtime_error(fmt::format("{}: cannot read the config file", o.config));
-    std::stringstream text;
-    text << in.rdbuf();
-    const auto table = config::parseText(text.str(), o.config);
-    const config::Section root(table, o.config);
-    const auto inputs = config::parseInputs(root);
-    const auto maps = decode::parseFieldMaps(root);
-    const auto options = config::parseImport(root);
+    // The whole config, checked as for an import ([[input]] transport and path are not needed:
+    // --input gives the files).
+    engine::SurveyConfig cfg;
+    if (!printSetupReport(engine::checkConfigFile(o.config, engine::SetupUse::kImport, &cfg), "import"))
+        return kExitSetupError;
     std::vector<io::CaptureFile> files;
     for (const auto& s : o.inputs) {
         const auto eq = s.find('=');
@@ -40,8 +40,23 @@ int runImport(const ImportOptions& o) {
             throw std::runtime_error(fmt::format("--input '{}': expected NAME=PATH", s));
         files.push_back({s.substr(0, eq), s.substr(eq + 1)});
     }
-    const auto r = io::importCaptures(inputs, maps, files, options, o.log, text.str(), o.config,
-                                      o.accept_disagreement);
+    auto merged = io::mergeCaptures(cfg.inputs, cfg.fieldmaps, files, cfg.import);
+    // The merged data through the core before anything is written: sensor indices, pose inputs,
+    // and a run that would cover nothing are errors, and no log is left behind.
+    if (merged.problems.empty() || o.accept_disagreement) {  // (else not merged: exit 3 below)
+        engine::SetupReport report;
+        engine::DataCheckOptions opt;
+        opt.whole = true;
+        std::string names;
+        for (const auto& f : files) names += (names.empty() ? "" : ", ") + f.path;
+        engine::checkData(cfg, merged.lines, names, opt, report);
+        if (!printSetupReport(report, "import")) return kExitSetupError;
+    }
+    // The config's path is stored absolute so that `gaps`/`replay`/`report` find its plan files
+    // from any working folder.
+    const auto config_file = std::filesystem::absolute(o.config).lexically_normal().string();
+    const auto r = io::importMerged(std::move(merged), cfg.inputs, cfg.fieldmaps, o.log, cfg.text,
+                                    config_file, o.accept_disagreement);
     for (const auto& c : r.merged.captures)
         std::printf("%s: %zu lines (%zu with instrument time) from %s, clock shift %+.3f s\n",
                     c.input.c_str(), c.lines, c.timed_lines, c.path.c_str(), c.shift_s);

@@ -17,6 +17,7 @@
 #include "io/recorder.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_config.hpp"
 #include "io/status_line.hpp"
@@ -32,8 +33,19 @@ struct RecordOptions {
     ScreenArgs screen;
 };
 
+// Removes a log this run created that holds no line (a setup or start-up error), so no empty
+// log is left behind.
+void removeEmptyLog(const std::string& path, bool existed_before, std::uint64_t lines) {
+    if (existed_before || lines > 0) return;
+    std::error_code ec;
+    for (const char* suffix : {"", "-wal", "-shm"}) std::filesystem::remove(path + suffix, ec);
+}
+
 int runRecord(const RecordOptions& o) {
-    auto cfg = engine::loadSurveyConfig(o.config);
+    // Every config check before acquisition starts (and before the log is created).
+    engine::SurveyConfig cfg;
+    if (!printSetupReport(engine::checkConfigFile(o.config, engine::SetupUse::kRecord, &cfg), "record"))
+        return kExitSetupError;
     const auto root = cfg.root();
     if (cfg.inputs.empty()) root.fail("input", "at least one [[input]] table");
     // Relative paths in the config start at the config file's folder (cfg.dir); paths on the
@@ -48,10 +60,12 @@ int runRecord(const RecordOptions& o) {
     if (log_path.empty()) root.fail("log", "[log] path, or --log FILE");
 
     // The config's own path is stored absolute so replay finds the plan files it names.
+    const bool log_existed = std::filesystem::exists(log_path);
     io::LogWriter writer(log_path, {cfg.log.commit_interval_ms, true},
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()}});
     int exit_code = 0;
+    try {
     const int rc = runWithScreen(o.screen, "swathguard record", [&](ScreenLink& link) {
     io::asio::io_context ctx;
     io::Recorder rec(ctx, cfg, writer);
@@ -105,15 +119,25 @@ int runRecord(const RecordOptions& o) {
     ctx.run();
     rec.stop();
     writer.stop();
+    // Samples arrived but nothing was covered: a setup mistake, said with its reasons.
+    exit_code = nothingCoveredExit(rec.pipeline()->engine(), "record");
     return 0;
     });
     (void)rc;
+    } catch (...) {
+        writer.stop();
+        removeEmptyLog(log_path, log_existed, writer.stats().raw_committed);
+        throw;
+    }
     const auto st = writer.stats();
     std::printf("record: %llu lines in %s (%llu commits)%s\n",
                 static_cast<unsigned long long>(st.raw_committed), log_path.c_str(),
                 static_cast<unsigned long long>(st.commits),
                 st.last_error.empty() ? "" : (" LAST ERROR: " + st.last_error).c_str());
-    if (!st.last_error.empty()) exit_code = 2;
+    if (!st.last_error.empty()) {
+        std::fprintf(stderr, "record: error: %s\n", st.last_error.c_str());
+        exit_code = 2;
+    }
     return exit_code;
 }
 

@@ -13,6 +13,7 @@
 #include "app/commands.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
@@ -176,6 +177,7 @@ int runReplay(const ReplayOptions& o) {
 
 int runGaps(const ReplayOptions& o) {
     engine::LogReplay replay(o.log, configOverride(o));
+    if (!checkLogSetup(o.log, replay.config(), "gaps")) return kExitSetupError;
     replay.runToEnd();
     auto& eng = replay.pipeline().engine();
     auto summary = engine::summarise(eng, replay.linesFed(), replay.context());
@@ -189,7 +191,7 @@ int runGaps(const ReplayOptions& o) {
         std::printf("%s", engine::toText(summary).c_str());
         for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
     }
-    return 0;
+    return nothingCoveredExit(summary, eng, "gaps");
 }
 
 }  // namespace
@@ -211,7 +213,10 @@ void addReplayCommands(CLI::App& app) {
                      "Write gaps.geojson, gaps.csv, infill.geojson, infill.gpx, infill.csv here");
     gaps->add_flag("--json", go->json, "Print the summary as JSON");
     gaps->add_option("--config", go->config, "Survey config to use instead of the one in the log");
-    gaps->callback([go] { runGaps(*go); });
+    gaps->callback([go] {
+        const int rc = runGaps(*go);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

@@ -10,6 +10,7 @@
 #include <fmt/format.h>
 
 #include "app/commands.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/survey_summary.hpp"
 #include "report/site_report.hpp"
@@ -55,6 +56,7 @@ private:
 int runReport(const ReportOptions& o) {
     const auto wall0 = std::chrono::steady_clock::now();
     engine::LogReplay replay(o.log, o.config.empty() ? std::nullopt : std::optional<std::string>(o.config));
+    if (!checkLogSetup(o.log, replay.config(), "report")) return kExitSetupError;
     ProgressBar bar;
     // The replay is most of the work: 0..80 % of the bar.
     constexpr double kReplayShare = 0.8;
@@ -79,7 +81,7 @@ int runReport(const ReportOptions& o) {
                 res.files.size(), o.out.c_str(), secs(wall0, wall1), secs(wall0, wall_replayed),
                 static_cast<long long>(replay.linesFed()), secs(wall_replayed, wall1));
     for (const auto& f : res.files) std::printf("  %s\n", f.c_str());
-    return 0;
+    return nothingCoveredExit(summary, eng, "report");
 }
 
 }  // namespace
@@ -90,7 +92,10 @@ void addReportCommand(CLI::App& app) {
     cmd->add_option("log", o->log, "Survey log (SQLite)")->required()->check(CLI::ExistingFile);
     cmd->add_option("--out", o->out, "Folder to write the report into")->required();
     cmd->add_option("--config", o->config, "Survey config to use instead of the one in the log");
-    cmd->callback([o] { runReport(*o); });
+    cmd->callback([o] {
+        const int rc = runReport(*o);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

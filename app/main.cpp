@@ -1,12 +1,19 @@
 // swathguard: entry point. Parses the command line and runs one subcommand.
 #include <cstdio>
 #include <exception>
+#include <memory>
 
 #include <CLI/CLI.hpp>
+#include <spdlog/sinks/stdout_color_sinks.h>
+#include <spdlog/spdlog.h>
 
 #include "app/commands.hpp"
 
 int main(int argc, char** argv) {
+    // Log messages (input lost/restored, writer errors) are warnings and errors: stderr, apart
+    // from the status lines on stdout.
+    spdlog::set_default_logger(
+        std::make_shared<spdlog::logger>("", std::make_shared<spdlog::sinks::stderr_color_sink_mt>()));
     CLI::App app{"swathguard: live magnetometer survey coverage, checks, gaps and infill"};
     app.set_version_flag("--version", "swathguard 0.1.0");
     app.require_subcommand(1);
@@ -18,6 +25,7 @@ int main(int argc, char** argv) {
     sg::app::addReplayCommands(app);
     sg::app::addDemoCommand(app);
     sg::app::addReportCommand(app);
+    sg::app::addCheckCommand(app);
 
     try {
         app.parse(argc, argv);

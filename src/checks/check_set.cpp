@@ -41,6 +41,16 @@ const std::vector<CheckSpec>& catalogue() {
         {"signal_quality", "%", "magnetometer signal quality", below(60.0, 40.0, 2.0, 1.0)},
         {"forming_gap", "m", "width of the strip left unseen beside the neighbouring run",
          above(0.5, 2.0, 0.2, 2.0)},
+        // Setup checks: a wrong configuration is an alarm within seconds, never a silent 0 %.
+        {"unknown_sensor", "sensors",
+         "magnetometer sensor indices in the strings with no [[sensor]] (seen in the last 5 s)",
+         above(0.5, 0.5, 0.0, 1.0)},
+        {"pose_inputs", "s",
+         "time magnetometer samples have arrived without a value their position needs (first "
+         "fix, heading, cable out, sensor depth, any altitude)",
+         above(1.0, 3.0, 0.0, 0.0)},
+        {"crs_area", "deg", "distance of the fixes outside the survey CRS's area of use",
+         above(0.5, 3.0, 0.0, 0.0)},
     };
     return specs;
 }
@@ -111,7 +121,8 @@ const Check& CheckSet::check(std::string_view name) const {
     return const_cast<CheckSet*>(this)->find(name);
 }
 
-void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> value) {
+void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> value,
+                      std::string_view detail) {
     Check& c = find(name);
     const std::size_t idx = static_cast<std::size_t>(&c - m_checks.data());
     const Level before = c.level();
@@ -127,6 +138,7 @@ void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> 
         }
         if (now > ep.peak_level) {
             ep.peak_level = now;
+            if (!detail.empty()) ep.detail = std::string(detail);
             m_changes.push_back({EpisodeChange::Kind::kEscalated, ep});
         }
         if (now == Level::kOk) {
@@ -141,6 +153,7 @@ void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> 
         ep.peak_level = now;
         ep.peak_value = value.value_or(0.0);
         ep.id = m_episodes.size() + 1;
+        ep.detail = std::string(detail);
         m_episodes.push_back(ep);
         open = m_episodes.size() - 1;
         m_changes.push_back({EpisodeChange::Kind::kStarted, ep});

@@ -60,7 +60,11 @@ std::vector<InputConfig> parseInputs(const Section& root) {
             s.fail("fieldmap", "no fieldmap for kind \"nmea\"");
         }
         c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
-        const std::string tr = s.choice("transport", {"serial", "udp", "tcp", "file"});
+        // transport may be left out for an input that is only imported (`import --input NAME=PATH`
+        // gives the file); `record` refuses such an input (engine::checkConfig).
+        c.transport_given = s.has("transport");
+        const std::string tr = c.transport_given ? s.choice("transport", {"serial", "udp", "tcp", "file"})
+                                                 : std::string("none");
         // Keys of another transport are rejected too: they are almost always a mistake.
         auto onlyFor = [&](std::initializer_list<std::string_view> keys, std::string_view t) {
             for (auto k : keys)
@@ -89,10 +93,12 @@ std::vector<InputConfig> parseInputs(const Section& root) {
             c.reconnect_max_s = s.number("reconnect_max_s", 0.01, 3600.0, 10.0);
             if (c.reconnect_max_s < c.reconnect_min_s)
                 s.fail("reconnect_max_s", "a value >= reconnect_min_s");
-        } else {
+        } else if (tr == "file") {
             c.transport = Transport::File;
             c.path = s.string("path");
             c.follow = s.boolean("follow", false);
+        } else {
+            c.transport = Transport::File;  // no transport: path stays empty (import only)
         }
         c.clock = s.choice("clock", {"receive", "instrument"}, "receive") == "receive"
                       ? ClockSource::Receive

@@ -38,6 +38,7 @@ struct InputConfig {
     double reconnect_min_s = 0.5;   // first retry delay after a loss, seconds
     double reconnect_max_s = 10.0;  // the backoff doubles up to this, seconds
     std::string path;           // transport file
+    bool transport_given = true;  // false: no transport key (an input that is only imported)
     bool follow = false;        // file: keep reading as the file grows
     ClockSource clock = ClockSource::Receive;
     double latency_ms = 0.0;    // fixed delay between the instrument's measurement and the line

@@ -52,11 +52,20 @@ struct SensorState {
 // Why samples covered nothing, counted (a sample can have several reasons).
 struct InvalidCounts {
     std::uint64_t no_field = 0;      // dropout or field missing
-    std::uint64_t pose = 0;          // no/stale fix, no heading, no cable, ...
+    std::uint64_t pose = 0;          // no/stale fix, no heading, no cable, ... (any of the below)
     std::uint64_t no_altitude = 0;
     std::uint64_t noise_warmup = 0;  // noise window not filled yet after a (re)start
     std::uint64_t noisy = 0;         // noise above the alarm limit
     std::uint64_t low_quality = 0;   // signal quality below the alarm limit
+    // The pose reasons apart (a sample may have several):
+    std::uint64_t pose_no_fix = 0;          // no position fix yet (or every fix refused)
+    std::uint64_t pose_stale_fix = 0;       // fix too old or a hole in the fixes
+    std::uint64_t pose_no_heading = 0;
+    std::uint64_t pose_no_cable_out = 0;    // no cable counter, no [tow] cable_out_m
+    std::uint64_t pose_no_sensor_depth = 0; // no depth field, no [tow] sensor_depth_m
+    std::uint64_t pose_other = 0;           // cable shorter than the drop, layback past history
+    // Samples of sensor indices with no [[sensor]]: never processed, counted here.
+    std::uint64_t unknown_sensor = 0;
 };
 
 class SurveyEngine {
@@ -113,6 +122,16 @@ public:
     const checks::CheckSet& checks() const { return m_checks; }
     const std::vector<SensorState>& sensors() const { return m_sensors; }
     const InvalidCounts& invalidCounts() const { return m_invalid; }
+    // Samples by sensor index that matches no [[sensor]] (index -> samples).
+    const std::map<int, std::uint64_t>& unknownSensorSamples() const { return m_unknown_samples; }
+    // Samples that carried a total-field value, over every sensor (configured or not).
+    std::uint64_t fieldSamples() const { return m_field_samples; }
+    // Why fixes were refused: the first fix lies far outside the survey CRS's area of use
+    // (empty when every fix was used).
+    const std::string& crsProblem() const { return m_crs_problem; }
+    // The vessel's (antenna) track in the survey CRS, one point every few metres: where the
+    // vessel went, whether or not its samples could be used.
+    const std::vector<coverage::Point>& vesselTrack() const { return m_track; }
     const detect::TargetModel& coverageModel() const { return m_models[m_coverage_model]; }
     const std::vector<detect::TargetModel>& models() const { return m_models; }
     std::optional<double> speed_mps() const { return m_speed; }
@@ -143,6 +162,8 @@ private:
     double planningThreshold_nT() const;
     void drainEpisodes();
     double magSilence_s(TimeNs at) const;
+    void updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::SensorPose& pose);
+    void countPoseReasons(std::uint32_t flags);
 
     SurveyConfig m_cfg;
     std::function<std::int64_t()> m_next_event_id;
@@ -176,6 +197,17 @@ private:
     std::function<void(const SensorState&)> m_observer;
     std::optional<coverage::Point> m_vessel_pos;
     log::Batch m_rows;
+
+    // Setup checks (unknown_sensor, pose_inputs, crs_area).
+    std::map<int, std::uint64_t> m_unknown_samples;
+    std::map<int, TimeNs> m_unknown_last_ns;          // unknown index -> its latest sample time
+    std::vector<std::optional<TimeNs>> m_pose_bad_since;  // per slot: start of the setup problem
+    std::vector<double> m_pose_bad_s;                 // per slot: its length at the last sample
+    std::uint64_t m_field_samples = 0;
+    bool m_crs_checked = false;
+    bool m_crs_refused = false;
+    std::string m_crs_problem;
+    std::vector<coverage::Point> m_track;
 };
 
 }  // namespace sg::engine
