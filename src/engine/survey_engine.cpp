@@ -30,7 +30,7 @@ constexpr int kMaxSilenceSteps = 120;
 constexpr double kCrsRefuseOutside_deg = 3.0;
 // An unconfigured sensor index counts for the unknown_sensor check this long after its sample.
 constexpr TimeNs kUnknownSensorWindowNs = 5 * kNsPerSecond;
-// Vessel track kept for the gap causes: one point every this many metres.
+// Vessel track of unplaceable samples kept for the gap causes: one point every this many metres.
 constexpr double kTrackStep_m = 5.0;
 // Pose flags that point at the setup (a value the position needs was never there).
 constexpr std::uint32_t kSetupPoseFlags = nav::kNoFix | nav::kNoHeading | nav::kNoCableOut |
@@ -164,12 +164,7 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
         return;
     }
     const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
-    if (std::isfinite(en.easting_m)) {
-        m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
-        if (m_track.empty() || std::hypot(en.easting_m - m_track.back().e_m,
-                                          en.northing_m - m_track.back().n_m) >= kTrackStep_m)
-            m_track.push_back(*m_vessel_pos);
-    }
+    if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
     // Silence is measured on the receive clock (instrument clocks may be offset or replayed).
     m_last_fix_ns = m_clock_ns;
     m_checks.update("gnss_silence", m_clock_ns, 0.0);
@@ -184,6 +179,7 @@ void SurveyEngine::onSpeed(TimeNs t_ns, double sog_mps) {
 }
 
 void SurveyEngine::onHeading(TimeNs t_ns, double true_heading_deg) {
+    m_seen_heading = true;
     if (m_positioner) m_positioner->addHeading(t_ns, true_heading_deg);
 }
 
@@ -200,6 +196,7 @@ void SurveyEngine::onPositionError(TimeNs t_ns, double horizontal_error_m) {
 }
 
 void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m) {
+    m_seen_cable = true;
     if (m_positioner) m_positioner->addCableOut(t_ns, cable_out_m);
 }
 
@@ -208,6 +205,7 @@ void SurveyEngine::onAltitude(TimeNs t_ns, double altitude_m) {
 }
 
 void SurveyEngine::onSensorDepth(TimeNs t_ns, double depth_m) {
+    m_seen_depth = true;
     if (m_positioner) m_positioner->addSensorDepth(t_ns, depth_m);
 }
 
@@ -252,6 +250,7 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     if (m_positioner) {
         // One fish carries the array: its depth and altitude come with every sensor's string.
         if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
+        if (depth_m) m_seen_depth = true;
         if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
     }
     SensorState& s = m_sensors[slot];
@@ -303,6 +302,11 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns) {
         countPoseReasons(s.pose.flags);
     }
     updateSetupChecks(slot, t_ns, s.pose);
+    // Where the vessel was while its samples could not be placed (no line run records that).
+    if (slot == 0 && m_vessel_pos && (!s.pose.ok() || s.pose.altitude_source == nav::AltitudeSource::None) &&
+        (m_track.empty() ||
+         std::hypot(m_vessel_pos->e_m - m_track.back().e_m, m_vessel_pos->n_m - m_track.back().n_m) >= kTrackStep_m))
+        m_track.push_back(*m_vessel_pos);
     if (s.pose.altitude_source == nav::AltitudeSource::None) {
         valid = false;
         ++m_invalid.no_altitude;
@@ -468,7 +472,14 @@ void SurveyEngine::countPoseReasons(std::uint32_t flags) {
 void SurveyEngine::updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::SensorPose& pose) {
     // A value the position needs that is missing: a first fix, a heading, cable out, sensor
     // depth, or any altitude at all since the start (a later loss is the altitude_lost check).
+    // Only inputs that never arrived count (a start-up transient, e.g. the fish still laid back
+    // over track sailed before the first heading, or a value that later goes stale, is not a
+    // setup problem; the silence checks watch data that stops).
     std::uint32_t missing = pose.flags & kSetupPoseFlags;
+    if (m_seen_heading || m_cfg.nav.vessel.heading_source != nav::HeadingSource::Hdt)
+        missing &= ~static_cast<std::uint32_t>(nav::kNoHeading);
+    if (m_seen_cable) missing &= ~static_cast<std::uint32_t>(nav::kNoCableOut);
+    if (m_seen_depth) missing &= ~static_cast<std::uint32_t>(nav::kNoSensorDepth);
     const bool never_altitude = pose.altitude_source == nav::AltitudeSource::None && !m_last_altitude_ns;
     auto& since = m_pose_bad_since[slot];
     if (missing == 0 && !never_altitude) {

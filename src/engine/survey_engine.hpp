@@ -129,8 +129,8 @@ public:
     // Why fixes were refused: the first fix lies far outside the survey CRS's area of use
     // (empty when every fix was used).
     const std::string& crsProblem() const { return m_crs_problem; }
-    // The vessel's (antenna) track in the survey CRS, one point every few metres: where the
-    // vessel went, whether or not its samples could be used.
+    // The vessel's (antenna) positions, one every few metres, while its samples could not be
+    // placed (pose problem or no altitude): ground run over that no line run records.
     const std::vector<coverage::Point>& vesselTrack() const { return m_track; }
     const detect::TargetModel& coverageModel() const { return m_models[m_coverage_model]; }
     const std::vector<detect::TargetModel>& models() const { return m_models; }
@@ -204,6 +204,9 @@ private:
     std::vector<std::optional<TimeNs>> m_pose_bad_since;  // per slot: start of the setup problem
     std::vector<double> m_pose_bad_s;                 // per slot: its length at the last sample
     std::uint64_t m_field_samples = 0;
+    bool m_seen_heading = false;  // an HDT arrived
+    bool m_seen_cable = false;    // a cable-out value arrived
+    bool m_seen_depth = false;    // a sensor depth arrived
     bool m_crs_checked = false;
     bool m_crs_refused = false;
     std::string m_crs_problem;

@@ -118,10 +118,12 @@ std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m,
         if (gc.passes.empty()) {
             // No line run passed; but the vessel may have gone by with samples that could not be
             // used (a broken setup): that is not "ground not run over".
+            // Within the planned half-width of a stretch the vessel ran with unplaceable samples:
+            // the swath would have covered it.
             double nearest = std::numeric_limits<double>::infinity();
             for (const auto& p : track) nearest = std::min(nearest, std::hypot(p.e_m - c.e_m, p.n_m - c.n_m));
-            const double half_extent = 0.5 * std::max(g.along_length_m, g.across_width_m);
-            if (nearest <= reach + half_extent) {
+            const double swath_reach = std::max(s.detection.planned_half_width_m, s.cell_size_m);
+            if (nearest <= swath_reach) {
                 const auto reasons = invalidReasonsText(s.invalid);
                 text = fmt::format("the vessel passed {:.0f} m from its centre but no usable magnetometer sample "
                                    "covered it (samples unusable: {}): ground run over with a setup or data "
