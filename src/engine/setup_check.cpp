@@ -61,9 +61,14 @@ void checkPose(const SurveyConfig& cfg, SetupReport& out) {
     const auto& f = cfg.file;
     const auto& tow = cfg.nav.tow;
     const auto& vessel = cfg.nav.vessel;
-    if (!hasRole(cfg, "mag"))
-        out.error(f, "[[input]] role", "no [[input]] has role = \"mag\": no magnetometer data will be used",
-                  "add the magnetometer as an [[input]] with role = \"mag\" and its field map");
+    if (!hasRole(cfg, "mag")) {
+        // Logging only (e.g. a GNSS stream alone): nothing to place, so nothing the position
+        // needs is demanded; said as a warning, since no coverage can come of it.
+        out.warning(f, "[[input]] role",
+                    "no [[input]] has role = \"mag\": the lines are logged, but no coverage can be computed",
+                    "add the magnetometer as an [[input]] with role = \"mag\" and its field map");
+        return;
+    }
     if (!hasRole(cfg, "gnss"))
         out.error(f, "[[input]] role", "no [[input]] has role = \"gnss\": the samples can never be placed",
                   "add the GNSS receiver as an [[input]] with role = \"gnss\"");
