@@ -18,6 +18,7 @@
 #include "drivers_sim/route_file.hpp"
 #include "site/session_summary.hpp"
 #include "site/site_config.hpp"
+#include "app/setup_gate.hpp"
 #include "common/line_framer.hpp"
 #include "drivers_sim/simulator.hpp"
 #include "engine/pipeline.hpp"
@@ -29,9 +30,40 @@ namespace sg::app {
 
 namespace {
 
+constexpr const char* kDefaultScenario = "replay_logs/demo/scenario.toml";
+constexpr const char* kDefaultConfig = "replay_logs/demo/survey.toml";
+
+// The demo files from any working folder: a path that exists as given is used; the default
+// paths are also looked up beside the executable (an installed share/swathguard/demo, or the
+// source tree above a build folder) and in the source tree the executable was built from.
+std::string findDemoFile(const std::string& given, const char* default_path) {
+    namespace fs = std::filesystem;
+    if (given != default_path || fs::exists(given)) return given;
+    const auto name = fs::path(given).filename();
+    std::vector<fs::path> candidates;
+    std::error_code ec;
+    const auto exe = fs::read_symlink("/proc/self/exe", ec);
+    if (!ec) {
+        const auto dir = exe.parent_path();
+        candidates.push_back(dir / "../share/swathguard/demo" / name);
+        candidates.push_back(dir / "../replay_logs/demo" / name);
+        candidates.push_back(dir / "../../replay_logs/demo" / name);
+    }
+#ifdef SG_SOURCE_DIR
+    candidates.push_back(fs::path(SG_SOURCE_DIR) / "replay_logs/demo" / name);
+#endif
+    for (const auto& c : candidates)
+        if (fs::exists(c)) return fs::weakly_canonical(c).string();
+    std::string tried;
+    for (const auto& c : candidates) tried += "\n  " + c.lexically_normal().string();
+    throw std::runtime_error(fmt::format("demo: cannot find {} (not in the working folder; tried:{}); pass "
+                                         "--scenario and --config",
+                                         given, tried));
+}
+
 struct DemoOptions {
-    std::string scenario = "replay_logs/demo/scenario.toml";
-    std::string config = "replay_logs/demo/survey.toml";
+    std::string scenario = kDefaultScenario;
+    std::string config = kDefaultConfig;
     std::string out_dir = "out/demo";
     std::uint64_t seed = 1;
     double duration_s = 0.0;
@@ -49,7 +81,10 @@ struct DemoOptions {
     std::string start;
 };
 
-int runDemo(const DemoOptions& o) {
+int runDemo(const DemoOptions& opts) {
+    DemoOptions o = opts;
+    o.scenario = findDemoFile(o.scenario, kDefaultScenario);
+    o.config = findDemoFile(o.config, kDefaultConfig);
     const auto cfg = engine::loadSurveyConfig(o.config);
     auto scenario = sim::loadScenario(o.scenario);
     if (!o.route.empty()) sim::loadRoute(o.route, scenario);
@@ -194,6 +229,7 @@ int runDemo(const DemoOptions& o) {
     const auto written = engine::writeExports(summary, pipeline.engine(), o.out_dir);
     std::printf("log: %s\n", log_path.c_str());
     for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
+    const int covered_rc = nothingCoveredExit(summary, pipeline.engine(), "demo");
     std::printf("Coverage is a model's estimate. Clearance of unexploded ordnance follows the "
                 "project's risk assessment, local regulations and licensed specialists; the "
                 "master decides on navigation.\n");
@@ -205,7 +241,7 @@ int runDemo(const DemoOptions& o) {
             std::this_thread::sleep_for(std::chrono::milliseconds(200));
         }
     }
-    return 0;
+    return covered_rc;
     });
 }
 
@@ -229,7 +265,10 @@ void addDemoCommand(CLI::App& app) {
     cmd->add_flag("--no-faults", o->no_faults, "Leave out the scenario's faults");
     cmd->add_option("--start", o->start, "Simulated start (UTC, e.g. 2026-06-15T08:00:00Z)");
     addScreenOptions(*cmd, o->screen);
-    cmd->callback([o] { runDemo(*o); });
+    cmd->callback([o] {
+        const int rc = runDemo(*o);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

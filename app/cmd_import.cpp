@@ -14,8 +14,10 @@
 #include "common/config_section.hpp"
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
-#include "io/importer.hpp"
+#include "app/setup_gate.hpp"
+#include "engine/setup_check.hpp"
 #include "engine/survey_config.hpp"
+#include "io/importer.hpp"
 #include "site/session_summary.hpp"
 #include "site/site.hpp"
 #include "site/site_config.hpp"
@@ -33,16 +35,13 @@ struct ImportOptions {
 };
 
 int runImport(const ImportOptions& o) {
-    std::ifstream in(o.config, std::ios::binary);
-    if (!in) throw std::runtime_error(fmt::format("{}: cannot read the config file", o.config));
-    std::stringstream text;
-    text << in.rdbuf();
-    const auto table = config::parseText(text.str(), o.config);
-    const config::Section root(table, o.config);
-    // Transport keys are optional here: a capture file stands for the transport.
-    const auto inputs = config::parseInputs(root, config::InputUse::Offline);
-    const auto maps = decode::parseFieldMaps(root);
-    const auto options = config::parseImport(root);
+    // The whole config, checked as for an import ([[input]] transport and path are not needed:
+    // --input gives the files).
+    engine::SurveyConfig cfg;
+    if (!printSetupReport(engine::checkConfigFile(o.config, engine::SetupUse::kImport, &cfg), "import"))
+        return kExitSetupError;
+    const config::Section root = cfg.root();
+    const auto& inputs = cfg.inputs;
 
     std::map<std::string, std::string> given;  // NAME -> PATH from --input
     for (const auto& s : o.inputs) {
@@ -64,7 +63,6 @@ int runImport(const ImportOptions& o) {
     if (!o.site.empty()) {
         if (!o.log.empty()) throw std::runtime_error("--log and --site: a site names its logs itself (SITE/logs/)");
         // The same rule as record --site: the site-wide keys must match the site's config.
-        const auto cfg = engine::loadSurveyConfig(o.config, config::InputUse::Offline);
         const auto site = site::discoverSite({o.site}, std::nullopt);
         const engine::SurveyConfig* ref = site.config_in_force ? &*site.config_in_force : nullptr;
         for (const auto& l : site.logs)
@@ -120,8 +118,23 @@ int runImport(const ImportOptions& o) {
         throw std::runtime_error(fmt::format(
             "nothing to import: give --input NAME=PATH for the inputs of {}", o.config));
 
-    const auto r = io::importCaptures(inputs, maps, files, options, log_path, text.str(), o.config,
-                                      o.accept_disagreement);
+    auto merged = io::mergeCaptures(cfg.inputs, cfg.fieldmaps, files, cfg.import);
+    // The merged data through the core before anything is written: sensor indices, pose inputs,
+    // and a run that would cover nothing are errors, and no log is left behind.
+    if (merged.problems.empty() || o.accept_disagreement) {  // (else not merged: exit 3 below)
+        engine::SetupReport report;
+        engine::DataCheckOptions opt;
+        opt.whole = true;
+        std::string names;
+        for (const auto& f : files) names += (names.empty() ? "" : ", ") + f.path;
+        engine::checkData(cfg, merged.lines, names, opt, report);
+        if (!printSetupReport(report, "import")) return kExitSetupError;
+    }
+    // The config's path is stored absolute so that `gaps`/`replay`/`report` find its plan files
+    // from any working folder.
+    const auto config_file = std::filesystem::absolute(o.config).lexically_normal().string();
+    const auto r = io::importMerged(std::move(merged), cfg.inputs, cfg.fieldmaps, log_path, cfg.text,
+                                    config_file, o.accept_disagreement);
     auto originOf = [&](const std::string& input) {
         for (const auto& f : files)
             if (f.input == input) return f.origin;
@@ -147,7 +160,7 @@ int runImport(const ImportOptions& o) {
     std::printf("import: %llu lines written to %s\n", static_cast<unsigned long long>(r.raw_lines),
                 log_path.c_str());
     if (!o.site.empty()) {
-        const auto sum = site::buildSessionSummary(log_path, engine::loadSurveyConfig(o.config, config::InputUse::Offline));
+        const auto sum = site::buildSessionSummary(log_path, cfg);
         site::writeSessionSummary(site::summaryPathFor(log_path), sum);
         std::printf("import: session summary %s\n", site::summaryPathFor(log_path).c_str());
     }

@@ -21,6 +21,7 @@
 #include "io/sources.hpp"
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_config.hpp"
 #include "io/status_line.hpp"
@@ -37,6 +38,14 @@ struct RecordOptions {
     ScreenArgs screen;
 };
 
+// Removes a log this run created that holds no line (a setup or start-up error), so no empty
+// log is left behind.
+void removeEmptyLog(const std::string& path, bool existed_before, std::uint64_t lines) {
+    if (existed_before || lines > 0) return;
+    std::error_code ec;
+    for (const char* suffix : {"", "-wal", "-shm"}) std::filesystem::remove(path + suffix, ec);
+}
+
 int runRecord(RecordOptions o) {
     std::optional<site::Site> site;
     if (!o.site.empty()) {
@@ -50,7 +59,10 @@ int runRecord(RecordOptions o) {
         if (!o.log.empty()) throw config::ConfigError("--log and --site: a site names its logs itself (SITE/logs/)");
     }
     if (o.config.empty()) throw config::ConfigError("--config FILE (or --site DIR holding survey.toml) is required");
-    auto cfg = engine::loadSurveyConfig(o.config);
+    // Every config check before acquisition starts (and before the log is created).
+    engine::SurveyConfig cfg;
+    if (!printSetupReport(engine::checkConfigFile(o.config, engine::SetupUse::kRecord, &cfg), "record"))
+        return kExitSetupError;
     if (!o.site.empty()) {
         std::filesystem::create_directories(o.site);
         // Before the first new line: every earlier log of the site, summarised (on every core).
@@ -84,6 +96,7 @@ int runRecord(RecordOptions o) {
     // A UDP port another process holds ends the run here, before a log is created.
     io::checkUdpPortsFree(cfg.inputs);
     // The config's own path is stored absolute so replay finds the plan files it names.
+    const bool log_existed = std::filesystem::exists(log_path);
     io::LogWriterOptions wopt;
     wopt.commit_interval_ms = cfg.log.commit_interval_ms;
     wopt.queue_limit_bytes = static_cast<std::size_t>(cfg.log.queue_limit_mb * 1024.0 * 1024.0);
@@ -92,6 +105,7 @@ int runRecord(RecordOptions o) {
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()}});
     int exit_code = 0;
+    try {
     const int rc = runWithScreen(o.screen, "swathguard record", [&](ScreenLink& link) {
     io::asio::io_context ctx;
     io::Recorder rec(ctx, cfg, writer);
@@ -165,9 +179,16 @@ int runRecord(RecordOptions o) {
             std::fprintf(stderr, "record: input '%s': %llu datagrams dropped by the kernel before "
                                  "they were read (not in the log)\n",
                          s->name().c_str(), static_cast<unsigned long long>(s->dropped()));
+    // Samples arrived but nothing was covered: a setup mistake, said with its reasons.
+    exit_code = nothingCoveredExit(rec.pipeline()->engine(), "record");
     return 0;
     });
     (void)rc;
+    } catch (...) {
+        writer.stop();
+        removeEmptyLog(log_path, log_existed, writer.stats().raw_committed);
+        throw;
+    }
     const auto st = writer.stats();
     std::printf("record: %llu lines in %s (%llu commits)\n",
                 static_cast<unsigned long long>(st.raw_committed), log_path.c_str(),

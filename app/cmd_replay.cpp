@@ -14,6 +14,7 @@
 #include "app/engine_status.hpp"
 #include "app/screen_session.hpp"
 #include "app/site_open.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
@@ -209,6 +210,7 @@ int runGaps(const ReplayOptions& o) {
         summary = std::move(view.summary);
     } else {
         replay = std::make_unique<engine::LogReplay>(o.logs.front(), configOverride(o));
+        if (!checkLogSetup(o.logs.front(), replay->config(), "gaps")) return kExitSetupError;
         replay->runToEnd();
         eng = &replay->pipeline().engine();
         summary = engine::summarise(*eng, replay->linesFed(), replay->context());
@@ -224,7 +226,7 @@ int runGaps(const ReplayOptions& o) {
         std::printf("%s", engine::toText(summary).c_str());
         for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
     }
-    return 0;
+    return nothingCoveredExit(summary, *eng, "gaps");
 }
 
 }  // namespace
@@ -248,7 +250,10 @@ void addReplayCommands(CLI::App& app) {
                      "Write gaps.geojson, gaps.csv, infill.geojson, infill.gpx, infill.csv here");
     gaps->add_flag("--json", go->json, "Print the summary as JSON");
     gaps->add_option("--config", go->config, "Survey config to use instead of the one in the log");
-    gaps->callback([go] { runGaps(*go); });
+    gaps->callback([go] {
+        const int rc = runGaps(*go);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

@@ -11,6 +11,7 @@
 
 #include "app/commands.hpp"
 #include "app/site_open.hpp"
+#include "app/setup_gate.hpp"
 #include "engine/log_replay.hpp"
 #include "engine/survey_summary.hpp"
 #include "report/site_report.hpp"
@@ -77,6 +78,7 @@ int runReport(const ReportOptions& o) {
     if (namesSite(o.logs)) return runSiteReport(o);
     const auto wall0 = std::chrono::steady_clock::now();
     engine::LogReplay replay(o.logs.front(), o.config.empty() ? std::nullopt : std::optional<std::string>(o.config));
+    if (!checkLogSetup(o.logs.front(), replay.config(), "report")) return kExitSetupError;
     ProgressBar bar;
     // The replay is most of the work: 0..80 % of the bar.
     constexpr double kReplayShare = 0.8;
@@ -101,7 +103,7 @@ int runReport(const ReportOptions& o) {
                 res.files.size(), o.out.c_str(), secs(wall0, wall1), secs(wall0, wall_replayed),
                 static_cast<long long>(replay.linesFed()), secs(wall_replayed, wall1));
     for (const auto& f : res.files) std::printf("  %s\n", f.c_str());
-    return 0;
+    return nothingCoveredExit(summary, eng, "report");
 }
 
 }  // namespace
@@ -113,7 +115,10 @@ void addReportCommand(CLI::App& app) {
         ->required()->check(CLI::ExistingPath);
     cmd->add_option("--out", o->out, "Folder to write the report into")->required();
     cmd->add_option("--config", o->config, "Survey config to use instead of the one in the log");
-    cmd->callback([o] { runReport(*o); });
+    cmd->callback([o] {
+        const int rc = runReport(*o);
+        if (rc != 0) throw CLI::RuntimeError(rc);
+    });
 }
 
 }  // namespace sg::app

@@ -16,5 +16,6 @@ void addInspectCommand(CLI::App& app);  // cmd_inspect.cpp: decode a capture fil
 void addReplayCommands(CLI::App& app);  // cmd_replay.cpp: replay and gaps
 void addDemoCommand(CLI::App& app);     // cmd_demo.cpp: simulator -> core in one process
 void addReportCommand(CLI::App& app);   // cmd_report.cpp: the end-of-site report
+void addCheckCommand(CLI::App& app);    // cmd_check.cpp: setup validation before a run
 
 }  // namespace sg::app

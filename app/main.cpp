@@ -1,6 +1,7 @@
 // swathguard: entry point. Parses the command line and runs one subcommand.
 #include <cstdio>
 #include <exception>
+#include <memory>
 
 #include <CLI/CLI.hpp>
 #include <spdlog/sinks/stdout_color_sinks.h>
@@ -22,6 +23,7 @@ int main(int argc, char** argv) {
     sg::app::addReplayCommands(app);
     sg::app::addDemoCommand(app);
     sg::app::addReportCommand(app);
+    sg::app::addCheckCommand(app);
 
     try {
         app.parse(argc, argv);

@@ -79,7 +79,7 @@ int runWithScreen(const ScreenArgs& args, const std::string& title,
             if (!args.screenshot.empty()) std::printf("screenshot: %s\n", args.screenshot.c_str());
             return rc;
         }
-        std::printf("screen: not shown (%s); running headless\n", why.c_str());
+        std::fprintf(stderr, "screen: not shown (%s); running headless\n", why.c_str());
     }
 #else
     if (!args.headless) std::printf("screen: this build has no screen; running headless\n");

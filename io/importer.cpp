@@ -367,8 +367,16 @@ ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
                             const config::ImportConfig& options, const std::string& log_path,
                             const std::string& config_text, const std::string& config_file,
                             bool accept_disagreement) {
+    return importMerged(mergeCaptures(inputs, maps, files, options), inputs, maps, log_path,
+                        config_text, config_file, accept_disagreement);
+}
+
+ImportResult importMerged(MergedCaptures merged, const std::vector<config::InputConfig>& inputs,
+                          const std::vector<decode::FieldMap>& maps, const std::string& log_path,
+                          const std::string& config_text, const std::string& config_file,
+                          bool accept_disagreement) {
     ImportResult res;
-    res.merged = mergeCaptures(inputs, maps, files, options);
+    res.merged = std::move(merged);
     if (!res.merged.problems.empty() && !accept_disagreement) return res;
 
     log::LogStore store(log_path, log::OpenMode::Create, log::StoreOptions{false});

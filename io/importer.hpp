@@ -75,4 +75,10 @@ ImportResult importCaptures(const std::vector<config::InputConfig>& inputs,
                             const std::string& config_text, const std::string& config_file,
                             bool accept_disagreement);
 
+// The writing half of importCaptures, for merged captures the caller has checked first.
+ImportResult importMerged(MergedCaptures merged, const std::vector<config::InputConfig>& inputs,
+                          const std::vector<decode::FieldMap>& maps, const std::string& log_path,
+                          const std::string& config_text, const std::string& config_file,
+                          bool accept_disagreement);
+
 }  // namespace sg::io

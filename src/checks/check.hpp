@@ -46,6 +46,7 @@ struct Episode {
     double peak_value = 0.0;
     std::optional<TimeNs> ack_ns;  // when the operator acknowledged it
     std::uint64_t id = 0;          // unique within a CheckSet, in order of start
+    std::string detail;            // what exactly is wrong, for checks that say more than a value
 };
 
 class Check {

@@ -44,6 +44,16 @@ const std::vector<CheckSpec>& catalogue() {
         // Any datagram the kernel dropped is data lost before it reached the log.
         {"input_drops", "datagrams", "datagrams dropped by the kernel in the last 10 s (UDP inputs)",
          above(0.5, 0.5, 0.0, 0.0)},
+        // Setup checks: a wrong configuration is an alarm within seconds, never a silent 0 %.
+        {"unknown_sensor", "sensors",
+         "magnetometer sensor indices in the strings with no [[sensor]] (seen in the last 5 s)",
+         above(0.5, 0.5, 0.0, 1.0)},
+        {"pose_inputs", "s",
+         "time magnetometer samples have arrived without a value their position needs (first "
+         "fix, HDT, cable out, sensor depth, altitude) that never arrived",
+         above(2.0, 3.0, 0.0, 0.0)},
+        {"crs_area", "deg", "distance of the fixes outside the survey CRS's area of use",
+         above(0.5, 3.0, 0.0, 0.0)},
     };
     return specs;
 }
@@ -114,7 +124,8 @@ const Check& CheckSet::check(std::string_view name) const {
     return const_cast<CheckSet*>(this)->find(name);
 }
 
-void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> value) {
+void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> value,
+                      std::string_view detail) {
     Check& c = find(name);
     const std::size_t idx = static_cast<std::size_t>(&c - m_checks.data());
     const Level before = c.level();
@@ -130,6 +141,7 @@ void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> 
         }
         if (now > ep.peak_level) {
             ep.peak_level = now;
+            if (!detail.empty()) ep.detail = std::string(detail);
             m_changes.push_back({EpisodeChange::Kind::kEscalated, ep});
         }
         if (now == Level::kOk) {
@@ -144,6 +156,7 @@ void CheckSet::update(std::string_view name, TimeNs t_ns, std::optional<double> 
         ep.peak_level = now;
         ep.peak_value = value.value_or(0.0);
         ep.id = m_episodes.size() + 1;
+        ep.detail = std::string(detail);
         m_episodes.push_back(ep);
         open = m_episodes.size() - 1;
         m_changes.push_back({EpisodeChange::Kind::kStarted, ep});

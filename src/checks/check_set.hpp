@@ -46,7 +46,10 @@ public:
                                const std::map<std::string, Limits>& derived = {});
 
     // Feeds a value to the named check (an unknown name is a programming error: throws).
-    void update(std::string_view name, TimeNs t_ns, std::optional<double> value);
+    // `detail` (optional) says what exactly is wrong; it is kept on the episode it starts or
+    // escalates (e.g. "magnetometer sensor 1 has no configured [[sensor]]").
+    void update(std::string_view name, TimeNs t_ns, std::optional<double> value,
+                std::string_view detail = {});
 
     bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
     int acknowledgeAll(TimeNs t_ns);

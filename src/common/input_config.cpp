@@ -63,8 +63,10 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
         }
         c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
         // Offline (import, reading a log back) the transport may be left out: import's --input
-        // gives the file, a replay reads the log. Acquisition needs it.
-        const bool has_transport = use == InputUse::Acquisition || s.has("transport");
+        // gives the file, a replay reads the log. Acquisition needs it (record; `check` reads
+        // the config offline and says so for record, engine::checkConfig).
+        c.transport_given = s.has("transport");
+        const bool has_transport = use == InputUse::Acquisition || c.transport_given;
         const std::string tr =
             has_transport ? s.choice("transport", {"serial", "udp", "tcp", "file"}) : std::string();
         // Keys of another transport are rejected too: they are almost always a mistake.
@@ -106,6 +108,7 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
             c.follow = s.boolean("follow", false);
         } else {
             c.transport_given = false;
+            c.transport = Transport::File;  // no transport: path stays empty (import only)
         }
         c.clock = s.choice("clock", {"receive", "instrument"}, "receive") == "receive"
                       ? ClockSource::Receive

@@ -692,8 +692,7 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
         cfg.field.inclination_deg = g->number("inclination_deg", -90.0, 90.0);
         cfg.field.declination_deg = g->number("declination_deg", -180.0, 180.0, 0.0);
         cfg.field.intensity_nT = g->number("intensity_nT", 1000.0, 100000.0);
-    } else {
-        root.fail("geomagnetic", "a [geomagnetic] table (inclination_deg, intensity_nT)");
+        cfg.field_given = true;
     }
     if (auto d = root.optionalTable("detection")) {
         d->allowOnly({"k", "min_anomaly_nT", "noise_window", "mass_rule_C"});
@@ -752,6 +751,12 @@ DetectionConfig parseDetectionConfig(const config::Section& root) {
                 c.susceptibility = t.number("susceptibility", 1e-6, 1e7);
             }
         }
+        // The dipole and the sphere need the ambient field; the mass rule does not (it is a
+        // scalar rule of thumb), so [geomagnetic] is demanded only by them.
+        if (c.model != ModelKind::MassRule && !cfg.field_given)
+            root.fail("geomagnetic",
+                      "a [geomagnetic] table (inclination_deg, intensity_nT): target '" + c.name +
+                          "' uses model \"" + model + "\", which needs the ambient field");
         cfg.targets.push_back(std::move(c));
     }
     return cfg;

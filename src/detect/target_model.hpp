@@ -79,6 +79,7 @@ struct DetectionSettings {
 
 struct DetectionConfig {
     GeomagneticField field;
+    bool field_given = false;  // [geomagnetic] was in the config (only dipole/sphere need it)
     DetectionSettings detection;
     std::vector<TargetClass> targets;
 };

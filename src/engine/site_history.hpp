@@ -20,6 +20,15 @@ struct InvalidCounts {
     std::uint64_t noise_warmup = 0;  // noise window not filled yet after a (re)start
     std::uint64_t noisy = 0;         // noise above the alarm limit
     std::uint64_t low_quality = 0;   // signal quality below the alarm limit
+    // The pose reasons apart (a sample may have several):
+    std::uint64_t pose_no_fix = 0;          // no position fix yet (or every fix refused)
+    std::uint64_t pose_stale_fix = 0;       // fix too old or a hole in the fixes
+    std::uint64_t pose_no_heading = 0;
+    std::uint64_t pose_no_cable_out = 0;    // no cable counter, no [tow] cable_out_m
+    std::uint64_t pose_no_sensor_depth = 0; // no depth field, no [tow] sensor_depth_m
+    std::uint64_t pose_other = 0;           // cable shorter than the drop, layback past history
+    // Samples of sensor indices with no [[sensor]]: never processed, counted here.
+    std::uint64_t unknown_sensor = 0;
     InvalidCounts& operator+=(const InvalidCounts& o) {
         no_field += o.no_field;
         pose += o.pose;
@@ -27,6 +36,13 @@ struct InvalidCounts {
         noise_warmup += o.noise_warmup;
         noisy += o.noisy;
         low_quality += o.low_quality;
+        pose_no_fix += o.pose_no_fix;
+        pose_stale_fix += o.pose_stale_fix;
+        pose_no_heading += o.pose_no_heading;
+        pose_no_cable_out += o.pose_no_cable_out;
+        pose_no_sensor_depth += o.pose_no_sensor_depth;
+        pose_other += o.pose_other;
+        unknown_sensor += o.unknown_sensor;
         return *this;
     }
 };

@@ -311,6 +311,7 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
         a.episode = ep;
         a.unit = chk.check(ep.check).unit();
         a.text = fmt::format("{} {} {:.2f} {}", checks::levelName(ep.peak_level), ep.check, ep.peak_value, a.unit);
+        if (!ep.detail.empty()) a.text += ": " + ep.detail;
         (ep.end_ns ? past : active).push_back(std::move(a));
     }
     std::reverse(past.begin(), past.end());

@@ -24,6 +24,17 @@ constexpr int kNoiseWarmupDifferences = 16;
 // Silence checks are evaluated at most this many whole seconds per advance (a seek or a jump of
 // the clock does not loop for hours).
 constexpr int kMaxSilenceSteps = 120;
+// A first fix further than this outside the survey CRS's area of use (degrees) is refused: the
+// data and the CRS belong to different places (a wrong EPSG code or UTM zone), and distances
+// there would be distorted. Half a UTM zone; the team's choice.
+constexpr double kCrsRefuseOutside_deg = 3.0;
+// An unconfigured sensor index counts for the unknown_sensor check this long after its sample.
+constexpr TimeNs kUnknownSensorWindowNs = 5 * kNsPerSecond;
+// Vessel track of unplaceable samples kept for the gap causes: one point every this many metres.
+constexpr double kTrackStep_m = 5.0;
+// Pose flags that point at the setup (a value the position needs was never there).
+constexpr std::uint32_t kSetupPoseFlags = nav::kNoFix | nav::kNoHeading | nav::kNoCableOut |
+                                          nav::kNoSensorDepth;
 
 const toml::table& emptyTable() {
     static const toml::table t;
@@ -66,6 +77,8 @@ SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_
         m_sensors.push_back(st);
         m_noise.emplace_back(m_cfg.detection.detection.noise_window);
     }
+    m_pose_bad_since.resize(m_sensors.size());
+    m_pose_bad_s.assign(m_sensors.size(), 0.0);
 
     // Limits derived from the detection model: the altitude at which adjacent lines stop meeting
     // (detect::planClass, at the noise warn limit and the worst of the line's two directions).
@@ -125,6 +138,31 @@ void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int qualit
         return;
     }
     ensureCrs(lon_deg, lat_deg);
+    // Zone plausibility: the fixes must lie in (or near) the survey CRS's area of use.
+    const double outside = m_crs->degreesOutsideAreaOfUse(lon_deg, lat_deg);
+    std::string crs_detail;
+    if (outside > 0.0) {
+        const auto a = m_crs->areaOfUse();
+        crs_detail = fmt::format(
+            "fix at lon {:.4f} lat {:.4f} lies {:.1f} deg outside the area of use of EPSG:{} ({}: "
+            "lon {:.1f}..{:.1f}, lat {:.1f}..{:.1f}); set [survey] epsg to the CRS of the survey "
+            "area, or remove it to use the UTM zone of the first fix",
+            lon_deg, lat_deg, outside, m_crs->epsg(), a ? a->name : m_crs->name(),
+            a ? a->west_deg : 0.0, a ? a->east_deg : 0.0, a ? a->south_deg : 0.0,
+            a ? a->north_deg : 0.0);
+    }
+    m_checks.update("crs_area", t_ns, outside, crs_detail);
+    if (!m_crs_checked) {
+        m_crs_checked = true;
+        if (outside > kCrsRefuseOutside_deg) {
+            m_crs_refused = true;
+            m_crs_problem = "positions refused: the first " + crs_detail;
+        }
+    }
+    if (m_crs_refused) {
+        drainEpisodes();
+        return;
+    }
     const auto en = m_positioner->addFix(t_ns, lon_deg, lat_deg, quality);  // projected once
     releasePending(t_ns, true);  // samples waiting for a fix after them
     if (std::isfinite(en.easting_m)) m_vessel_pos = coverage::Point{en.easting_m, en.northing_m};
@@ -142,6 +180,7 @@ void SurveyEngine::onSpeed(TimeNs t_ns, double sog_mps) {
 }
 
 void SurveyEngine::onHeading(TimeNs t_ns, double true_heading_deg) {
+    m_seen_heading = true;
     if (m_positioner) m_positioner->addHeading(t_ns, true_heading_deg);
 }
 
@@ -158,6 +197,7 @@ void SurveyEngine::onPositionError(TimeNs t_ns, double horizontal_error_m) {
 }
 
 void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m) {
+    m_seen_cable = true;
     if (m_positioner) m_positioner->addCableOut(t_ns, cable_out_m);
 }
 
@@ -166,18 +206,52 @@ void SurveyEngine::onAltitude(TimeNs t_ns, double altitude_m) {
 }
 
 void SurveyEngine::onSensorDepth(TimeNs t_ns, double depth_m) {
+    m_seen_depth = true;
     if (m_positioner) m_positioner->addSensorDepth(t_ns, depth_m);
 }
 
 void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
                                std::optional<double> quality, std::optional<double> depth_m,
                                std::optional<double> altitude_m) {
+    if (field_nT) ++m_field_samples;
+    // Sensor indices with no [[sensor]]: counted, and the unknown_sensor check (it also ends
+    // here, on the configured sensors' samples, once none was seen for a while).
     const auto slot_it = m_sensor_slot.find(sensor);
-    if (slot_it == m_sensor_slot.end()) return;  // not a configured sensor: counted by decode
+    if (slot_it == m_sensor_slot.end()) {
+        ++m_unknown_samples[sensor];
+        ++m_invalid.unknown_sensor;
+        m_unknown_last_ns[sensor] = t_ns;
+    }
+    {
+        int recent = 0;
+        std::string which;
+        for (const auto& [index, last] : m_unknown_last_ns)
+            if (t_ns - last <= kUnknownSensorWindowNs) {
+                ++recent;
+                which += (which.empty() ? "" : ", ") + std::to_string(index);
+            }
+        std::string detail;
+        if (recent > 0) {
+            std::string configured;
+            for (const auto& c : m_cfg.nav.sensors)
+                configured += (configured.empty() ? "" : ", ") + std::to_string(c.index);
+            detail = fmt::format(
+                "magnetometer sensor {} has no configured offsets (no [[sensor]] with that index; "
+                "configured: {}): add [[sensor]] index = {} with its cross_m/along_m, or correct "
+                "the sensor field of the field map",
+                which, configured, which);
+        }
+        m_checks.update("unknown_sensor", t_ns, static_cast<double>(recent), detail);
+    }
+    if (slot_it == m_sensor_slot.end()) {
+        drainEpisodes();
+        return;  // not a configured sensor: its samples cannot be placed
+    }
     const std::size_t slot = slot_it->second;
     if (m_positioner) {
         // One fish carries the array: its depth and altitude come with every sensor's string.
         if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
+        if (depth_m) m_seen_depth = true;
         if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
     }
     auto& noise = m_noise[slot];
@@ -285,7 +359,14 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
     if (!s.pose.ok()) {
         valid = false;
         ++m_invalid.pose;
+        countPoseReasons(s.pose.flags);
     }
+    updateSetupChecks(slot, t_ns, s.pose);
+    // Where the vessel was while its samples could not be placed (no line run records that).
+    if (slot == 0 && m_vessel_pos && (!s.pose.ok() || s.pose.altitude_source == nav::AltitudeSource::None) &&
+        (m_track.empty() ||
+         std::hypot(m_vessel_pos->e_m - m_track.back().e_m, m_vessel_pos->n_m - m_track.back().n_m) >= kTrackStep_m))
+        m_track.push_back(*m_vessel_pos);
     if (s.pose.altitude_source == nav::AltitudeSource::None) {
         valid = false;
         ++m_invalid.no_altitude;
@@ -452,6 +533,57 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
     m_checks.update("forming_gap", t_ns, gap);
 }
 
+void SurveyEngine::countPoseReasons(std::uint32_t flags) {
+    if (flags & nav::kNoFix) ++m_invalid.pose_no_fix;
+    if (flags & (nav::kStaleFix | nav::kBeforeHistory)) ++m_invalid.pose_stale_fix;
+    if (flags & nav::kNoHeading) ++m_invalid.pose_no_heading;
+    if (flags & nav::kNoCableOut) ++m_invalid.pose_no_cable_out;
+    if (flags & nav::kNoSensorDepth) ++m_invalid.pose_no_sensor_depth;
+    if (flags & (nav::kCableShorterThanDrop | nav::kLaybackBeyondHistory | nav::kUnknownSensor))
+        ++m_invalid.pose_other;
+}
+
+void SurveyEngine::updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::SensorPose& pose) {
+    // A value the position needs that is missing: a first fix, a heading, cable out, sensor
+    // depth, or any altitude at all since the start (a later loss is the altitude_lost check).
+    // Only inputs that never arrived count (a start-up transient, e.g. the fish still laid back
+    // over track sailed before the first heading, or a value that later goes stale, is not a
+    // setup problem; the silence checks watch data that stops).
+    std::uint32_t missing = pose.flags & kSetupPoseFlags;
+    if (m_seen_heading || m_cfg.nav.vessel.heading_source != nav::HeadingSource::Hdt)
+        missing &= ~static_cast<std::uint32_t>(nav::kNoHeading);
+    if (m_seen_cable) missing &= ~static_cast<std::uint32_t>(nav::kNoCableOut);
+    if (m_seen_depth) missing &= ~static_cast<std::uint32_t>(nav::kNoSensorDepth);
+    const bool never_altitude = pose.altitude_source == nav::AltitudeSource::None && !m_last_altitude_ns;
+    auto& since = m_pose_bad_since[slot];
+    if (missing == 0 && !never_altitude) {
+        since.reset();
+        m_pose_bad_s[slot] = 0.0;
+    } else {
+        if (!since) since = t_ns;
+        m_pose_bad_s[slot] = toSeconds(t_ns - *since);
+    }
+    const double worst = *std::max_element(m_pose_bad_s.begin(), m_pose_bad_s.end());
+    std::string detail;
+    if (worst > 0.0 && m_pose_bad_s[slot] == worst) {
+        std::string what;
+        const auto add = [&what](const char* w) { what += (what.empty() ? "" : "; ") + std::string(w); };
+        if (missing & nav::kNoFix)
+            add(m_crs_refused ? "no usable position fix (refused: far outside the survey CRS)"
+                              : "no position fix (check the GNSS input and its clock)");
+        if (missing & nav::kNoHeading) add("no heading (check the heading input or [vessel] heading_source)");
+        if (missing & nav::kNoCableOut)
+            add("no cable out (set [tow] cable_out_m, add a cable input, or set [tow] "
+                "sensor_at_antenna = true)");
+        if (missing & nav::kNoSensorDepth)
+            add("no sensor depth (set [tow] sensor_depth_m, or a depth_m field in the field map)");
+        if (never_altitude)
+            add("no altitude (an altimeter field, or an echo sounder plus sensor depth)");
+        detail = fmt::format("magnetometer sensor {}: {}", m_sensors[slot].index, what);
+    }
+    m_checks.update("pose_inputs", t_ns, worst, detail);
+}
+
 double SurveyEngine::magSilence_s(TimeNs at) const {
     // The longest silence of any sensor that has reported; a configured sensor that never
     // reported counts from the first sample of any sensor.
@@ -555,6 +687,7 @@ void SurveyEngine::drainEpisodes() {
             row.start_utc_ns = ep.start_ns;
             row.value = ep.peak_value;
             row.detail = checks::levelName(ep.peak_level);
+            if (!ep.detail.empty()) row.detail += ": " + ep.detail;
             m_episode_event[ep.id] = row.id;
             m_rows.events.push_back(std::move(row));
             if (m_cov) m_cov->lines().addAlarm(m_cov->lines().activeRun());

@@ -147,6 +147,16 @@ public:
     const checks::CheckSet& checks() const { return m_checks; }
     const std::vector<SensorState>& sensors() const { return m_sensors; }
     const InvalidCounts& invalidCounts() const { return m_invalid; }
+    // Samples by sensor index that matches no [[sensor]] (index -> samples).
+    const std::map<int, std::uint64_t>& unknownSensorSamples() const { return m_unknown_samples; }
+    // Samples that carried a total-field value, over every sensor (configured or not).
+    std::uint64_t fieldSamples() const { return m_field_samples; }
+    // Why fixes were refused: the first fix lies far outside the survey CRS's area of use
+    // (empty when every fix was used).
+    const std::string& crsProblem() const { return m_crs_problem; }
+    // The vessel's (antenna) positions, one every few metres, while its samples could not be
+    // placed (pose problem or no altitude): ground run over that no line run records.
+    const std::vector<coverage::Point>& vesselTrack() const { return m_track; }
     const detect::TargetModel& coverageModel() const { return m_models[m_coverage_model]; }
     const std::vector<detect::TargetModel>& models() const { return m_models; }
     std::optional<double> speed_mps() const { return m_speed; }
@@ -195,6 +205,8 @@ private:
     double planningThreshold_nT() const;
     void drainEpisodes();
     double magSilence_s(TimeNs at) const;
+    void updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::SensorPose& pose);
+    void countPoseReasons(std::uint32_t flags);
 
     SurveyConfig m_cfg;
     std::function<std::int64_t()> m_next_event_id;
@@ -244,6 +256,20 @@ private:
     std::function<void(const SensorState&)> m_observer;
     std::optional<coverage::Point> m_vessel_pos;
     log::Batch m_rows;
+
+    // Setup checks (unknown_sensor, pose_inputs, crs_area).
+    std::map<int, std::uint64_t> m_unknown_samples;
+    std::map<int, TimeNs> m_unknown_last_ns;          // unknown index -> its latest sample time
+    std::vector<std::optional<TimeNs>> m_pose_bad_since;  // per slot: start of the setup problem
+    std::vector<double> m_pose_bad_s;                 // per slot: its length at the last sample
+    std::uint64_t m_field_samples = 0;
+    bool m_seen_heading = false;  // an HDT arrived
+    bool m_seen_cable = false;    // a cable-out value arrived
+    bool m_seen_depth = false;    // a sensor depth arrived
+    bool m_crs_checked = false;
+    bool m_crs_refused = false;
+    std::string m_crs_problem;
+    std::vector<coverage::Point> m_track;
 };
 
 }  // namespace sg::engine

@@ -5,12 +5,34 @@
 #include <cmath>
 #include <cstdint>
 #include <filesystem>
+#include <limits>
 
 #include <fmt/format.h>
 
 #include "coverage/exports.hpp"
 
 namespace sg::engine {
+
+// Samples that covered nothing, by reason, as "reason N" joined by ", " (empty when none).
+std::string invalidReasonsText(const InvalidCounts& c) {
+    std::string out;
+    const auto add = [&out](const char* what, std::uint64_t n) {
+        if (n > 0) out += fmt::format("{}{} {}", out.empty() ? "" : ", ", what, n);
+    };
+    add("sensor index with no [[sensor]]", c.unknown_sensor);
+    add("no fix", c.pose_no_fix);
+    add("stale fix", c.pose_stale_fix);
+    add("no heading", c.pose_no_heading);
+    add("no cable out", c.pose_no_cable_out);
+    add("no sensor depth", c.pose_no_sensor_depth);
+    add("other pose", c.pose_other);
+    add("no altitude", c.no_altitude);
+    add("no field", c.no_field);
+    add("noise warm-up", c.noise_warmup);
+    add("noisy", c.noisy);
+    add("low quality", c.low_quality);
+    return out;
+}
 
 namespace {
 
@@ -55,7 +77,8 @@ std::vector<AlarmSummary> sessionAlarms(const SurveyEngine& engine, int session)
 namespace {
 
 // Passes of each run by each gap, and the alarms and outages near them (see GapCause).
-std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m) {
+std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m,
+                                const std::vector<coverage::Point>& track) {
     std::vector<GapCause> out;
     const double reach = std::max(spacing_m, 1.0);
     for (const auto& g : s.gaps.gaps) {
@@ -108,7 +131,25 @@ std::vector<GapCause> gapCauses(const SurveySummary& s, double spacing_m) {
             text += fmt::format("{}{} run {} ({:.0f} m off): {}", text.empty() ? "" : "; ", p.line, p.run, p.offset_m,
                                 what.empty() ? "no alarm" : what);
         }
-        gc.text = gc.passes.empty() ? "no line run passed within one line spacing: ground not run over" : text;
+        if (gc.passes.empty()) {
+            // No line run passed; but the vessel may have gone by with samples that could not be
+            // used (a broken setup): that is not "ground not run over".
+            // Within the planned half-width of a stretch the vessel ran with unplaceable samples:
+            // the swath would have covered it.
+            double nearest = std::numeric_limits<double>::infinity();
+            for (const auto& p : track) nearest = std::min(nearest, std::hypot(p.e_m - c.e_m, p.n_m - c.n_m));
+            const double swath_reach = std::max(s.detection.planned_half_width_m, s.cell_size_m);
+            if (nearest <= swath_reach) {
+                const auto reasons = invalidReasonsText(s.invalid);
+                text = fmt::format("the vessel passed {:.0f} m from its centre but no usable magnetometer sample "
+                                   "covered it (samples unusable: {}): ground run over with a setup or data "
+                                   "problem, not ground left unrun",
+                                   nearest, reasons.empty() ? "none counted" : reasons);
+            } else {
+                text = "no line run passed within one line spacing: ground not run over";
+            }
+        }
+        gc.text = text;
         out.push_back(std::move(gc));
     }
     return out;
@@ -217,7 +258,10 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
             if (std::find(names.begin(), names.end(), x.vessel) == names.end()) names.push_back(x.vessel);
         s.vessels = names.size();
     }
-    s.gap_causes = gapCauses(s, d.line_spacing_m);  // needs the runs, alarms and outages above
+    s.gap_causes = gapCauses(s, d.line_spacing_m, engine.vesselTrack());  // needs the runs, alarms and outages above
+    s.field_samples = engine.fieldSamples();
+    s.crs_problem = engine.crsProblem();
+    for (const auto& [index, n] : engine.unknownSensorSamples()) s.unknown_sensors.push_back({index, n});
     return s;
 }
 
@@ -374,7 +418,15 @@ nlohmann::json toJson(const SurveySummary& s) {
         d.max_overlap_altitude_m ? json(*d.max_overlap_altitude_m) : json(nullptr);
     j["invalid_samples"] = {{"no_field", s.invalid.no_field},       {"pose", s.invalid.pose},
                             {"no_altitude", s.invalid.no_altitude}, {"noise_warmup", s.invalid.noise_warmup},
-                            {"noisy", s.invalid.noisy},             {"low_quality", s.invalid.low_quality}};
+                            {"noisy", s.invalid.noisy},             {"low_quality", s.invalid.low_quality},
+                            {"unknown_sensor", s.invalid.unknown_sensor},
+                            {"pose_no_fix", s.invalid.pose_no_fix},
+                            {"pose_stale_fix", s.invalid.pose_stale_fix},
+                            {"pose_no_heading", s.invalid.pose_no_heading},
+                            {"pose_no_cable_out", s.invalid.pose_no_cable_out},
+                            {"pose_no_sensor_depth", s.invalid.pose_no_sensor_depth},
+                            {"pose_other", s.invalid.pose_other}};
+    j["field_samples"] = s.field_samples;
     return j;
 }
 
@@ -422,6 +474,69 @@ std::vector<std::string> writeExports(const SurveySummary& s, const SurveyEngine
         put("infill.gpx", coverage::infillGpx(s.infill.plan, to_lonlat));
     }
     return written;
+}
+
+std::optional<std::string> nothingCoveredProblem(const SurveySummary& s, const SurveyEngine& engine) {
+    if (s.field_samples == 0 || s.raster_covered_cells > 0) return std::nullopt;
+    const auto& c = s.invalid;
+    std::string configured;
+    for (const auto& o : engine.config().nav.sensors)
+        configured += (configured.empty() ? "" : ", ") + std::to_string(o.index);
+    std::vector<std::string> hints;
+    if (engine.plan() == nullptr)
+        hints.push_back("the config has no [plan] (area and lines): coverage needs an area");
+    std::uint64_t known = 0;
+    for (const auto& st : engine.sensors()) known += st.samples;
+    if (!s.unknown_sensors.empty()) {
+        std::string idx;
+        for (const auto& [i, n] : s.unknown_sensors) idx += (idx.empty() ? "" : ", ") + std::to_string(i);
+        hints.push_back(fmt::format(
+            "the strings carry sensor index {} but [[sensor]] configures {} (key [[sensor]] index): add a "
+            "[[sensor]] with index = {} and its offsets, or correct the field map's sensor field",
+            idx, configured, idx));
+    }
+    if (!s.crs_problem.empty()) hints.push_back(s.crs_problem);
+    // A reason that spoiled at least half of the configured sensors' samples is a likely cause.
+    const auto most = [known](std::uint64_t n) { return known > 0 && 2 * n >= known; };
+    if (s.crs_problem.empty() && most(c.pose_no_fix))
+        hints.push_back("no position fix reached the samples: check the GNSS [[input]], its role and "
+                        "clock (an instrument clock needs a dated RMC or ZDA)");
+    if (most(c.pose_no_heading))
+        hints.push_back("no heading: check the heading input or [vessel] heading_source");
+    if (most(c.pose_no_cable_out))
+        hints.push_back("no cable out: set [tow] cable_out_m, add a cable input, or set [tow] "
+                        "sensor_at_antenna = true");
+    if (most(c.pose_no_sensor_depth))
+        hints.push_back("no sensor depth: set [tow] sensor_depth_m or a depth_m field in the "
+                        "magnetometer field map");
+    if (most(c.no_altitude) && !most(c.pose_no_fix))
+        hints.push_back("no sensor altitude: an altimeter field, or an echo sounder input plus the "
+                        "sensor depth");
+    if (most(c.noisy)) hints.push_back("noise above [checks.noise] alarm on most samples");
+    if (most(c.low_quality))
+        hints.push_back("signal quality below [checks.signal_quality] alarm on most samples");
+    if (hints.empty()) hints.push_back("no single reason dominates; see the counts");
+    const auto reasons = invalidReasonsText(c);
+    std::string text = fmt::format(
+        "nothing was covered although {} magnetometer samples with a field arrived (samples unusable: "
+        "{}). Likely setup mistake:",
+        s.field_samples, reasons.empty() ? "none counted" : reasons);
+    for (const auto& h : hints) text += "\n  - " + h;
+    return text;
+}
+
+std::optional<std::string> nothingCoveredProblem(SurveyEngine& engine) {
+    if (engine.fieldSamples() == 0) return std::nullopt;
+    engine.flushCoverage();
+    SurveySummary s;
+    s.field_samples = engine.fieldSamples();
+    // This session's own coverage (a site's raster also holds the earlier logs').
+    s.raster_covered_cells = engine.coverage() != nullptr ? engine.coverage()->sessionRaster().coveredCells()
+                                                          : engine.raster().coveredCells();
+    s.invalid = engine.invalidCounts();
+    s.crs_problem = engine.crsProblem();
+    for (const auto& [index, n] : engine.unknownSensorSamples()) s.unknown_sensors.push_back({index, n});
+    return nothingCoveredProblem(s, engine);
 }
 
 }  // namespace sg::engine

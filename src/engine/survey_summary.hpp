@@ -3,6 +3,7 @@
 // print from this one structure, so their numbers cannot disagree.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -89,6 +90,9 @@ struct SurveySummary {
     std::uint64_t raster_covered_cells = 0;  // every covered cell, inside the area or not
     std::uint64_t lines_processed = 0;
     InvalidCounts invalid;
+    std::uint64_t field_samples = 0;  // magnetometer samples with a total field (any sensor index)
+    std::vector<std::pair<int, std::uint64_t>> unknown_sensors;  // index with no [[sensor]], samples
+    std::string crs_problem;          // why fixes were refused (SurveyEngine::crsProblem)
     std::string log_path;
     TimeNs first_ns = 0, last_ns = 0;
     std::vector<LineCoverage> line_coverage;  // by plan line index
@@ -111,6 +115,15 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
 std::string lineName(const SurveySummary& s, int line);
 
 nlohmann::json toJson(const SurveySummary& s);
+// Samples that covered nothing, by reason ("no cable out 1200, no altitude 3"); empty when none.
+std::string invalidReasonsText(const InvalidCounts& c);
+// A run that covered nothing although magnetometer samples with a field arrived: the message
+// with the counts by reason and the likely setup mistakes; nullopt when coverage was painted or
+// when no sample with a field arrived. `engine` is the one `s` was summarised from.
+std::optional<std::string> nothingCoveredProblem(const SurveySummary& s, const SurveyEngine& engine);
+// The same straight from the engine (flushes its coverage; no gaps or infill computed), for the
+// end of `record` and `import`.
+std::optional<std::string> nothingCoveredProblem(SurveyEngine& engine);
 // A few lines for the terminal: coverage, gaps, infill.
 std::string toText(const SurveySummary& s);
 

@@ -57,7 +57,7 @@ NavConfig parseVesselConfig(const config::Section& root) {
         t->allowOnly({"extra_layback_m", "cable_out_m", "sensor_depth_m", "cable_max_age_s",
                       "depth_max_age_s", "altitude_max_age_s", "path_direction_baseline_m",
                       "history_length_m", "mag_latency_ms", "altimeter_latency_ms",
-                      "cable_latency_ms", "depth_latency_ms"});
+                      "cable_latency_ms", "depth_latency_ms", "sensor_at_antenna"});
         TowConfig& c = cfg.tow;
         c.extra_layback_m = t->number("extra_layback_m", -100.0, 1000.0, 0.0);
         c.cable_out_m = t->optionalNumber("cable_out_m", 0.0, 10000.0);
@@ -72,6 +72,20 @@ NavConfig parseVesselConfig(const config::Section& root) {
         c.altimeter_latency_ms = t->number("altimeter_latency_ms", 0.0, 10000.0, 0.0);
         c.cable_latency_ms = t->number("cable_latency_ms", 0.0, 10000.0, 0.0);
         c.depth_latency_ms = t->number("depth_latency_ms", 0.0, 10000.0, 0.0);
+        c.sensor_at_antenna = t->boolean("sensor_at_antenna", false);
+        if (c.sensor_at_antenna) {
+            // A tow geometry beside it would be silently ignored: refuse the contradiction.
+            for (std::string_view k : {"cable_out_m", "extra_layback_m"})
+                if (t->has(k))
+                    t->fail(k, "no tow key with sensor_at_antenna = true (the sensor is at the "
+                               "antenna: no cable, no layback)");
+        }
+    }
+    if (cfg.tow.sensor_at_antenna) {
+        if (auto v = root.optionalTable("vessel"); v && v->has("tow_point_m"))
+            v->fail("tow_point_m", "no tow point with [tow] sensor_at_antenna = true (the sensor "
+                                   "is placed at antenna_m)");
+        cfg.vessel.tow_point_m = cfg.vessel.antenna_m;
     }
     std::set<std::int64_t> seen;
     for (const config::Section& s : root.tables("sensor")) {

@@ -46,6 +46,10 @@ struct TowConfig {
     double extra_layback_m = 0.0;               // fixed extra layback added to the cable geometry
     std::optional<double> cable_out_m;          // fixed cable out when there is no counter
     std::optional<double> sensor_depth_m;       // fixed sensor depth when the fish reports none
+    // The sensor rides at the GNSS antenna (a vehicle, aircraft or pole mount, or a sensor on the
+    // hull): no tow, no layback, no cable out needed; sensor depth 0 unless given. It must be said
+    // explicitly: without it a missing cable out or sensor depth is a setup error.
+    bool sensor_at_antenna = false;
     double cable_max_age_s = 30.0;
     double depth_max_age_s = 5.0;
     double altitude_max_age_s = 2.0;

@@ -357,7 +357,10 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
 
     // Cable out and sensor depth -> horizontal layback (straight cable).
     double cable = 0.0;
-    if (auto c = m_cable.at(t_ns, seconds(m_cfg.tow.cable_max_age_s))) {
+    const bool at_antenna = m_cfg.tow.sensor_at_antenna;
+    if (at_antenna) {
+        // No tow: the sensor is at the antenna (tow point = antenna, see parseVesselConfig).
+    } else if (auto c = m_cable.at(t_ns, seconds(m_cfg.tow.cable_max_age_s))) {
         cable = *c;
     } else if (m_cfg.tow.cable_out_m) {
         cable = *m_cfg.tow.cable_out_m;
@@ -372,13 +375,17 @@ SensorPose Positioner::fishReference(std::int64_t t_ns, double& s_fish, PathPos&
     } else if (m_cfg.tow.sensor_depth_m) {
         depth = *m_cfg.tow.sensor_depth_m;
         pose.flags |= kFixedSensorDepth;
+    } else if (at_antenna) {
+        depth = 0.0;  // at the antenna: at (or above) the surface
     } else {
         pose.flags |= kNoSensorDepth;
         have_depth = false;
     }
     const double drop = depth + m_cfg.vessel.tow_point_m[2];
     double horizontal = 0.0;
-    if (cable >= std::fabs(drop)) {
+    if (at_antenna) {
+        horizontal = 0.0;
+    } else if (cable >= std::fabs(drop)) {
         horizontal = std::sqrt(cable * cable - drop * drop);
     } else if (!(pose.flags & kNoCableOut)) {
         pose.flags |= kCableShorterThanDrop;

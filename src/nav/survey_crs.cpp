@@ -3,6 +3,7 @@
 
 #include <proj.h>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 #include <stdexcept>
@@ -37,6 +38,13 @@ SurveyCrs::SurveyCrs(int epsg) : m_epsg(epsg) {
                                     " is not a projected CRS (eastings/northings in metres)");
     }
     if (const char* n = proj_get_name(m_projected)) m_name = n;
+    {
+        double w = 0, so = 0, e = 0, n = 0;
+        const char* area = nullptr;
+        // PROJ gives -1000 for bounds it does not know.
+        if (proj_get_area_of_use(m_ctx, m_projected, &w, &so, &e, &n, &area) && w > -1000.0)
+            m_area = AreaOfUse{w, so, e, n, area ? std::string(area) : std::string()};
+    }
     PJ* raw = proj_create_crs_to_crs(m_ctx, "EPSG:4326", target.c_str(), nullptr);
     if (raw == nullptr) {
         release();
@@ -55,7 +63,7 @@ SurveyCrs::SurveyCrs(int epsg) : m_epsg(epsg) {
 SurveyCrs::~SurveyCrs() { release(); }
 
 SurveyCrs::SurveyCrs(SurveyCrs&& other) noexcept
-    : m_epsg(other.m_epsg), m_name(std::move(other.m_name)),
+    : m_epsg(other.m_epsg), m_name(std::move(other.m_name)), m_area(std::move(other.m_area)),
       m_ctx(std::exchange(other.m_ctx, nullptr)),
       m_transform(std::exchange(other.m_transform, nullptr)),
       m_projected(std::exchange(other.m_projected, nullptr)) {}
@@ -65,6 +73,7 @@ SurveyCrs& SurveyCrs::operator=(SurveyCrs&& other) noexcept {
         release();
         m_epsg = other.m_epsg;
         m_name = std::move(other.m_name);
+        m_area = std::move(other.m_area);
         m_ctx = std::exchange(other.m_ctx, nullptr);
         m_transform = std::exchange(other.m_transform, nullptr);
         m_projected = std::exchange(other.m_projected, nullptr);
@@ -131,6 +140,24 @@ double SurveyCrs::convergence_deg(double lon_deg, double lat_deg) const {
     const auto b = forward(lon_deg, lat_deg + kStepDeg);
     if (!std::isfinite(a.easting_m) || !std::isfinite(b.easting_m)) return kNaN;
     return -std::atan2(b.easting_m - a.easting_m, b.northing_m - a.northing_m) * kRadToDeg;
+}
+
+std::optional<SurveyCrs::AreaOfUse> SurveyCrs::areaOfUse() const { return m_area; }
+
+double SurveyCrs::degreesOutsideAreaOfUse(double lon_deg, double lat_deg) const {
+    const auto& a = m_area;
+    if (!a) return 0.0;
+    double dlat = 0.0;
+    if (lat_deg < a->south_deg) dlat = a->south_deg - lat_deg;
+    if (lat_deg > a->north_deg) dlat = lat_deg - a->north_deg;
+    // Longitude distance to the [west, east] span, on the circle (the span may cross 180).
+    const auto wrap = [](double d) { return std::fmod(std::fmod(d, 360.0) + 360.0, 360.0); };
+    const double raw = a->east_deg - a->west_deg;
+    const double span = raw < 0.0 ? raw + 360.0 : raw;
+    const double from_west = wrap(lon_deg - a->west_deg);
+    double dlon = 0.0;
+    if (span < 360.0 && from_west > span) dlon = std::min(from_west - span, 360.0 - from_west);
+    return std::max(dlat, dlon);
 }
 
 }  // namespace sg::nav

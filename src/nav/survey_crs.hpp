@@ -3,6 +3,7 @@
 // coverage raster and all navigation geometry live in this CRS.
 #pragma once
 
+#include <optional>
 #include <string>
 
 struct pj_ctx;
@@ -55,11 +56,23 @@ public:
     // NaN on failure.
     double convergence_deg(double lon_deg, double lat_deg) const;
 
+    // The CRS's area of use from the EPSG registry (degrees, WGS 84: west, south, east, north;
+    // west > east when it crosses the antimeridian), when PROJ knows one.
+    struct AreaOfUse {
+        double west_deg, south_deg, east_deg, north_deg;
+        std::string name;
+    };
+    std::optional<AreaOfUse> areaOfUse() const;
+    // How far (degrees of longitude or latitude, whichever is larger) the point lies outside the
+    // area of use; 0 inside it or when no area is known.
+    double degreesOutsideAreaOfUse(double lon_deg, double lat_deg) const;
+
 private:
     void release() noexcept;
 
     int m_epsg = 0;
     std::string m_name;
+    std::optional<AreaOfUse> m_area;
     pj_ctx* m_ctx = nullptr;
     PJconsts* m_transform = nullptr;  // EPSG:4326 -> target, normalised to lon/lat, E/N order
     PJconsts* m_projected = nullptr;  // the target CRS itself, for proj_factors

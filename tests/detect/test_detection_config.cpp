@@ -95,9 +95,16 @@ TEST(DetectionConfig, ErrorsNameFileAndKey) {
 
     EXPECT_NE(errorOf("[geomagnetic]\ninclination_deg = 60\nintensity_nT = 50000\n").find("target"),
               std::string::npos);
-    EXPECT_NE(errorOf("[[target]]\nname = \"a\"\nmodel = \"mass_rule\"\nmass_kg = 1\n")
-                  .find("geomagnetic"),
-              std::string::npos);
+    // The dipole needs the ambient field: without [geomagnetic] the error names it and the target.
+    const auto no_field = errorOf("[[target]]\nname = \"a\"\nmodel = \"dipole\"\nmoment_Am2 = 1\n");
+    EXPECT_NE(no_field.find("geomagnetic"), std::string::npos) << no_field;
+    EXPECT_NE(no_field.find("'a'"), std::string::npos) << no_field;
+}
+
+// The mass rule is a scalar rule of thumb (common practice): a survey using only it needs no
+// [geomagnetic] table, and none is demanded.
+TEST(DetectionConfig, MassRuleOnlyNeedsNoGeomagneticTable) {
+    EXPECT_EQ(errorOf("[[target]]\nname = \"a\"\nmodel = \"mass_rule\"\nmass_kg = 1\n"), "(no error)");
 }
 
 }  // namespace
