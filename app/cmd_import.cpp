@@ -125,6 +125,12 @@ int runImport(const ImportOptions& o) {
         engine::SetupReport report;
         engine::DataCheckOptions opt;
         opt.whole = true;
+        // A capture set without the magnetometer (navigation only, imported on purpose) is not
+        // held to "samples must arrive"; with one, a run that would cover nothing is an error.
+        bool mag_imported = false;
+        for (const auto& f : files)
+            for (const auto& in : cfg.inputs) mag_imported = mag_imported || (in.name == f.input && in.role == "mag");
+        opt.require_samples = mag_imported;
         std::string names;
         for (const auto& f : files) names += (names.empty() ? "" : ", ") + f.path;
         engine::checkData(cfg, merged.lines, names, opt, report);

@@ -439,7 +439,7 @@ TEST(SetupCheck, UtmZoneFarFromTheDataIsRefused) {
     // an alarm, and nothing is covered.
     ConfigSpec no_plan = spec;
     no_plan.plan = "";
-    const auto cfg = sg::engine::parseSurveyConfig(config(no_plan), "survey.toml", s.dir.path.string());
+    const auto cfg = sg::engine::parseSurveyConfig(config(no_plan), "survey.toml", s.dir.path.string(), sg::config::InputUse::Offline);
     std::int64_t id = 1;
     sg::engine::Pipeline p(cfg, [&id] { return id++; });
     for (const auto& l : s.survey.lines) p.feed(l);
@@ -469,7 +469,7 @@ TEST(SetupCheck, LiveAlarmForASensorIndexWithNoSensor) {
     sv.generate();
     TempDir d;
     writePlan(d);
-    const auto cfg = sg::engine::parseSurveyConfig(config(spec), d.file("survey.toml"), d.path.string());
+    const auto cfg = sg::engine::parseSurveyConfig(config(spec), d.file("survey.toml"), d.path.string(), sg::config::InputUse::Offline);
     std::int64_t id = 1;
     sg::engine::Pipeline p(cfg, [&id] { return id++; });
     for (const auto& l : sv.lines) p.feed(l);
@@ -493,7 +493,7 @@ TEST(SetupCheck, LiveAlarmForAMissingCableOut) {
     sv.generate();
     TempDir d;
     writePlan(d);
-    const auto cfg = sg::engine::parseSurveyConfig(config(spec), d.file("survey.toml"), d.path.string());
+    const auto cfg = sg::engine::parseSurveyConfig(config(spec), d.file("survey.toml"), d.path.string(), sg::config::InputUse::Offline);
     std::int64_t id = 1;
     sg::engine::Pipeline p(cfg, [&id] { return id++; });
     for (const auto& l : sv.lines) p.feed(l);
@@ -517,7 +517,7 @@ TEST(SetupCheck, LiveAlarmForAMissingCableOut) {
     ASSERT_TRUE(problem.has_value());
     EXPECT_NE(problem->find("[tow] cable_out_m"), std::string::npos) << *problem;
     // The right setup raises neither alarm.
-    const auto good = sg::engine::parseSurveyConfig(config(ConfigSpec{}), d.file("survey.toml"), d.path.string());
+    const auto good = sg::engine::parseSurveyConfig(config(ConfigSpec{}), d.file("survey.toml"), d.path.string(), sg::config::InputUse::Offline);
     sg::engine::Pipeline q(good, [&id] { return id++; });
     for (const auto& l : sv.lines) q.feed(l);
     EXPECT_EQ(firstEpisode(q.engine(), "pose_inputs"), nullptr);

@@ -528,6 +528,14 @@ Run runImport(const std::string& args) {
     return r;
 }
 
+// What the setup checks (engine::checkConfig) demand of any survey that import accepts, beside
+// the inputs a test is about: a magnetometer input, a sensor depth, a cable out, an altitude
+// source (an echo sounder input) and a target class. Inputs without --input are not imported.
+const char* kRestOfSurvey =
+    "[[input]]\nname = \"sounder\"\nkind = \"nmea\"\nrole = \"depth\"\ntransport = \"udp\"\n"
+    "listen = \"127.0.0.1:47998\"\n"
+    "[tow]\ncable_out_m = 30.0\nsensor_depth_m = 2.0\n";
+
 TEST(ImportBinary, InputOverridesAConfigWithoutTransportOrPath) {
     Session s;
     s.writeGnss(20);
@@ -542,7 +550,8 @@ TEST(ImportBinary, InputOverridesAConfigWithoutTransportOrPath) {
           << "listen = \"127.0.0.1:47999\"\n"
           // The whole core (replay, below) needs a field and a target class.
           << "[geomagnetic]\ninclination_deg = 66.0\nintensity_nT = 50000.0\n"
-          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n";
+          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n"
+          << kRestOfSurvey;
     }
     const auto log = s.dir.file("out.sqlite");
     const auto r = runImport("--config " + cfg + " --input gnss=" + s.gnss + " --input hdg=" + s.hdg +
@@ -578,7 +587,11 @@ TEST(ImportBinary, WhichPathWinsIsSaidAndABogusConfigPathIsAnError) {
         std::ofstream c(cfg);
         // A relative path: it starts at the config's folder (as for record), and does not exist.
         c << "[[input]]\nname = \"gnss\"\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"file\"\n"
-          << "path = \"bogus/gnss.nmea\"\n";
+          << "path = \"bogus/gnss.nmea\"\n"
+          << "[[input]]\nname = \"mag\"\nkind = \"nmea\"\nrole = \"mag\"\ntransport = \"udp\"\n"
+          << "listen = \"127.0.0.1:47999\"\n"
+          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n"
+          << kRestOfSurvey;
     }
     // Used (no --input): the bogus path is an error naming the key, the file and the fix.
     const auto log1 = s.dir.file("a.sqlite");
@@ -612,7 +625,7 @@ TEST(ImportBinary, WhichPathWinsIsSaidAndABogusConfigPathIsAnError) {
                                    s.dir.file("d.sqlite"));
     EXPECT_NE(unknown.rc, 0);
     EXPECT_NE(unknown.out.find("no [[input]] named 'gyro'"), std::string::npos) << unknown.out;
-    EXPECT_NE(unknown.out.find("(inputs: gnss)"), std::string::npos) << unknown.out;
+    EXPECT_NE(unknown.out.find("(inputs: gnss, mag, sounder)"), std::string::npos) << unknown.out;
 }
 
 TEST(ImportBinary, DemoCapturesWithUntimedGyroAndSounderReplayAsTheLiveDemo) {
