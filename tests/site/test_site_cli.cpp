@@ -17,32 +17,14 @@
 
 #include <nlohmann/json.hpp>
 
+#include "site/run_command.hpp"
+
 namespace {
 
 namespace fs = std::filesystem;
 
-struct Result {
-    int rc = -1;
-    std::string out, err;
-};
-
-// Runs a shell command; stdout and stderr apart.
-Result run(const std::string& cmd) {
-    Result r;
-    const std::string err_file = (fs::temp_directory_path() / ("sg_site_err_" + std::to_string(::getpid()))).string();
-    std::unique_ptr<FILE, int (*)(FILE*)> p(popen((cmd + " 2>" + err_file).c_str(), "r"), pclose);
-    if (!p) return r;
-    std::array<char, 4096> buf{};
-    while (fgets(buf.data(), static_cast<int>(buf.size()), p.get()) != nullptr) r.out += buf.data();
-    const int st = pclose(p.release());
-    r.rc = WIFEXITED(st) ? WEXITSTATUS(st) : -1;
-    std::ifstream f(err_file);
-    std::stringstream ss;
-    ss << f.rdbuf();
-    r.err = ss.str();
-    fs::remove(err_file);
-    return r;
-}
+using sg::test::Result;
+using sg::test::run;
 
 const std::string kBin = std::string(SG_BINARY_DIR) + "/app/swathguard";
 const std::string kSrc = SG_SOURCE_DIR;
