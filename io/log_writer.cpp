@@ -26,6 +26,23 @@ void dropDecoded(log::Batch& b) {
     b.aux.clear();
 }
 
+// The event of a loss episode: raw lines not logged while the backlog was at its limit.
+// (A template: the writer's shared state is a private type of LogWriter.)
+template <class Shared>
+log::EventRow lossEvent(Shared& s) {
+    log::EventRow e;
+    e.id = s.next_event_id.fetch_add(1);
+    e.kind = "log_loss";
+    e.source = "log";
+    e.start_utc_ns = s.loss_first_utc;
+    e.end_utc_ns = s.loss_last_utc;
+    e.value = static_cast<double>(s.loss_count);
+    e.detail = fmt::format("{} raw lines not logged: the disk did not take rows and the backlog reached "
+                           "its limit of {} bytes",
+                           s.loss_count, s.options.queue_limit_bytes);
+    return e;
+}
+
 }  // namespace
 
 std::size_t LogWriter::approxBytes(const log::Batch& b) {
@@ -82,17 +99,7 @@ void LogWriter::post(log::Batch&& batch) {
         if (batch.empty()) return;
     } else if (s.loss_count > 0 && !batch.raw.empty()) {
         // The backlog is below the limit again: the loss episode ends, written as an event.
-        log::EventRow e;
-        e.id = s.next_event_id.fetch_add(1);
-        e.kind = "log_loss";
-        e.source = "log";
-        e.start_utc_ns = s.loss_first_utc;
-        e.end_utc_ns = s.loss_last_utc;
-        e.value = static_cast<double>(s.loss_count);
-        e.detail = fmt::format("{} raw lines not logged: the disk did not take rows and the "
-                               "backlog reached its limit of {} bytes",
-                               s.loss_count, limit);
-        batch.events.insert(batch.events.begin(), std::move(e));
+        batch.events.insert(batch.events.begin(), lossEvent(s));
         s.loss_count = 0;
     }
     const std::size_t bytes = approxBytes(batch);
@@ -175,17 +182,7 @@ void LogWriter::run(std::shared_ptr<Shared> sp) {
                 if (s.loss_count > 0) {
                     // The loss episode still open at the end is written too (if the disk lets us).
                     log::Batch b;
-                    log::EventRow e;
-                    e.id = s.next_event_id.fetch_add(1);
-                    e.kind = "log_loss";
-                    e.source = "log";
-                    e.start_utc_ns = s.loss_first_utc;
-                    e.end_utc_ns = s.loss_last_utc;
-                    e.value = static_cast<double>(s.loss_count);
-                    e.detail = fmt::format("{} raw lines not logged: the disk did not take rows "
-                                           "and the backlog reached its limit of {} bytes",
-                                           s.loss_count, s.options.queue_limit_bytes);
-                    b.events.push_back(std::move(e));
+                    b.events.push_back(lossEvent(s));
                     s.loss_count = 0;
                     s.queue.push_back(std::move(b));
                     s.queue_bytes.push_back(256);

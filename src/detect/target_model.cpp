@@ -201,8 +201,8 @@ double worstPeak(const PassGeometry& g) {
 // times its size, in any direction) of max over the pass of |m . a(s)|. The peak is a convex
 // function of m (a maximum of absolute values of linear functions) and the ball is convex, so the
 // problem has one minimum, found by the central-cut ellipsoid method (Shor 1977; Nemirovski and
-// Yudin 1983; see Boyd and Vandenberghe's lecture notes on the ellipsoid method for the update
-// used here): each step cuts the ellipsoid through its centre with a subgradient (the sensitivity
+// Yudin 1983; the central-cut update of Bland, Goldfarb and Todd 1981, Operations Research
+// 29(6)): each step cuts the ellipsoid through its centre with a subgradient (the sensitivity
 // row of the active sample) or, outside the ball, with the ball's gradient. In 3 dimensions the
 // volume shrinks by 0.84 per step; 260 steps reduce the radius about 1e-6 times. The pass is
 // sampled at 1-degree steps of alpha: a sampled maximum is never above the true one (safe side).

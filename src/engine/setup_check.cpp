@@ -11,22 +11,13 @@
 #include "coverage/infill.hpp"
 #include "coverage/survey_plan.hpp"
 #include "engine/pipeline.hpp"
+#include "engine/section_or_empty.hpp"
 #include "engine/survey_summary.hpp"
 #include "nav/survey_crs.hpp"
 
 namespace sg::engine {
 
 namespace {
-
-const toml::table& emptyTable() {
-    static const toml::table t;
-    return t;
-}
-
-config::Section sectionOr(const config::Section& root, std::string_view key) {
-    if (auto s = root.optionalTable(key)) return *s;
-    return config::Section(emptyTable(), root.file(), std::string(key));
-}
 
 const decode::FieldMap* mapOf(const SurveyConfig& cfg, const config::InputConfig& in) {
     if (in.kind != config::InputKind::FieldMap) return nullptr;
@@ -167,9 +158,9 @@ void checkCrsAndPlan(const SurveyConfig& cfg, SetupReport& out) {
     };
     try {
         const auto plan = coverage::loadPlan(*plan_sec, to_grid);
-        (void)coverage::loadCoverageOptions(sectionOr(root, "coverage"));
-        (void)coverage::loadGapOptions(sectionOr(root, "gaps"), plan.surveyHeadingDeg());
-        (void)coverage::loadInfillOptions(sectionOr(root, "infill"), plan.surveyHeadingDeg(), 1.0);
+        (void)coverage::loadCoverageOptions(sectionOrEmpty(root, "coverage"));
+        (void)coverage::loadGapOptions(sectionOrEmpty(root, "gaps"), plan.surveyHeadingDeg());
+        (void)coverage::loadInfillOptions(sectionOrEmpty(root, "infill"), plan.surveyHeadingDeg(), 1.0);
         if (crs) {
             // The plan's area must lie in the CRS's area of use (a wrong zone distorts it).
             const auto& area = plan.area;

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "detect/swath_plan.hpp"
+#include "engine/section_or_empty.hpp"
 
 namespace sg::engine {
 
@@ -35,16 +36,6 @@ constexpr double kTrackStep_m = 5.0;
 // Pose flags that point at the setup (a value the position needs was never there).
 constexpr std::uint32_t kSetupPoseFlags = nav::kNoFix | nav::kNoHeading | nav::kNoCableOut |
                                           nav::kNoSensorDepth;
-
-const toml::table& emptyTable() {
-    static const toml::table t;
-    return t;
-}
-
-config::Section sectionOr(const config::Section& root, std::string_view key) {
-    if (auto s = root.optionalTable(key)) return *s;
-    return config::Section(emptyTable(), root.file(), std::string(key));
-}
 
 }  // namespace
 
@@ -126,8 +117,8 @@ void SurveyEngine::loadPlan() {
     const auto plan_sec = root.optionalTable("plan");
     if (!plan_sec) return;
     auto plan = coverage::loadPlan(*plan_sec, coverage::toGridWith(*m_crs));
-    const auto cov = coverage::loadCoverageOptions(sectionOr(root, "coverage"));
-    const auto gaps = coverage::loadGapOptions(sectionOr(root, "gaps"), plan.surveyHeadingDeg());
+    const auto cov = coverage::loadCoverageOptions(sectionOrEmpty(root, "coverage"));
+    const auto gaps = coverage::loadGapOptions(sectionOrEmpty(root, "gaps"), plan.surveyHeadingDeg());
     m_cov = std::make_unique<coverage::SurveyCoverage>(std::move(plan), cov, gaps);
 }
 
@@ -758,7 +749,7 @@ double SurveyEngine::plannedHalfWidth_m() const {
 
 coverage::InfillOptions SurveyEngine::infillOptions() const {
     const double heading = plan() ? plan()->surveyHeadingDeg() : 0.0;
-    return coverage::loadInfillOptions(sectionOr(m_cfg.root(), "infill"), heading,
+    return coverage::loadInfillOptions(sectionOrEmpty(m_cfg.root(), "infill"), heading,
                                        std::max(0.1, plannedHalfWidth_m()));
 }
 

@@ -85,12 +85,13 @@ Site discoverSite(const std::vector<std::string>& paths, const std::optional<std
         SiteLog l;
         l.path = path;
         l.summary_path = summaryPathFor(path);
+        std::optional<engine::SurveyConfig> own;  // the log's own config, read once
         try {
             log::LogReader reader(path);
-            const auto own = engine::configForLog(reader, std::nullopt);
-            l.config = site.config_in_force ? effectiveConfig(own, *site.config_in_force) : own;
+            own = engine::configForLog(reader, std::nullopt);
+            l.config = site.config_in_force ? effectiveConfig(*own, *site.config_in_force) : *own;
             if (site.config_in_force && !fs::exists(l.summary_path, ec))
-                if (auto d = firstSiteWideDifference(own, *site.config_in_force))
+                if (auto d = firstSiteWideDifference(*own, *site.config_in_force))
                     l.stale_reason = fmt::format("recorded with another {}: computed under the config in force", *d);
         } catch (const std::exception& e) {
             l.skipped = true;
@@ -107,8 +108,7 @@ Site discoverSite(const std::vector<std::string>& paths, const std::optional<std
                 if (stamp != sum.log_stamp && fileContentHash(path) != sum.log_hash) {
                     l.stale_reason = "the log changed since its summary";
                 } else if (sum.config_hash != siteWideHash(*l.config)) {
-                    const auto own = engine::configForLog(*std::make_unique<log::LogReader>(path), std::nullopt);
-                    const auto d = site.config_in_force ? firstSiteWideDifference(own, *site.config_in_force) : std::nullopt;
+                    const auto d = site.config_in_force ? firstSiteWideDifference(*own, *site.config_in_force) : std::nullopt;
                     l.stale_reason = d ? fmt::format("recorded with another {}: recomputed under the config in force", *d)
                                        : "the config in force changed since its summary: recomputed";
                 } else {
