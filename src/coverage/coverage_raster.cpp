@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <bit>
 #include <cmath>
+#include <limits>
 #include <stdexcept>
 
 namespace sg::coverage {
@@ -436,6 +437,15 @@ std::uint64_t CoverageRaster::mergeTile(TileKey key, std::uint16_t block_mask,
     CoverageTile& t = tileFor(tileX(key), tileY(key));
     std::uint64_t newly = 0;
     bool changed = false;
+    // Runs repeat along a tile: remember the last run's palette index.
+    int last_run = std::numeric_limits<int>::min(), last_pal = 0;
+    const auto palOf = [&](int run) {
+        if (run != last_run) {
+            last_pal = paletteIndex(t, run);
+            last_run = run;
+        }
+        return last_pal;
+    };
     for (int b = 0; b < kBlocksPerTile; ++b) {
         if ((block_mask & (1U << b)) == 0) continue;
         const int row0 = (b / kBlocksPerSide) * kBlockCells, col0 = (b % kBlocksPerSide) * kBlockCells;
@@ -447,7 +457,7 @@ std::uint64_t CoverageRaster::mergeTile(TileKey key, std::uint16_t block_mask,
             const int run = runs[static_cast<std::size_t>(ci)];
             if (slot == 0) {
                 const std::uint32_t idx = m_blocks.add();
-                m_blocks[idx].runs = static_cast<std::uint32_t>(paletteIndex(t, run));
+                m_blocks[idx].runs = static_cast<std::uint32_t>(palOf(run));
                 slot = idx + 1;
             }
             CoverageBlock& blk = m_blocks[slot - 1];
@@ -462,7 +472,7 @@ std::uint64_t CoverageRaster::mergeTile(TileKey key, std::uint16_t block_mask,
             }
             if (cur < kCoveredCode && q >= kCoveredCode) ++newly;
             blk.margin[static_cast<std::size_t>(off)] = q;
-            const int pal = paletteIndex(t, run);
+            const int pal = palOf(run);
             if (blk.runs != static_cast<std::uint32_t>(pal)) setRuns(blk, off, 1U, pal);
             changed = true;
         }

@@ -4,7 +4,6 @@
 #include <cstring>
 #include <filesystem>
 #include <fstream>
-#include <sstream>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -151,12 +150,16 @@ SessionSummary fromJson(const json& j) {
     return s;
 }
 
-std::string readWhole(const std::string& path) {
-    std::ifstream in(path, std::ios::binary);
+// Reads the whole file into `into` (resized to the file's size; its capacity is kept between
+// calls, so that opening a site of many logs does not fault in fresh pages for every summary).
+void readWhole(const std::string& path, std::string& into) {
+    std::ifstream in(path, std::ios::binary | std::ios::ate);
     if (!in) throw std::runtime_error(fmt::format("{}: cannot read the session summary", path));
-    std::ostringstream s;
-    s << in.rdbuf();
-    return s.str();
+    const auto size = static_cast<std::size_t>(in.tellg());
+    into.resize(size);
+    in.seekg(0);
+    in.read(into.data(), static_cast<std::streamsize>(size));
+    into.resize(static_cast<std::size_t>(in.gcount()));
 }
 
 // Splits a summary file into its JSON text and raster bytes.
@@ -282,7 +285,7 @@ void writeSessionSummary(const std::string& path, const SessionSummary& s) {
 SessionSummary readSessionSummary(const std::string& path, bool with_raster) {
     std::string bytes;
     if (with_raster) {
-        bytes = readWhole(path);
+        readWhole(path, bytes);
     } else {
         // The header and the JSON only: opening a site does not read the rasters twice.
         std::ifstream in(path, std::ios::binary);
@@ -311,9 +314,9 @@ SessionSummary readSessionSummary(const std::string& path, bool with_raster) {
     return s;
 }
 
-std::string readSessionRaster(const std::string& path) {
-    const std::string bytes = readWhole(path);
-    return std::string(splitFile(bytes, path).second);
+std::string_view readSessionRaster(const std::string& path, std::string& buffer) {
+    readWhole(path, buffer);
+    return splitFile(buffer, path).second;
 }
 
 }  // namespace sg::site

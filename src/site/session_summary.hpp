@@ -62,8 +62,9 @@ void writeSessionSummary(const std::string& path, const SessionSummary& s);
 // Reads a summary; with_raster == false leaves raster_bytes empty (the header and tables only).
 // Throws std::runtime_error for a missing, damaged or foreign file.
 SessionSummary readSessionSummary(const std::string& path, bool with_raster);
-// Only the raster bytes of a summary file (for merging one log at a time).
-std::string readSessionRaster(const std::string& path);
+// Only the raster bytes of a summary file (for merging one log at a time): a view into `buffer`,
+// which holds the whole file; reuse one buffer for many summaries.
+std::string_view readSessionRaster(const std::string& path, std::string& buffer);
 
 // Where the summary of a log lives: beside it, with the extension .sgsum.
 std::string summaryPathFor(const std::string& log_path);

@@ -276,9 +276,11 @@ engine::SiteSeed siteSeed(const Site& site, std::optional<std::size_t> upto) {
                      [](const auto& a, const auto& b) { return a.start_ns < b.start_ns; });
     seed.merge_into = [logs, bases](coverage::CoverageRaster& raster, std::vector<engine::SessionInfo>& sessions) {
         const double cell_m2 = raster.cellSize() * raster.cellSize();
+        std::string buffer;
         for (std::size_t k = 0; k < logs.size(); ++k) {
             const auto* l = logs[k];
-            const std::string bytes = l->raster_in_memory ? l->summary->raster_bytes : readSessionRaster(l->summary_path);
+            const std::string_view bytes =
+                l->raster_in_memory ? std::string_view(l->summary->raster_bytes) : readSessionRaster(l->summary_path, buffer);
             if (bytes.empty()) continue;  // the log had no [plan] or no fix: no raster
             std::uint64_t added = 0;
             try {
