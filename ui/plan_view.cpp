@@ -46,6 +46,10 @@ BoundsEN surveyBounds(const engine::Snapshot& s) {
     return b;
 }
 
+const std::vector<engine::CoverageTileView>& planTiles(const engine::Snapshot& s, bool hide_earlier) {
+    return hide_earlier && s.earlier_sessions > 0 ? s.session_tiles : s.tiles;
+}
+
 PlanTransform fitTransform(const BoundsEN& b, const Rect& rect) {
     PlanTransform t;
     t.rect_center = {(rect.min.x + rect.max.x) * 0.5f, (rect.min.y + rect.max.y) * 0.5f};
@@ -296,14 +300,22 @@ public:
         dl->PushClipRect(amin, amax, true);
         const float sc = ctx.scale;
 
-        // ---- coverage raster ----
-        for (const auto& tile : s->tiles) {
+        // ---- coverage raster (a site: this session's own when earlier sessions are hidden) ----
+        const bool own_only = ctx.settings && ctx.settings->hide_earlier_sessions && s->earlier_sessions > 0;
+        for (const auto& tile : planTiles(*s, own_only)) {
             const double side = tile.size_cells * tile.cell_m;
             const ImVec2 a = m_t.toScreen({tile.origin_e, tile.origin_n + side});  // top-left
             const ImVec2 b = m_t.toScreen({tile.origin_e + side, tile.origin_n});  // bottom-right
             if (b.x < amin.x || a.x > amax.x || b.y < amin.y || a.y > amax.y) continue;
             if (ImTextureID tex = ctx.textures ? ctx.textures->textureFor(tile, pal) : nullptr)
                 dl->AddImage(tex, a, b);
+        }
+        if (own_only) {
+            // Never let hidden coverage pass for missing coverage: say so on the plan itself.
+            char note[128];
+            std::snprintf(note, sizeof note, "This session only: coverage of %d earlier log%s hidden",
+                          s->earlier_sessions, s->earlier_sessions == 1 ? " is" : "s is");
+            dl->AddText({amin.x + 8.0f * sc, amax.y - ImGui::GetTextLineHeight() - 8.0f * sc}, pal.text, note);
         }
 
         // ---- area, lines, gaps, infill ----

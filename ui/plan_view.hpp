@@ -33,6 +33,10 @@ struct BoundsEN {
 // lines, else the covered tiles, else the vessel.
 BoundsEN surveyBounds(const engine::Snapshot& snapshot);
 
+// The coverage tiles the plan draws: a site's whole coverage, or this session's own when the
+// operator hides earlier sessions (only where the snapshot has earlier sessions).
+const std::vector<engine::CoverageTileView>& planTiles(const engine::Snapshot& snapshot, bool hide_earlier);
+
 // A transform showing `b` whole inside `rect` with a 5 % margin on each side.
 PlanTransform fitTransform(const BoundsEN& b, const Rect& rect);
 

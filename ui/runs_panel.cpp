@@ -19,7 +19,9 @@ public:
         if (!s) return;
         const float sc = ctx.scale;
         ImGui::BeginChild("runs_scroll", ImGui::GetContentRegionAvail(), false);
-        if (ImGui::CollapsingHeader("Runs", ImGuiTreeNodeFlags_DefaultOpen)) drawRuns(ctx, *s, sc, m_hide_earlier);
+        bool unused = false;
+        bool& hide_earlier = ctx.settings ? ctx.settings->hide_earlier_sessions : unused;
+        if (ImGui::CollapsingHeader("Runs", ImGuiTreeNodeFlags_DefaultOpen)) drawRuns(ctx, *s, sc, hide_earlier);
         if (ImGui::CollapsingHeader("Planned lines")) drawLines(ctx, *s);
         char head[64];
         std::snprintf(head, sizeof head, "Gaps (%zu)###gaps", s->gaps.size());
@@ -30,19 +32,19 @@ public:
     }
 
 private:
-    bool m_hide_earlier = false;
-
     static void drawRuns(FrameContext&, const engine::Snapshot& s, float, bool& hide_earlier) {
         if (s.runs.empty()) {
             ImGui::TextDisabled("No runs recorded yet.");
             return;
         }
-        // A site: runs of earlier logs come first; they can be hidden to see today's work only.
+        // A site: runs of earlier logs come first; they and their coverage on the plan can be
+        // hidden to see today's work only.
         std::size_t earlier = 0;
         for (const auto& r : s.runs) earlier += r.earlier_session ? 1 : 0;
-        if (earlier > 0) {
-            char label[96];
-            std::snprintf(label, sizeof label, "Hide the %zu runs of earlier sessions", earlier);
+        if (s.earlier_sessions > 0) {
+            char label[128];
+            std::snprintf(label, sizeof label, "This session only (hide %zu runs and the coverage of %d earlier log%s)",
+                          earlier, s.earlier_sessions, s.earlier_sessions == 1 ? "" : "s");
             ImGui::Checkbox(label, &hide_earlier);
         }
         if (!ImGui::BeginTable("runs", 8, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingStretchProp)) return;

@@ -18,6 +18,8 @@ struct ScreenSettings {
     bool follow_vessel = true;   // plan view keeps the vessel in view
     std::vector<std::string> hidden_plots;  // titles of time plots the operator switched off
     std::string tab = "Alarms";  // the tab shown under the plots: Alarms, Runs & infill, Profiles
+    // A site: show only this session's runs and coverage (not saved: a choice of the moment).
+    bool hide_earlier_sessions = false;
 };
 
 // Default path as described above; empty when neither XDG_CONFIG_HOME nor HOME is set.

@@ -36,7 +36,7 @@ void TileTextureCache::clear() {
 
 ImTextureID TileTextureCache::textureFor(const engine::CoverageTileView& tile, const Palette& palette) {
     if (tile.size_cells <= 0 || !tile.margin_q) return nullptr;
-    Entry& e = m_entries[{tile.tx, tile.ty}];
+    Entry& e = m_entries[{tile.layer, tile.tx, tile.ty}];
     if (e.texture && e.size != tile.size_cells) {
         m_backend->destroy(e.texture);
         e = Entry{};

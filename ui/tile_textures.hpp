@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <map>
 #include <memory>
+#include <tuple>
 #include <utility>
 #include <vector>
 
@@ -49,7 +50,7 @@ private:
     };
     std::unique_ptr<TextureBackend> m_backend;
     std::uint64_t m_evict_after;
-    std::map<std::pair<int, int>, Entry> m_entries;
+    std::map<std::tuple<int, int, int>, Entry> m_entries;  // (layer, tx, ty)
     std::vector<ImU32> m_rgba;
     std::uint64_t m_frame = 0;
     std::uint64_t m_uploads = 0;

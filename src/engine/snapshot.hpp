@@ -84,6 +84,7 @@ struct Chunked {
 // cell (col, row) covers e in [origin_e + col*cell_m, +cell_m), n in [origin_n + row*cell_m, +cell_m).
 struct CoverageTileView {
     int tx = 0, ty = 0;          // tile index in the raster's tile grid
+    int layer = 0;               // 0 = the whole site (or session), 1 = this session's own painting
     int size_cells = 0;          // cells per side (the tile is size_cells x size_cells)
     double cell_m = 1.0;         // cell side, metres, > 0
     double origin_e = 0.0;       // south-west corner of the tile, metres
@@ -224,6 +225,10 @@ struct Snapshot {
     std::vector<PlannedLineView> lines;
     int active_line = -1;                    // index into lines, -1 = none
     std::vector<CoverageTileView> tiles;
+    // A site with earlier sessions: this session's own coverage (layer 1), so that the plan can
+    // hide what earlier sessions covered. Empty without earlier sessions.
+    std::vector<CoverageTileView> session_tiles;
+    int earlier_sessions = 0;  // a site: logs joined before this session (0 = a single log)
     MarginScale margin;
     std::vector<GapView> gaps;
     std::vector<InfillView> infill;

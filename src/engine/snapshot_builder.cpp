@@ -113,15 +113,23 @@ std::shared_ptr<const Series> SnapshotBuilder::series(const std::string& key) co
 }
 
 void SnapshotBuilder::updateTiles() {
-    const auto& raster = m_engine.raster();
-    if (raster.generation() == m_tiles_gen) return;
+    convertTiles(m_engine.raster(), 0, m_tiles_gen, m_tiles);
+    const auto* cov = m_engine.coverage();
+    if (cov != nullptr && cov->isSite() && !m_engine.priorSessions().empty())
+        convertTiles(cov->sessionRaster(), 1, m_session_tiles_gen, m_session_tiles);
+}
+
+void SnapshotBuilder::convertTiles(const coverage::CoverageRaster& raster, int layer, std::uint64_t& gen,
+                                   std::map<std::uint64_t, CoverageTileView>& views) {
+    if (raster.generation() == gen) return;
     const double cell = raster.cellSize();
-    for (const auto key : raster.tilesChangedSince(m_tiles_gen)) {
+    for (const auto key : raster.tilesChangedSince(gen)) {
         const auto* tile = raster.tile(coverage::tileX(key), coverage::tileY(key));
         if (tile == nullptr) continue;
         CoverageTileView v;
         v.tx = coverage::tileX(key);
         v.ty = coverage::tileY(key);
+        v.layer = layer;
         v.size_cells = coverage::kTileCells;
         v.cell_m = cell;
         const std::int64_t ix0 = static_cast<std::int64_t>(v.tx) * coverage::kTileCells;
@@ -138,9 +146,9 @@ void SnapshotBuilder::updateTiles() {
             code = code >= coverage::kCoveredCode ? static_cast<std::uint8_t>(code - 15) : 0;
         }
         v.margin_q = std::move(q);
-        m_tiles[key] = std::move(v);
+        views[key] = std::move(v);
     }
-    m_tiles_gen = raster.generation();
+    gen = raster.generation();
 }
 
 void SnapshotBuilder::updateGaps(bool force) {
@@ -216,6 +224,8 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     const auto* lines = m_engine.lines();
     s.active_line = lines ? lines->activeLine() : -1;
     for (const auto& [key, v] : m_tiles) s.tiles.push_back(v);
+    for (const auto& [key, v] : m_session_tiles) s.session_tiles.push_back(v);
+    s.earlier_sessions = static_cast<int>(m_engine.priorSessions().size());
     s.margin.lo = 1.0;
     s.margin.hi = 1.0 + 254.0 / 16.0;
     s.margin.unit = "x threshold";

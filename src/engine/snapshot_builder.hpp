@@ -38,6 +38,9 @@ public:
 private:
     void onSample(const SensorState& s);
     void updateTiles();
+    // Converts the tiles of `raster` changed since `gen` into `views` (layer as given).
+    static void convertTiles(const coverage::CoverageRaster& raster, int layer, std::uint64_t& gen,
+                             std::map<std::uint64_t, CoverageTileView>& views);
     void updateGaps(bool force);
     std::shared_ptr<const Series> series(const std::string& key) const;
 
@@ -69,6 +72,8 @@ private:
     // Tiles: converted views by tile key, and the raster generation they reflect.
     std::map<std::uint64_t, CoverageTileView> m_tiles;
     std::uint64_t m_tiles_gen = 0;
+    std::map<std::uint64_t, CoverageTileView> m_session_tiles;  // a site: this session's own
+    std::uint64_t m_session_tiles_gen = 0;
 
     // Gaps.
     double m_last_gap_s = -1e18;
