@@ -215,15 +215,22 @@ TEST(TileTextures, UploadOnlyWhenGenerationOrPaletteChangesAndEvictUnused) {
     EXPECT_EQ(cache.residentTiles(), 0u);
 }
 
-TEST(Palette, MarginRampGetsLighterWithMargin) {
+// Margin classes step away from the background as the margin grows: darker by day, lighter by
+// night (Rec. 709 luma on the 8-bit values; the WCAG figures are in test_palette.cpp).
+TEST(Palette, MarginClassesMoveAwayFromTheBackgroundWithMargin) {
+    const auto luma = [](ImU32 c) {
+        return 0.2126 * (c & 0xFF) + 0.7152 * ((c >> 8) & 0xFF) + 0.0722 * ((c >> 16) & 0xFF);
+    };
     for (const auto* pal : {&sg::ui::dayPalette(), &sg::ui::nightPalette()}) {
         double prev = -1;
+        int steps = 0;
         for (int q = 1; q <= 255; q += 6) {
-            const ImU32 c = pal->marginColour(static_cast<std::uint8_t>(q));
-            const double l = 0.2126 * (c & 0xFF) + 0.7152 * ((c >> 8) & 0xFF) + 0.0722 * ((c >> 16) & 0xFF);
-            EXPECT_GE(l, prev) << pal->name << " q=" << q;
-            prev = l;
+            const double d = std::abs(luma(pal->marginColour(static_cast<std::uint8_t>(q))) - luma(pal->background));
+            EXPECT_GE(d, prev) << pal->name << " q=" << q;
+            steps += d > prev + 1.0 && prev >= 0 ? 1 : 0;
+            prev = d;
         }
+        EXPECT_EQ(steps, 2) << pal->name << ": three classes, two steps";
         EXPECT_EQ(pal->marginColour(0), 0u);
     }
 }
