@@ -21,7 +21,9 @@ Layout computeLayout(ImVec2 display, float scale, bool replay, bool banner) {
     const float banner_h = std::round(86.0f * scale);
     const float body_top = toolbar_h + (banner ? banner_h : 0.0f);
     const float body_bottom = std::max(body_top + 10.0f, h - status_h - replay_h);
-    const float plan_w = std::round(std::clamp(w * 0.56f, 200.0f, w));
+    // The right column (plots, lists, their toggles) needs more of a narrow window as text grows.
+    const float plan_share = std::clamp(0.56f - 0.06f * (scale - 1.0f), 0.44f, 0.56f);
+    const float plan_w = std::round(std::clamp(w * plan_share, 200.0f, w));
     const float plots_h = std::round((body_bottom - body_top) * 0.62f);
 
     Layout l;

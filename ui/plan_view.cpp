@@ -395,7 +395,15 @@ private:
         w = std::max(w, ImGui::CalcTextSize(kLegendTitle).x);
         const float h = lh + 4 * sc + sw;
         const ImVec2 a{r.max.x - w - 16 * sc, r.max.y - h - 12 * sc};
-        return {{a.x - 6 * sc, a.y - 4 * sc}, {a.x + w + 6 * sc, a.y + h + 4 * sc}};
+        Rect box{{a.x - 6 * sc, a.y - 4 * sc}, {a.x + w + 6 * sc, a.y + h + 4 * sc}};
+        // In a narrow view the legend would run into the scale bar: it goes above it then.
+        const Rect bar = scaleBarRect(r, sc);
+        if (overlaps(box, bar)) {
+            const float up = box.max.y - (bar.min.y - 4 * sc);
+            box.min.y -= up;
+            box.max.y -= up;
+        }
+        return box;
     }
     static constexpr const char* kLegendTitle = "detection margin (x threshold)";
 
