@@ -9,17 +9,20 @@
 
 #include <fmt/format.h>
 
+#include "common/colour_code.hpp"
+
 namespace sg::report {
 
 namespace {
 
-// Our own palette: warm greys and amber for what was not seen, sea greens to deep teal for the
-// margin achieved, crimson gap outlines, violet infill. Chosen to stay apart in greyscale print.
-const Rgb kNoSwath{0.87, 0.85, 0.80};
-const Rgb kPlanLine{0.30, 0.33, 0.38};
-const Rgb kGap{0.78, 0.08, 0.15};
-const Rgb kInfill{0.47, 0.20, 0.72};
-const Rgb kArea{0.10, 0.10, 0.12};
+// The colours are the shared colour code's light scheme (src/common/colour_code.hpp), the same
+// table the day screen uses: one code for screen and paper.
+const colour::Scheme& kCode = colour::kLight;
+const Rgb kNoSwath = toRgb(kCode.not_run_yet);
+const Rgb kPlanLine = toRgb(kCode.plan_line);
+const Rgb kGap = toRgb(kCode.gap);
+const Rgb kInfill = toRgb(kCode.infill);
+const Rgb kArea = toRgb(kCode.area);
 
 void setColour(cairo_t* cr, Rgb c, double alpha = 1.0) { cairo_set_source_rgba(cr, c.r, c.g, c.b, alpha); }
 
@@ -201,23 +204,22 @@ void drawNorth(cairo_t* cr, const MapFrame& f, double ls) {
 
 }  // namespace
 
+Rgb toRgb(colour::Rgb8 c) { return {c.r / 255.0, c.g / 255.0, c.b / 255.0}; }
+
 const std::vector<MarginClass>& marginClasses() {
-    static const std::vector<MarginClass> k{
-        {"no swath", kNoSwath},
-        {"seen, margin < 1 (not detectable)", {0.96, 0.63, 0.22}},
-        {"margin 1 - 2", {0.72, 0.87, 0.78}},
-        {"margin 2 - 4", {0.40, 0.70, 0.62}},
-        {"margin >= 4", {0.12, 0.44, 0.46}},
-    };
+    static const std::vector<MarginClass> k = [] {
+        std::vector<MarginClass> v{{"no swath", toRgb(colour::kLight.not_run_yet)}};
+        for (int c = 0; c < colour::kMarginClassCount; ++c)
+            v.push_back({colour::kMarginClassLabels[static_cast<std::size_t>(c)],
+                         toRgb(colour::kLight.margin[static_cast<std::size_t>(c)])});
+        return v;
+    }();
     return k;
 }
 
 int marginClassOf(std::uint8_t code) {
     if (code == 0) return 0;
-    if (code < coverage::kCoveredCode) return 1;
-    if (code < 2 * coverage::kCoveredCode) return 2;
-    if (code < 4 * coverage::kCoveredCode) return 3;
-    return 4;
+    return 1 + static_cast<int>(colour::marginClassOf(coverage::marginFromCode(code)));
 }
 
 MapFrame fitFrame(coverage::Box world, double x, double y, double w, double h) {

@@ -1,7 +1,8 @@
 // The coverage map drawn with Cairo, for the PDF pages and the PNG files alike: the raster
 // coloured by detection margin (each pixel shows the WEAKEST cell under it, so a gap narrower than
 // a pixel still shows), the area outline, the planned lines, the gap outlines with their ids, the
-// infill lines with their names, a scale bar and grid north. Colours: report/map_render.cpp.
+// infill lines with their names, a scale bar and grid north. Colours: the light scheme of the
+// shared colour code, src/common/colour_code.hpp (the day screen uses the same table).
 #pragma once
 
 #include <string>
@@ -9,6 +10,7 @@
 
 #include <cairo.h>
 
+#include "common/colour_code.hpp"
 #include "coverage/coverage_raster.hpp"
 #include "coverage/gaps.hpp"
 #include "coverage/geometry.hpp"
@@ -20,6 +22,8 @@ namespace sg::report {
 struct Rgb {
     double r = 0, g = 0, b = 0;
 };
+// A colour of the shared colour code (src/common/colour_code.hpp) as Cairo wants it (0..1).
+Rgb toRgb(colour::Rgb8 c);
 
 // The margin classes of the map legend, weakest first.
 struct MarginClass {

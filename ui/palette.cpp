@@ -1,4 +1,4 @@
-// Day and night palettes and the margin colour ramp.
+// Day and night palettes: the shared colour code for the map, the screen's own widget colours.
 #include "ui/palette.hpp"
 
 #include <algorithm>
@@ -10,33 +10,35 @@ namespace {
 
 constexpr ImU32 rgb(int r, int g, int b, int a = 255) { return IM_COL32(r, g, b, a); }
 
-int channel(ImU32 c, int shift) { return static_cast<int>((c >> shift) & 0xFFu); }
-
-ImU32 mix(ImU32 a, ImU32 b, float t) {
-    auto lerp = [t](int x, int y) { return static_cast<int>(std::lround(static_cast<float>(x) + (static_cast<float>(y - x)) * t)); };
-    return rgb(lerp(channel(a, IM_COL32_R_SHIFT), channel(b, IM_COL32_R_SHIFT)),
-               lerp(channel(a, IM_COL32_G_SHIFT), channel(b, IM_COL32_G_SHIFT)),
-               lerp(channel(a, IM_COL32_B_SHIFT), channel(b, IM_COL32_B_SHIFT)));
+// The map colours from the shared colour code (src/common/colour_code.hpp).
+void applyScheme(Palette& p, const colour::Scheme& c) {
+    p.scheme = &c;
+    p.background = toImU32(c.background);
+    p.text = toImU32(c.text);
+    p.text_dim = toImU32(c.text_dim);
+    p.area = toImU32(c.area);
+    p.line = toImU32(c.plan_line);
+    p.line_label = toImU32(c.line_label);
+    p.tow_track = toImU32(c.track);
+    p.gap = toImU32(c.gap);
+    p.gap_fill = (toImU32(c.gap) & ~IM_COL32_A_MASK) | (static_cast<ImU32>(c.dark ? 40 : 50) << IM_COL32_A_SHIFT);
+    p.infill = toImU32(c.infill);
+    p.not_run_yet = toImU32(c.not_run_yet);
+    p.pick = toImU32(c.pick);
+    for (int k = 0; k < colour::kMarginClassCount; ++k)
+        p.margin_class[k] = toImU32(c.margin[static_cast<std::size_t>(k)]);
 }
 
 Palette makeDay() {
     Palette p;
     p.name = "day";
     p.dark = false;
-    p.background = rgb(236, 238, 232);
-    p.text = rgb(24, 28, 34);
-    p.text_dim = rgb(98, 104, 112);
+    applyScheme(p, colour::kLight);
     p.grid = rgb(210, 213, 206);
     p.axis = rgb(120, 124, 130);
-    p.area = rgb(60, 60, 60);
-    p.line = rgb(128, 118, 150);
-    p.line_active = rgb(208, 64, 160);
-    p.tow_track = rgb(40, 40, 40);
+    p.line_active = rgb(176, 40, 130);
     p.vessel = rgb(10, 10, 10);
-    p.swath_edge = rgb(0, 120, 190);
-    p.gap = rgb(235, 20, 20);
-    p.gap_fill = rgb(235, 20, 20, 50);
-    p.infill = rgb(230, 130, 0);
+    p.swath_edge = rgb(0, 110, 170);
     p.warn = rgb(214, 150, 0);
     p.alarm = rgb(200, 24, 24);
     p.banner = rgb(200, 24, 24);
@@ -47,10 +49,6 @@ Palette makeDay() {
     const ImU32 s[6] = {rgb(31, 100, 180), rgb(214, 96, 20), rgb(30, 150, 90), rgb(150, 60, 170),
                         rgb(120, 90, 50), rgb(200, 60, 110)};
     std::copy(std::begin(s), std::end(s), p.series);
-    // Dark blue -> green-teal -> pale yellow: lightness rises with margin.
-    p.ramp[0] = rgb(52, 58, 128);
-    p.ramp[1] = rgb(38, 150, 140);
-    p.ramp[2] = rgb(226, 232, 120);
     return p;
 }
 
@@ -59,20 +57,12 @@ Palette makeNight() {
     p.name = "night";
     p.dark = true;
     // Low luminance everywhere; no large bright areas that would spoil night vision.
-    p.background = rgb(8, 9, 11);
-    p.text = rgb(150, 140, 120);
-    p.text_dim = rgb(92, 86, 76);
+    applyScheme(p, colour::kDark);
     p.grid = rgb(24, 26, 30);
-    p.axis = rgb(70, 70, 72);
-    p.area = rgb(110, 104, 96);
-    p.line = rgb(78, 72, 96);
-    p.line_active = rgb(150, 70, 130);
-    p.tow_track = rgb(120, 116, 110);
-    p.vessel = rgb(170, 160, 140);
-    p.swath_edge = rgb(60, 110, 150);
-    p.gap = rgb(200, 40, 30);
-    p.gap_fill = rgb(200, 40, 30, 40);
-    p.infill = rgb(170, 110, 30);
+    p.axis = rgb(90, 90, 92);
+    p.line_active = rgb(230, 120, 200);
+    p.vessel = rgb(200, 190, 170);
+    p.swath_edge = rgb(90, 150, 200);
     p.warn = rgb(160, 115, 20);
     p.alarm = rgb(170, 30, 24);
     p.banner = rgb(150, 24, 20);
@@ -83,9 +73,6 @@ Palette makeNight() {
     const ImU32 s[6] = {rgb(70, 110, 160), rgb(160, 96, 40), rgb(60, 130, 90), rgb(130, 80, 140),
                         rgb(120, 100, 70), rgb(150, 70, 100)};
     std::copy(std::begin(s), std::end(s), p.series);
-    p.ramp[0] = rgb(28, 30, 70);
-    p.ramp[1] = rgb(24, 82, 78);
-    p.ramp[2] = rgb(110, 116, 64);
     return p;
 }
 
@@ -93,8 +80,7 @@ Palette makeNight() {
 
 ImU32 Palette::marginColour(std::uint8_t q) const {
     if (q == 0) return 0;
-    const float t = static_cast<float>(q - 1) / 254.0f;
-    return t < 0.5f ? mix(ramp[0], ramp[1], t * 2.0f) : mix(ramp[1], ramp[2], (t - 0.5f) * 2.0f);
+    return margin_class[static_cast<int>(colour::marginClassOf(marginOfSnapshotCode(q)))];
 }
 
 const Palette& dayPalette() {

@@ -7,7 +7,10 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <initializer_list>
+#include <string>
 
+#include "ui/label_placer.hpp"
 #include "ui/panel.hpp"
 #include "ui/plot_draw.hpp"
 
@@ -214,12 +217,6 @@ void drawWorldPolyline(ImDrawList* dl, const std::vector<engine::PointEN>& pts, 
                                        closed ? ImDrawFlags_Closed : ImDrawFlags_None, thickness);
 }
 
-void drawLabel(ImDrawList* dl, ImVec2 at, ImU32 colour, ImU32 background, const char* text) {
-    const ImVec2 size = ImGui::CalcTextSize(text);
-    dl->AddRectFilled({at.x - 2, at.y - 1}, {at.x + size.x + 2, at.y + size.y + 1}, background);
-    dl->AddText(at, colour, text);
-}
-
 ImU32 withAlpha(ImU32 c, int alpha) { return (c & ~IM_COL32_A_MASK) | (static_cast<ImU32>(alpha) << IM_COL32_A_SHIFT); }
 
 class PlanView final : public Panel {
@@ -340,26 +337,9 @@ public:
         for (std::size_t i = 0; i < s->sensors.size(); ++i)
             drawTrack(dl, s->sensors[i].track, m_t, rect, withAlpha(pal.seriesColour(i), 200), 1.0f * sc, m_track_cache[i + 1]);
 
-        // ---- labels (after the tracks so they stay readable) ----
-        const ImU32 label_bg = withAlpha(pal.background, 190);
-        for (std::size_t i = 0; i < s->lines.size(); ++i) {
-            const auto& line = s->lines[i];
-            if (line.points.empty()) continue;
-            const bool is_active = static_cast<int>(i) == s->active_line;
-            const ImVec2 p = m_t.toScreen(line.points.front());
-            drawLabel(dl, {p.x + 4, p.y + 2}, is_active ? pal.line_active : pal.text_dim, label_bg, line.name.c_str());
-        }
-        for (const auto& gap : s->gaps) {
-            char buf[64];
-            std::snprintf(buf, sizeof buf, "gap %llu: %.0f m2", static_cast<unsigned long long>(gap.id), gap.area_m2);
-            const ImVec2 p = m_t.toScreen(gap.centroid);
-            drawLabel(dl, {p.x + 6, p.y - 6}, pal.gap, label_bg, buf);
-        }
-        for (const auto& inf : s->infill) {
-            if (inf.points.empty()) continue;
-            const ImVec2 p = m_t.toScreen(inf.points.front());
-            drawLabel(dl, {p.x + 4, p.y - 16 * sc}, pal.infill, label_bg, inf.name.c_str());
-        }
+        // ---- labels (after the tracks so they stay readable; placed without overlap) ----
+        const Rect legend = legendRect(rect, sc), scale_bar = scaleBarRect(rect, sc);
+        placeLabels(dl, rect, pal, *s, sc, {legend, scale_bar, controlsRect(rect, sc), northArrowRect(rect, sc)});
 
         // ---- live swath, sensors, vessel ----
         for (std::size_t i = 0; i < s->sensors.size(); ++i) {
@@ -386,7 +366,7 @@ public:
 
         drawScaleBar(dl, rect, pal, sc);
         drawNorthArrow(dl, rect, pal, sc);
-        drawLegend(dl, rect, pal, s->margin, sc);
+        drawLegend(dl, rect, pal, sc);
         if (hovered) drawReadout(dl, rect, pal, *s, io.MousePos, sc);
         dl->PopClipRect();
 
@@ -398,48 +378,169 @@ public:
     }
 
 private:
+    // The corner furniture's rectangles: labels keep clear of them.
+    static Rect controlsRect(const Rect& r, float sc) {
+        const ImGuiStyle& st = ImGui::GetStyle();
+        const float w = ImGui::CalcTextSize("Fit").x + ImGui::CalcTextSize("Follow vessel").x + ImGui::GetFrameHeight() +
+                        4 * st.FramePadding.x + st.ItemSpacing.x + st.ItemInnerSpacing.x;
+        return {r.min, {r.min.x + 6 * sc + w + 6 * sc, r.min.y + 6 * sc + ImGui::GetFrameHeight() + 4 * sc}};
+    }
+    static Rect northArrowRect(const Rect& r, float sc) {
+        const float lh = ImGui::GetTextLineHeight();
+        const float w = std::max(ImGui::CalcTextSize("grid").x, 14 * sc) + 12 * sc;
+        const ImVec2 c{r.max.x - 30 * sc, r.min.y + 50 * sc};
+        return {{c.x - w * 0.5f - 4 * sc, c.y - 22 * sc}, {c.x + w * 0.5f + 4 * sc, c.y + 18 * 0.7f * sc + 2 * lh + 4 * sc}};
+    }
+    static Rect scaleBarRect(const Rect& r, float sc) {
+        const float lh = ImGui::GetTextLineHeight();
+        const float w = 120 * sc + ImGui::CalcTextSize("500 m").x + 20 * sc;
+        const ImVec2 a{r.min.x + 10 * sc, r.max.y - 10 * sc - lh - 8 * sc};
+        return {a, {a.x + w, r.max.y - 6 * sc}};
+    }
+    // Legend: title over one swatch per detectable margin class (the screen shows covered cells
+    // only, so the class below 1 never appears here).
+    static Rect legendRect(const Rect& r, float sc) {
+        const float lh = ImGui::GetTextLineHeight(), sw = lh;
+        float w = 0;
+        for (int k = 1; k < colour::kMarginClassCount; ++k)
+            w += sw + 4 * sc + ImGui::CalcTextSize(colour::kMarginClassShort[static_cast<std::size_t>(k)]).x + 10 * sc;
+        w = std::max(w, ImGui::CalcTextSize(kLegendTitle).x);
+        const float h = lh + 4 * sc + sw;
+        const ImVec2 a{r.max.x - w - 16 * sc, r.max.y - h - 12 * sc};
+        Rect box{{a.x - 6 * sc, a.y - 4 * sc}, {a.x + w + 6 * sc, a.y + h + 4 * sc}};
+        // In a narrow view the legend would run into the scale bar: it goes above it then.
+        const Rect bar = scaleBarRect(r, sc);
+        if (overlaps(box, bar)) {
+            const float up = box.max.y - (bar.min.y - 4 * sc);
+            box.min.y -= up;
+            box.max.y -= up;
+        }
+        return box;
+    }
+    static constexpr const char* kLegendTitle = "detection margin (x threshold)";
+
     void drawScaleBar(ImDrawList* dl, const Rect& r, const Palette& pal, float sc) const {
+        const Rect box = scaleBarRect(r, sc);
         const double target_m = 120.0 * sc / m_t.px_per_m;
         const double mag = std::pow(10.0, std::floor(std::log10(target_m)));
         double len_m = mag;
         for (double m : {1.0, 2.0, 5.0})
             if (m * mag <= target_m) len_m = m * mag;
         const float len_px = static_cast<float>(len_m * m_t.px_per_m);
-        const ImVec2 a{r.min.x + 16 * sc, r.max.y - 40 * sc};
-        dl->AddRectFilled({a.x - 6, a.y - 18 * sc}, {a.x + len_px + 60 * sc, a.y + 10 * sc}, withAlpha(pal.background, 200));
-        dl->AddLine(a, {a.x + len_px, a.y}, pal.text, 3.0f * sc);
-        dl->AddLine({a.x, a.y - 6 * sc}, {a.x, a.y + 6 * sc}, pal.text, 2.0f);
-        dl->AddLine({a.x + len_px, a.y - 6 * sc}, {a.x + len_px, a.y + 6 * sc}, pal.text, 2.0f);
         char buf[32];
         if (len_m >= 1000.0) std::snprintf(buf, sizeof buf, "%g km", len_m / 1000.0);
         else std::snprintf(buf, sizeof buf, "%g m", len_m);
-        dl->AddText({a.x + len_px + 6 * sc, a.y - 7 * sc}, pal.text, buf);
+        const float lh = ImGui::GetTextLineHeight();
+        const ImVec2 a{box.min.x + 6 * sc, box.max.y - 8 * sc};
+        dl->AddRectFilled(box.min, {std::max(box.max.x, a.x + len_px + 12 * sc), box.max.y}, pal.background);
+        dl->AddLine(a, {a.x + len_px, a.y}, pal.text, 3.0f * sc);
+        dl->AddLine({a.x, a.y - 6 * sc}, {a.x, a.y}, pal.text, 2.0f);
+        dl->AddLine({a.x + len_px, a.y - 6 * sc}, {a.x + len_px, a.y}, pal.text, 2.0f);
+        dl->AddText({a.x, a.y - 8 * sc - lh}, pal.text, buf);
     }
     void drawNorthArrow(ImDrawList* dl, const Rect& r, const Palette& pal, float sc) const {
         const ImVec2 c{r.max.x - 30 * sc, r.min.y + 50 * sc};
-        const float h = 18 * sc;
+        const float h = 18 * sc, lh = ImGui::GetTextLineHeight();
         dl->AddTriangleFilled({c.x, c.y - h}, {c.x - 7 * sc, c.y + h * 0.6f}, {c.x, c.y + h * 0.2f}, pal.text);
         dl->AddTriangle({c.x, c.y - h}, {c.x + 7 * sc, c.y + h * 0.6f}, {c.x, c.y + h * 0.2f}, pal.text, 1.5f);
-        dl->AddText({c.x - 4 * sc, c.y + h * 0.7f}, pal.text, "N");
-        dl->AddText({c.x - 14 * sc, c.y + h * 0.7f + 14 * sc}, pal.text_dim, "grid");
+        const float y = c.y + h * 0.7f;
+        dl->AddText({c.x - ImGui::CalcTextSize("N").x * 0.5f, y}, pal.text, "N");
+        dl->AddText({c.x - ImGui::CalcTextSize("grid").x * 0.5f, y + lh}, pal.text_dim, "grid");
     }
-    void drawLegend(ImDrawList* dl, const Rect& r, const Palette& pal, const engine::MarginScale& m, float sc) const {
-        const float w = 140 * sc, h = 10 * sc;
-        const ImVec2 a{r.max.x - w - 20 * sc, r.max.y - 44 * sc};
-        dl->AddRectFilled({a.x - 6, a.y - 18 * sc}, {a.x + w + 8, a.y + h + 18 * sc}, withAlpha(pal.background, 200));
-        dl->AddText({a.x, a.y - 16 * sc}, pal.text_dim, "detection margin");
-        const int steps = 32;
-        for (int i = 0; i < steps; ++i) {
-            const auto q = static_cast<std::uint8_t>(1 + (254 * i) / (steps - 1));
-            const float x0 = a.x + w * static_cast<float>(i) / steps, x1 = a.x + w * static_cast<float>(i + 1) / steps;
-            dl->AddRectFilled({x0, a.y}, {x1, a.y + h}, pal.marginColour(q));
+    void drawLegend(ImDrawList* dl, const Rect& r, const Palette& pal, float sc) const {
+        const Rect box = legendRect(r, sc);
+        const float lh = ImGui::GetTextLineHeight(), sw = lh;
+        dl->AddRectFilled(box.min, box.max, pal.background);
+        ImVec2 a{box.min.x + 6 * sc, box.min.y + 4 * sc};
+        dl->AddText(a, pal.text, kLegendTitle);
+        a.y += lh + 4 * sc;
+        for (int k = 1; k < colour::kMarginClassCount; ++k) {
+            dl->AddRectFilled(a, {a.x + sw, a.y + sw}, pal.margin_class[k]);
+            const char* label = colour::kMarginClassShort[static_cast<std::size_t>(k)];
+            dl->AddText({a.x + sw + 4 * sc, a.y}, pal.text, label);
+            a.x += sw + 4 * sc + ImGui::CalcTextSize(label).x + 10 * sc;
         }
-        char lo[32], hi[32];
-        std::snprintf(lo, sizeof lo, "%.0f %s", m.lo, m.unit.c_str());
-        std::snprintf(hi, sizeof hi, "%.0f", m.hi);
-        dl->AddText({a.x, a.y + h + 2}, pal.text_dim, lo);
-        dl->AddText({a.x + w - ImGui::CalcTextSize(hi).x, a.y + h + 2}, pal.text_dim, hi);
     }
+
+    // Greedy placement (ui/label_placer.hpp), most important first: the active line, gaps,
+    // infill, then the other planned lines. What does not fit is not drawn.
+    void placeLabels(ImDrawList* dl, const Rect& rect, const Palette& pal, const engine::Snapshot& s, float sc,
+                     std::initializer_list<Rect> blocked) const {
+        const float inset = 2 * sc;
+        LabelPlacer placer({{rect.min.x + inset, rect.min.y + inset}, {rect.max.x - inset, rect.max.y - inset}},
+                           3 * sc);
+        for (const Rect& b : blocked) placer.block(b);
+        const float gap = 5 * sc, px = 3 * sc, py = 1 * sc;
+        auto put = [&](ImVec2 anchor, const std::string& text, ImU32 colour, const std::vector<LabelSpot>& spots) {
+            const ImVec2 ts = ImGui::CalcTextSize(text.c_str());
+            const auto r = placer.place(anchor, {ts.x + 2 * px, ts.y + 2 * py}, spots, gap);
+            if (!r) return false;
+            dl->AddRectFilled(r->min, r->max, pal.background);  // opaque plate: the contrast is the tested one
+            dl->AddText({r->min.x + px, r->min.y + py}, colour, text.c_str());
+            return true;
+        };
+        const std::vector<LabelSpot> around{LabelSpot::kRight,      LabelSpot::kLeft,       LabelSpot::kAbove,
+                                            LabelSpot::kBelow,      LabelSpot::kAboveRight, LabelSpot::kBelowRight,
+                                            LabelSpot::kAboveLeft,  LabelSpot::kBelowLeft};
+        auto lineLabel = [&](std::size_t i) {
+            const auto& line = s.lines[i];
+            const bool is_active = static_cast<int>(i) == s.active_line;
+            ImVec2 first{}, first_dir{}, last{}, last_dir{};
+            if (!visibleEnds(line.points, rect, first, first_dir, last, last_dir)) return;
+            const ImU32 colour = is_active ? pal.line_active : pal.line_label;
+            // At the line's end where it is visible; else at its visible start.
+            if (!put(last, line.name, colour, spotsBeyond(last_dir)))
+                put(first, line.name, colour, spotsBeyond({-first_dir.x, -first_dir.y}));
+        };
+        if (s.active_line >= 0 && static_cast<std::size_t>(s.active_line) < s.lines.size())
+            lineLabel(static_cast<std::size_t>(s.active_line));
+        for (const auto& gap_view : s.gaps) {
+            const std::string text = "gap " + std::to_string(gap_view.id) + "  " + roundedArea(gap_view.area_m2);
+            put(m_t.toScreen(gap_view.centroid), text, pal.gap, around);
+        }
+        for (const auto& inf : s.infill) {
+            ImVec2 first{}, first_dir{}, last{}, last_dir{};
+            if (!visibleEnds(inf.points, rect, first, first_dir, last, last_dir)) continue;
+            put(first, inf.name, pal.infill, spotsBeyond({-first_dir.x, -first_dir.y}));
+        }
+        for (std::size_t i = 0; i < s.lines.size(); ++i)
+            if (static_cast<int>(i) != s.active_line) lineLabel(i);
+    }
+
+    // The first and last points of a polyline inside `r` (segments clipped to it, Liang-Barsky)
+    // and the screen direction of the segment there. False when no part is visible.
+    bool visibleEnds(const std::vector<engine::PointEN>& pts, const Rect& r, ImVec2& first, ImVec2& first_dir,
+                     ImVec2& last, ImVec2& last_dir) const {
+        bool any = false;
+        for (std::size_t k = 1; k < pts.size(); ++k) {
+            const ImVec2 a = m_t.toScreen(pts[k - 1]), b = m_t.toScreen(pts[k]);
+            const float dx = b.x - a.x, dy = b.y - a.y;
+            float t0 = 0, t1 = 1;
+            bool inside = true;
+            const float p[4] = {-dx, dx, -dy, dy};
+            const float q[4] = {a.x - r.min.x, r.max.x - a.x, a.y - r.min.y, r.max.y - a.y};
+            for (int e = 0; e < 4 && inside; ++e) {
+                if (p[e] == 0.0f) {
+                    inside = q[e] >= 0;
+                } else {
+                    const float t = q[e] / p[e];
+                    if (p[e] < 0) t0 = std::max(t0, t);
+                    else t1 = std::min(t1, t);
+                    inside = t0 <= t1;
+                }
+            }
+            if (!inside || (dx == 0.0f && dy == 0.0f)) continue;
+            if (!any) {
+                first = {a.x + t0 * dx, a.y + t0 * dy};
+                first_dir = {dx, dy};
+            }
+            last = {a.x + t1 * dx, a.y + t1 * dy};
+            last_dir = {dx, dy};
+            any = true;
+        }
+        return any;
+    }
+
     void drawReadout(ImDrawList* dl, const Rect& r, const Palette& pal, const engine::Snapshot& s, ImVec2 mouse,
                      float sc) const {
         const engine::PointEN w = m_t.toWorld(mouse);

@@ -88,6 +88,8 @@ public:
     const Layout& layout() const { return m_layout; }
     const Palette& palette() const { return paletteFor(m_settings.night); }
     bool bannerShown() const { return m_banner_shown; }
+    // Why the configured font could not be used (the built-in font is then in use), else empty.
+    const std::string& fontProblem() const { return m_font_problem; }
 
 private:
     ScreenSettings m_settings;
@@ -96,6 +98,8 @@ private:
     std::vector<std::unique_ptr<Panel>> m_panels;
     Layout m_layout{};
     float m_font_scale = 0.0f;
+    std::string m_font_file;
+    std::string m_font_problem;
     float m_style_scale = 0.0f;
     bool m_style_night = false;
     bool m_settings_changed = false;

@@ -1,7 +1,10 @@
 // ScreenUi: builds one ImGui frame from a snapshot by placing the registered panels in the
 // layout's slots. No OpenGL here, so the benchmark and tests can run it without a GPU.
 #include <algorithm>
+#include <array>
 #include <cmath>
+#include <cstdio>
+#include <fstream>
 #include <string_view>
 #include <utility>
 
@@ -16,15 +19,52 @@ ScreenUi::~ScreenUi() = default;
 
 bool ScreenUi::takeSettingsChanged() { return std::exchange(m_settings_changed, false); }
 
+namespace {
+
+// Why `path` cannot be used as a TrueType/OpenType font, or empty when it looks like one. Checked
+// before ImGui sees the file: ImGui 1.86 asserts on a file it cannot open.
+std::string fontFileProblem(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) return "cannot open font file " + path + " (install fonts-dejavu-core, or set font_file)";
+    std::array<unsigned char, 4> tag{};
+    in.read(reinterpret_cast<char*>(tag.data()), 4);
+    // sfnt version tags: 0x00010000 (TrueType outlines), 'true', 'OTTO' (CFF outlines).
+    const bool sfnt = (tag[0] == 0 && tag[1] == 1 && tag[2] == 0 && tag[3] == 0) ||
+                      (tag == std::array<unsigned char, 4>{'t', 'r', 'u', 'e'}) ||
+                      (tag == std::array<unsigned char, 4>{'O', 'T', 'T', 'O'});
+    if (!in || !sfnt) return "not a TrueType/OpenType font file: " + path;
+    return {};
+}
+
+}  // namespace
+
 bool ScreenUi::prepareFonts() {
     const float scale = std::clamp(m_settings.ui_scale, 0.75f, 3.0f);
-    if (scale == m_font_scale) return false;
+    if (scale == m_font_scale && m_settings.font_file == m_font_file) return false;
     m_font_scale = scale;
+    m_font_file = m_settings.font_file;
     ImGuiIO& io = ImGui::GetIO();
     io.Fonts->Clear();
-    ImFontConfig cfg;
-    cfg.SizePixels = std::round(13.0f * scale);
-    io.Fonts->AddFontDefault(&cfg);
+    // Rasterised at the scale's pixel size (never a bitmap font stretched): sharp at every scale.
+    const float px = std::round(kBaseFontPx * scale);
+    m_font_problem = fontFileProblem(m_font_file);
+    ImFont* font = nullptr;
+    if (m_font_problem.empty()) {
+        ImFontConfig cfg;
+        cfg.OversampleH = 2;
+        cfg.OversampleV = 1;
+        // Latin-1 plus the few symbols the panels print (degree, micro, superscript 2, dashes).
+        static const ImWchar ranges[] = {0x0020, 0x00FF, 0x2013, 0x2014, 0x2190, 0x2193, 0x2264, 0x2265, 0};
+        font = io.Fonts->AddFontFromFileTTF(m_font_file.c_str(), px, &cfg, ranges);
+        if (!font) m_font_problem = "ImGui could not load the font file " + m_font_file;
+    }
+    if (!font) {
+        // Never silent: the message goes to stderr and stays on screen (drawn by frame()).
+        std::fprintf(stderr, "swathguard screen: %s; using ImGui's built-in bitmap font\n", m_font_problem.c_str());
+        ImFontConfig cfg;
+        cfg.SizePixels = px;
+        io.Fonts->AddFontDefault(&cfg);
+    }
     io.Fonts->Build();
     return true;
 }
@@ -120,6 +160,14 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
         if (p->slot() == Slot::kOverlay) p->draw(ctx, m_layout.banner.min, m_layout.banner.max);
     m_banner_shown = s && s->hasUnacknowledgedAlarm();
 
+    if (!m_font_problem.empty()) {
+        const std::string msg = "Font: " + m_font_problem + " - built-in font in use";
+        ImDrawList* fg = ImGui::GetForegroundDrawList();
+        const ImVec2 size = ImGui::CalcTextSize(msg.c_str());
+        const ImVec2 at{m_layout.plan.min.x + 8.0f * scale, m_layout.plan.max.y - size.y - 8.0f * scale};
+        fg->AddRectFilled({at.x - 4, at.y - 2}, {at.x + size.x + 4, at.y + size.y + 2}, palette().background);
+        fg->AddText(at, palette().gap, msg.c_str());
+    }
     ImGui::Render();
     m_textures.endFrame();
     if (ctx.settings_changed) m_settings_changed = true;

@@ -80,6 +80,9 @@ ScreenSettings loadSettings(const std::string& path, std::vector<std::string>& w
             const double v = std::strtod(value.c_str(), &end);
             if (end && *end == '\0' && v >= 0.75 && v <= 3.0) s.ui_scale = static_cast<float>(v);
             else warn(key, "must be a number in 0.75..3.0, got '" + value + "'");
+        } else if (key == "font_file") {
+            if (!value.empty()) s.font_file = value;
+            else warn(key, "must name a TrueType font file");
         } else if (key == "plot_minutes") {
             int v = 0;
             const auto [p, ec] = std::from_chars(value.data(), value.data() + value.size(), v);
@@ -119,6 +122,7 @@ bool saveSettings(const std::string& path, const ScreenSettings& s, std::string&
             << "[screen]\n"
             << "palette = " << (s.night ? "night" : "day") << "\n"
             << "ui_scale = " << s.ui_scale << "\n"
+            << "font_file = " << s.font_file << "\n"
             << "plot_minutes = " << s.plot_minutes << "\n"
             << "follow_vessel = " << (s.follow_vessel ? "true" : "false") << "\n"
             << "tab = " << s.tab << "\n"

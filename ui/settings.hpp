@@ -11,9 +11,15 @@
 
 namespace sg::ui {
 
+// The screen's text font: DejaVu Sans from Debian's fonts-dejavu-core (scripts/install-deps.sh).
+inline constexpr const char* kDefaultFontFile = "/usr/share/fonts/truetype/dejavu/DejaVuSans.ttf";
+// Text height at UI scale 1, pixels; the font is rasterised at round(kBaseFontPx * ui_scale).
+inline constexpr float kBaseFontPx = 14.0f;
+
 struct ScreenSettings {
     bool night = false;          // palette: false = day, true = night
     float ui_scale = 1.0f;       // 0.75 .. 3.0, scales fonts and sizes for large displays
+    std::string font_file = kDefaultFontFile;  // a TrueType font file; missing -> built-in font + message
     int plot_minutes = 10;       // time window of the time plots, 1 .. 720 minutes
     bool follow_vessel = true;   // plan view keeps the vessel in view
     std::vector<std::string> hidden_plots;  // titles of time plots the operator switched off

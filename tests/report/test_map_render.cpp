@@ -5,9 +5,11 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <filesystem>
 
 #include <cairo.h>
 
+#include "common/colour_code.hpp"
 #include "coverage/coverage_test_util.hpp"
 #include "report/map_render.hpp"
 
@@ -111,6 +113,43 @@ TEST(MapRender, WeakestCellWinsWhenPixelsSpanSeveralCells) {
     // The pixel E 58..60 m holds the swath edge at E 59 (cells inside and outside): no swath too.
     EXPECT_EQ(img.at(static_cast<int>(frame.toX(kOrigin.e_m + 59.0)), static_cast<int>(frame.toY(kOrigin.n_m + 30.25))),
               rgb(classes[0].colour));
+}
+
+// One colour code for screen and paper: the PNG map the report writes, read back from the file by
+// Cairo's PNG reader, shows at a known covered cell exactly the colour of the shared table
+// (src/common/colour_code.hpp, light scheme) that the day screen also uses (tests/ui checks the
+// screen side), and the area no pass reached shows the table's quiet "not run yet" ground.
+TEST(MapRender, PngMapUsesTheSharedColourCode) {
+    Scene sc;
+    ASSERT_GE(sc.raster.cellAt({kOrigin.e_m + 50.25, kOrigin.n_m + 30.25}).margin, 2.0);
+    ASSERT_LT(sc.raster.cellAt({kOrigin.e_m + 50.25, kOrigin.n_m + 30.25}).margin, 4.0);
+    sg::report::MapInput in;
+    in.raster = &sc.raster;
+    in.area = &sc.area;
+    const sg::coverage::Box world{kOrigin.e_m - 10, kOrigin.n_m - 10, kOrigin.e_m + 110, kOrigin.n_m + 110};
+    const auto path = (std::filesystem::path(SG_BINARY_DIR) / "test_report_shared_colours.png").string();
+    const auto size = sg::report::writeMapPng(in, world, 900, "shared colours", path);
+    cairo_surface_t* png = cairo_image_surface_create_from_png(path.c_str());
+    ASSERT_EQ(cairo_surface_status(png), CAIRO_STATUS_SUCCESS);
+    ASSERT_EQ(cairo_image_surface_get_width(png), size.width);
+    // The map frame inside the PNG, as writeMapPng lays it out (title strip on top).
+    const double ls = 1.0;
+    const int top = static_cast<int>(28 * ls), mw = 900, mh = 900;
+    const auto frame = sg::report::fitFrame(world, (size.width - mw) / 2.0, top, mw, mh);
+    cairo_surface_flush(png);
+    const auto at = [&](double e, double n) {
+        const int x = static_cast<int>(frame.toX(kOrigin.e_m + e)), y = static_cast<int>(frame.toY(kOrigin.n_m + n));
+        const auto* row = reinterpret_cast<const std::uint32_t*>(cairo_image_surface_get_data(png) +
+                                                                 static_cast<std::ptrdiff_t>(y) * cairo_image_surface_get_stride(png));
+        const std::uint32_t v = row[x];
+        return sg::colour::Rgb8{static_cast<std::uint8_t>(v >> 16), static_cast<std::uint8_t>(v >> 8),
+                                static_cast<std::uint8_t>(v)};
+    };
+    const auto& code = sg::colour::kLight;
+    EXPECT_EQ(at(50.25, 30.25), code.marginColour(sg::colour::MarginClass::kGood));  // margin 3 on the track
+    EXPECT_EQ(at(58.75, 30.25), code.marginColour(sg::colour::MarginClass::kWeak));  // just above 1 at the edge
+    EXPECT_EQ(at(20.25, 70.25), code.not_run_yet);                                   // inside the area, no pass
+    cairo_surface_destroy(png);
 }
 
 }  // namespace

@@ -228,7 +228,7 @@ TEST_F(ReportCli, OverviewPngShowsCoverageAndGapOutlines) {
         return (u(c.r) << 16) | (u(c.g) << 8) | u(c.b);
     };
     const std::uint32_t strong = rgb(sg::report::marginClasses()[4].colour);
-    const std::uint32_t gap = rgb({0.78, 0.08, 0.15});  // the gap outline colour of map_render.cpp
+    const std::uint32_t gap = rgb(sg::report::toRgb(sg::colour::kLight.gap));  // the shared colour code's gap
     std::uint64_t n_strong = 0, n_gap = 0;
     for (int y = 0; y < h; ++y) {
         const auto* row = reinterpret_cast<const std::uint32_t*>(data + static_cast<std::ptrdiff_t>(y) * stride);

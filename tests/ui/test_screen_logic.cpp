@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <atomic>
 #include <chrono>
+#include <cmath>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -215,15 +216,22 @@ TEST(TileTextures, UploadOnlyWhenGenerationOrPaletteChangesAndEvictUnused) {
     EXPECT_EQ(cache.residentTiles(), 0u);
 }
 
-TEST(Palette, MarginRampGetsLighterWithMargin) {
+// Margin classes step away from the background as the margin grows: darker by day, lighter by
+// night (Rec. 709 luma on the 8-bit values; the WCAG figures are in test_palette.cpp).
+TEST(Palette, MarginClassesMoveAwayFromTheBackgroundWithMargin) {
+    const auto luma = [](ImU32 c) {
+        return 0.2126 * (c & 0xFF) + 0.7152 * ((c >> 8) & 0xFF) + 0.0722 * ((c >> 16) & 0xFF);
+    };
     for (const auto* pal : {&sg::ui::dayPalette(), &sg::ui::nightPalette()}) {
         double prev = -1;
+        int steps = 0;
         for (int q = 1; q <= 255; q += 6) {
-            const ImU32 c = pal->marginColour(static_cast<std::uint8_t>(q));
-            const double l = 0.2126 * (c & 0xFF) + 0.7152 * ((c >> 8) & 0xFF) + 0.0722 * ((c >> 16) & 0xFF);
-            EXPECT_GE(l, prev) << pal->name << " q=" << q;
-            prev = l;
+            const double d = std::abs(luma(pal->marginColour(static_cast<std::uint8_t>(q))) - luma(pal->background));
+            EXPECT_GE(d, prev) << pal->name << " q=" << q;
+            steps += d > prev + 1.0 && prev >= 0 ? 1 : 0;
+            prev = d;
         }
+        EXPECT_EQ(steps, 2) << pal->name << ": three classes, two steps";
         EXPECT_EQ(pal->marginColour(0), 0u);
     }
 }
@@ -335,6 +343,56 @@ TEST_F(HeadlessScreen, DraggingThePlanStopsFollowingTheVessel) {
     EXPECT_FALSE(m_ui->settings().follow_vessel);
     EXPECT_TRUE(m_ui->takeSettingsChanged());
     EXPECT_TRUE(m_commands.drain().empty());
+}
+
+}  // namespace
+
+namespace {
+
+// A missing font file is never silent: prepareFonts says why, the built-in font is used at the
+// same pixel size, and the message is drawn on the screen (found in the frame's draw data).
+TEST(ScreenFonts, MissingFontFileFallsBackWithAMessage) {
+    ImGui::CreateContext();
+    ImGuiIO& io = ImGui::GetIO();
+    io.IniFilename = nullptr;
+    io.DisplaySize = {1280, 800};
+    io.DeltaTime = 1.0f / 30.0f;
+    sg::ui::CommandQueue commands;
+    sg::ui::TileTextureCache textures{std::make_unique<NullBackend>()};
+    sg::ui::ScreenSettings s;
+    s.ui_scale = 1.5f;
+    s.font_file = (outDir() / "no_such_font.ttf").string();
+    {
+        sg::ui::ScreenUi ui(s, commands, textures);
+        ASSERT_TRUE(ui.prepareFonts());
+        EXPECT_NE(ui.fontProblem().find("cannot open font file"), std::string::npos) << ui.fontProblem();
+        EXPECT_NE(ui.fontProblem().find("no_such_font.ttf"), std::string::npos);
+        ASSERT_EQ(io.Fonts->Fonts.Size, 1);
+        EXPECT_FLOAT_EQ(io.Fonts->Fonts[0]->FontSize, std::round(sg::ui::kBaseFontPx * 1.5f));
+        unsigned char* px = nullptr;
+        int w = 0, h = 0;
+        io.Fonts->GetTexDataAsRGBA32(&px, &w, &h);
+        ui.frame(nullptr, 0.0);
+        // The foreground draw list carries the message's glyphs: count its vertices.
+        const ImDrawData* dd = ImGui::GetDrawData();
+        ASSERT_NE(dd, nullptr);
+        int fg_vertices = 0;
+        for (int i = 0; i < dd->CmdListsCount; ++i)
+            if (dd->CmdLists[i] == ImGui::GetForegroundDrawList()) fg_vertices = dd->CmdLists[i]->VtxBuffer.Size;
+        EXPECT_GT(fg_vertices, 4 * 40) << "no message drawn";
+        // A file that is there but not a font is refused as well.
+        const std::string bogus = (outDir() / "not_a_font.ttf").string();
+        std::ofstream(bogus) << "hello";
+        ui.settings().font_file = bogus;
+        ASSERT_TRUE(ui.prepareFonts());
+        EXPECT_NE(ui.fontProblem().find("not a TrueType/OpenType font file"), std::string::npos) << ui.fontProblem();
+        // The real DejaVu Sans loads without a problem.
+        ui.settings().font_file = sg::ui::kDefaultFontFile;
+        ASSERT_TRUE(ui.prepareFonts());
+        EXPECT_TRUE(ui.fontProblem().empty()) << ui.fontProblem();
+        EXPECT_FALSE(ui.prepareFonts());  // nothing changed: no rebuild
+    }
+    ImGui::DestroyContext();
 }
 
 }  // namespace
