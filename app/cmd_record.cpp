@@ -95,6 +95,8 @@ int runRecord(RecordOptions o) {
 
     // A UDP port another process holds ends the run here, before a log is created.
     io::checkUdpPortsFree(cfg.inputs);
+    // So does a serial device another process holds (opened exclusively or locked).
+    io::checkSerialDevicesFree(cfg.inputs);
     // The config's own path is stored absolute so replay finds the plan files it names.
     const bool log_existed = std::filesystem::exists(log_path);
     io::LogWriterOptions wopt;

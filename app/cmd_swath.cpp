@@ -89,9 +89,12 @@ int runSwath(const SwathOptions& o) {
         j["line_spacing_m"] = *spacing;
         j["sensor_cross_m"] = cross;
         j["evaluation"] = "direct";
-        j["field"] = {{"inclination_deg", det.field.inclination_deg},
-                      {"declination_deg", det.field.declination_deg},
-                      {"intensity_nT", det.field.intensity_nT}};
+        if (detect::usesAmbientField(det))
+            j["field"] = {{"inclination_deg", det.field.inclination_deg},
+                          {"declination_deg", det.field.declination_deg},
+                          {"intensity_nT", det.field.intensity_nT}};
+        else
+            j["field"] = detect::kNoFieldNeeded;
         j["classes"] = nlohmann::json::array();
         for (std::size_t i = 0; i < plans.size(); ++i) {
             const auto& p = plans[i];
@@ -130,9 +133,12 @@ int runSwath(const SwathOptions& o) {
     }
 
     std::printf("%s", fmt::format("swath plan for {}\n", o.config).c_str());
-    std::printf("%s", fmt::format("  field: inclination {:.1f} deg, declination {:.1f} deg, {:.0f} nT\n",
-                                  det.field.inclination_deg, det.field.declination_deg,
-                                  det.field.intensity_nT).c_str());
+    if (detect::usesAmbientField(det))
+        std::printf("%s", fmt::format("  field: inclination {:.1f} deg, declination {:.1f} deg, {:.0f} nT\n",
+                                      det.field.inclination_deg, det.field.declination_deg,
+                                      det.field.intensity_nT).c_str());
+    else
+        std::printf("  field: %s\n", detect::kNoFieldNeeded);
     std::printf("%s", fmt::format("  line heading {:.1f} deg true, sensor altitude {:.2f} m, noise {:.3f} nT,"
                                   " threshold {:.3f} nT, {} sensor(s), line spacing {:.2f} m\n\n",
                                   o.heading_deg, o.altitude_m, o.noise_nT, threshold, cross.size(),

@@ -3,6 +3,8 @@
 
 #include <fcntl.h>
 #include <linux/sock_diag.h>
+#include <sys/file.h>
+#include <sys/ioctl.h>
 #include <sys/socket.h>
 #include <sys/stat.h>
 #include <termios.h>
@@ -23,6 +25,45 @@ using boost::system::error_code;
 
 // ---------------------------------------------------------------- serial
 
+namespace {
+
+std::string deviceBusyMessage(const std::string& input, const std::string& device,
+                              const char* how) {
+    return fmt::format("input '{}': serial device {} is held by another process ({}); is another "
+                       "recorder or a terminal program using it? Stop it, or choose another device",
+                       input, device, how);
+}
+
+// Takes the device for this descriptor alone. Empty when taken, else why not (busy: *busy).
+std::string takeExclusive(int fd, bool* busy) {
+    *busy = false;
+    if (::flock(fd, LOCK_EX | LOCK_NB) != 0) {
+        *busy = errno == EWOULDBLOCK;
+        return *busy ? std::string("locked") : std::string("flock: ") + std::strerror(errno);
+    }
+    if (::ioctl(fd, TIOCEXCL) != 0) return std::string("TIOCEXCL: ") + std::strerror(errno);
+    return {};
+}
+
+}  // namespace
+
+void checkSerialDevicesFree(const std::vector<config::InputConfig>& inputs) {
+    for (const auto& in : inputs) {
+        if (in.transport != config::Transport::Serial || in.serial.device.empty()) continue;
+        const int fd = ::open(in.serial.device.c_str(), O_RDWR | O_NOCTTY | O_NONBLOCK | O_CLOEXEC);
+        if (fd < 0) {
+            if (errno == EBUSY)
+                throw SerialSource::DeviceBusy(
+                    deviceBusyMessage(in.name, in.serial.device, "opened exclusively"));
+            continue;  // missing or not permitted: the source reports it and retries
+        }
+        const bool held = ::flock(fd, LOCK_EX | LOCK_NB) != 0 && errno == EWOULDBLOCK;
+        ::close(fd);  // releases the probe's lock; TIOCEXCL was not set on it
+        if (held)
+            throw SerialSource::DeviceBusy(deviceBusyMessage(in.name, in.serial.device, "locked"));
+    }
+}
+
 SerialSource::SerialSource(asio::io_context& io, const config::InputConfig& cfg,
                            SourceCallbacks cb)
     : Source(io, cfg.name, std::move(cb)), m_settings(cfg.serial), m_port(io) {}
@@ -32,7 +73,25 @@ void SerialSource::reopen() {
     error_code ec;
     m_port.close(ec);
     m_port.open(m_settings.device, ec);
+    if (ec == boost::system::errc::device_or_resource_busy && m_starting) {
+        m_stopped = true;
+        throw DeviceBusy(deviceBusyMessage(name(), m_settings.device, "opened exclusively"));
+    }
     if (ec) return markLost(fmt::format("open {}: {}", m_settings.device, ec.message()));
+    {
+        bool busy = false;
+        const std::string why = takeExclusive(m_port.native_handle(), &busy);
+        if (!why.empty()) {
+            error_code ignore;
+            m_port.close(ignore);
+            if (busy && m_starting) {
+                m_stopped = true;
+                throw DeviceBusy(deviceBusyMessage(name(), m_settings.device, "locked"));
+            }
+            return markLost(busy ? deviceBusyMessage(name(), m_settings.device, "locked")
+                                 : fmt::format("open {}: {}", m_settings.device, why));
+        }
+    }
     using sp = asio::serial_port_base;
     const auto parity = m_settings.parity == config::Parity::None ? sp::parity::none
                         : m_settings.parity == config::Parity::Even ? sp::parity::even

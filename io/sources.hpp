@@ -18,10 +18,21 @@ namespace sg::io {
 
 // Serial port: device, baud, parity, data and stop bits, no flow control. Input already waiting
 // in the driver when the port opens is discarded (tcflush): its receive times would be wrong.
+// The device is opened exclusively: TIOCEXCL (tty_ioctl(4): no further open() of the tty,
+// except by root) and flock(LOCK_EX | LOCK_NB) on the descriptor (which holds for root too, among
+// programs that take it). A device another process holds is refused: start() throws DeviceBusy
+// naming the device; on a reopen after an outage it is a failed reopen, retried.
 class SerialSource final : public Source {
 public:
+    struct DeviceBusy : std::runtime_error {
+        using std::runtime_error::runtime_error;
+    };
     SerialSource(asio::io_context& io, const config::InputConfig& cfg, SourceCallbacks cb);
-    void start() override { reopen(); }
+    void start() override {
+        m_starting = true;
+        reopen();
+        m_starting = false;
+    }
     void stop() override;
 
 private:
@@ -31,6 +42,7 @@ private:
     asio::serial_port m_port;
     std::array<char, 4096> m_buf{};
     bool m_stopped = false;
+    bool m_starting = false;
 };
 
 // UDP listener bound to host:port. Each datagram is framed on its own: a datagram without a
@@ -72,6 +84,10 @@ private:
 // Fails (UdpSource::PortInUse) when a UDP input's listen address is held by another socket;
 // run before the log is created so a second recorder leaves nothing behind.
 void checkUdpPortsFree(const std::vector<config::InputConfig>& inputs);
+// Fails (SerialSource::DeviceBusy) when a serial input's device is held by another process
+// (opened exclusively, or locked with flock); a device that does not exist (yet) passes: the
+// source waits for it.
+void checkSerialDevicesFree(const std::vector<config::InputConfig>& inputs);
 
 // TCP client: connects to host:port, reconnects with exponential backoff (reconnect_min_s doubling
 // to reconnect_max_s, at most 1 s) whenever the connection fails or the peer closes it; a connect

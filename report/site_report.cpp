@@ -509,8 +509,12 @@ void modelPage(PdfDoc& d, const SurveySummary& s) {
         rows.push_back({t.name + (t.name == s.coverage_class ? " (coverage)" : ""), detect::modelName(t.model), targetSize(t),
                         fmt::format("{:g}", t.burial_m)});
     d.table({{"target class", 130}, {"model", 60}, {"size", 250}, {"burial m", 60, true}}, rows);
-    d.keyValue("Ambient field", fmt::format("inclination {:g} deg, declination {:g} deg, {:g} nT", det.field.inclination_deg,
-                                            det.field.declination_deg, det.field.intensity_nT));
+    // A field nothing used is not printed (a mass-rule-only survey needs none).
+    d.keyValue("Ambient field", det.field_used
+                                    ? fmt::format("inclination {:g} deg, declination {:g} deg, {:g} nT",
+                                                  det.field.inclination_deg, det.field.declination_deg,
+                                                  det.field.intensity_nT)
+                                    : std::string(detect::kNoFieldNeeded));
     d.keyValue("Threshold", fmt::format("max({:g} nT, {:g} x noise); noise = std of the fourth difference over {} samples / sqrt(70)",
                                         det.settings.min_anomaly_nT, det.settings.k, det.settings.noise_window));
     d.keyValue("Mass-rule constant", fmt::format("C = {:.3f} nT m3/kg", det.settings.mass_rule_C));

@@ -50,7 +50,8 @@ const std::vector<CheckSpec>& catalogue() {
          above(0.5, 0.5, 0.0, 1.0)},
         {"pose_inputs", "s",
          "time magnetometer samples have arrived without a value their position needs (first "
-         "fix, HDT, cable out, sensor depth, altitude) that never arrived",
+         "fix, HDT, cable out, sensor depth, altitude) that never arrived, or (HDT, cable out, "
+         "sensor depth) that stopped arriving for longer than the pose may bridge",
          above(2.0, 3.0, 0.0, 0.0)},
         {"crs_area", "deg", "distance of the fixes outside the survey CRS's area of use",
          above(0.5, 3.0, 0.0, 0.0)},

@@ -685,6 +685,11 @@ std::string orientationRule(const TargetClass& t) {
 // ---------------------------------------------------------------------------------------------
 // Config
 
+bool usesAmbientField(const DetectionConfig& cfg) {
+    return std::any_of(cfg.targets.begin(), cfg.targets.end(),
+                       [](const TargetClass& t) { return t.model != ModelKind::MassRule; });
+}
+
 DetectionConfig parseDetectionConfig(const config::Section& root) {
     DetectionConfig cfg;
     if (auto g = root.optionalTable("geomagnetic")) {

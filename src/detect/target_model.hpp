@@ -84,6 +84,12 @@ struct DetectionConfig {
     std::vector<TargetClass> targets;
 };
 
+// True when some target class uses the ambient field (a dipole or a sphere); a survey whose
+// classes all use the mass rule needs none, and reports state "mass rule: no field needed"
+// rather than print a field that nothing used.
+bool usesAmbientField(const DetectionConfig& cfg);
+inline constexpr const char* kNoFieldNeeded = "mass rule: no field needed";
+
 // Parses [geomagnetic], [detection] and [[target]] from the root table. Unknown keys, missing or
 // out-of-range values throw config::ConfigError naming the file and key. At least one [[target]].
 DetectionConfig parseDetectionConfig(const config::Section& root);

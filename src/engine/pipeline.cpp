@@ -107,7 +107,7 @@ void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line
     } else if (const auto* v = std::get_if<decode::Vtg>(&s.data)) {
         if (v->sog_mps) engine.onSpeed(t, *v->sog_mps);
     } else if (const auto* h = std::get_if<decode::Hdt>(&s.data)) {
-        engine.onHeading(t, h->heading_deg);
+        engine.onHeading(t, h->heading_deg, input.name);
     } else if (const auto* d = std::get_if<decode::Dpt>(&s.data)) {
         engine.onWaterDepth(t, d->depth_m, d->offset_m);
     } else if (const auto* b = std::get_if<decode::Dbt>(&s.data)) {
@@ -126,12 +126,12 @@ void Pipeline::onFields(const config::InputConfig& input, const ReceivedLine& li
     m_engine->advanceSurveyClock(t, line.utc_ns);
     auto& engine = *m_engine;
     if (input.role == "mag") {
-        engine.onMagSample(t, r.sensor, r.field_nT, r.quality, r.depth_m, r.altitude_m);
+        engine.onMagSample(t, r.sensor, r.field_nT, r.quality, r.depth_m, r.altitude_m, input.name);
         return;
     }
     if (r.altitude_m) engine.onAltitude(t, *r.altitude_m);
-    if (r.cable_out_m) engine.onCableOut(t, *r.cable_out_m);
-    if (r.depth_m) engine.onSensorDepth(t, *r.depth_m);
+    if (r.cable_out_m) engine.onCableOut(t, *r.cable_out_m, input.name);
+    if (r.depth_m) engine.onSensorDepth(t, *r.depth_m, input.name);
 }
 
 }  // namespace sg::engine

@@ -170,8 +170,9 @@ void SurveyEngine::onSpeed(TimeNs t_ns, double sog_mps) {
     drainEpisodes();
 }
 
-void SurveyEngine::onHeading(TimeNs t_ns, double true_heading_deg) {
+void SurveyEngine::onHeading(TimeNs t_ns, double true_heading_deg, std::string_view input) {
     m_seen_heading = true;
+    m_last_heading = {t_ns, std::string(input)};
     if (m_positioner) m_positioner->addHeading(t_ns, true_heading_deg);
 }
 
@@ -187,8 +188,9 @@ void SurveyEngine::onPositionError(TimeNs t_ns, double horizontal_error_m) {
     drainEpisodes();
 }
 
-void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m) {
+void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m, std::string_view input) {
     m_seen_cable = true;
+    m_last_cable = {t_ns, std::string(input)};
     if (m_positioner) m_positioner->addCableOut(t_ns, cable_out_m);
 }
 
@@ -196,14 +198,15 @@ void SurveyEngine::onAltitude(TimeNs t_ns, double altitude_m) {
     if (m_positioner) m_positioner->addAltitude(t_ns, altitude_m);
 }
 
-void SurveyEngine::onSensorDepth(TimeNs t_ns, double depth_m) {
+void SurveyEngine::onSensorDepth(TimeNs t_ns, double depth_m, std::string_view input) {
     m_seen_depth = true;
+    m_last_depth = {t_ns, std::string(input)};
     if (m_positioner) m_positioner->addSensorDepth(t_ns, depth_m);
 }
 
 void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
                                std::optional<double> quality, std::optional<double> depth_m,
-                               std::optional<double> altitude_m) {
+                               std::optional<double> altitude_m, std::string_view input) {
     if (field_nT) ++m_field_samples;
     // Sensor indices with no [[sensor]]: counted, and the unknown_sensor check (it also ends
     // here, on the configured sensors' samples, once none was seen for a while).
@@ -242,7 +245,10 @@ void SurveyEngine::onMagSample(TimeNs t_ns, int sensor, std::optional<double> fi
     if (m_positioner) {
         // One fish carries the array: its depth and altitude come with every sensor's string.
         if (depth_m) m_positioner->addSensorDepth(t_ns, *depth_m);
-        if (depth_m) m_seen_depth = true;
+        if (depth_m) {
+            m_seen_depth = true;
+            m_last_depth = {t_ns, std::string(input)};
+        }
         if (altitude_m) m_positioner->addAltitude(t_ns, *altitude_m);
     }
     auto& noise = m_noise[slot];
@@ -546,8 +552,31 @@ void SurveyEngine::updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::S
     if (m_seen_cable) missing &= ~static_cast<std::uint32_t>(nav::kNoCableOut);
     if (m_seen_depth) missing &= ~static_cast<std::uint32_t>(nav::kNoSensorDepth);
     const bool never_altitude = pose.altitude_source == nav::AltitudeSource::None && !m_last_altitude_ns;
+    // A value that arrived and then stopped: the pose lacks it and its last value is older than
+    // the age the pose may bridge (a start-up transient has fresh values, so it does not count).
+    // Altitude that stops is the altitude_lost check's.
+    std::uint32_t stopped = 0;
+    std::string stopped_what;
+    const auto stoppedInput = [&](std::uint32_t flag, const LastInput& last, double max_age_s,
+                                  const char* quantity) {
+        if (!(pose.flags & flag) || !last.at_ns) return;
+        const double age_s = toSeconds(t_ns - *last.at_ns);
+        if (age_s <= max_age_s) return;
+        stopped |= flag;
+        stopped_what += fmt::format("{}{} stopped arriving{} (last value {:.1f} s ago; the position "
+                                    "needs it)",
+                                    stopped_what.empty() ? "" : "; ", quantity,
+                                    last.input.empty() ? std::string()
+                                                       : fmt::format(" from input '{}'", last.input),
+                                    age_s);
+    };
+    if (m_cfg.nav.vessel.heading_source == nav::HeadingSource::Hdt ||
+        m_cfg.nav.vessel.heading_source == nav::HeadingSource::Auto)
+        stoppedInput(nav::kNoHeading, m_last_heading, m_cfg.nav.vessel.heading_max_age_s, "heading (HDT)");
+    stoppedInput(nav::kNoCableOut, m_last_cable, m_cfg.nav.tow.cable_max_age_s, "cable out");
+    stoppedInput(nav::kNoSensorDepth, m_last_depth, m_cfg.nav.tow.depth_max_age_s, "sensor depth");
     auto& since = m_pose_bad_since[slot];
-    if (missing == 0 && !never_altitude) {
+    if (missing == 0 && !never_altitude && stopped == 0) {
         since.reset();
         m_pose_bad_s[slot] = 0.0;
     } else {
@@ -570,6 +599,7 @@ void SurveyEngine::updateSetupChecks(std::size_t slot, TimeNs t_ns, const nav::S
             add("no sensor depth (set [tow] sensor_depth_m, or a depth_m field in the field map)");
         if (never_altitude)
             add("no altitude (an altimeter field, or an echo sounder plus sensor depth)");
+        if (!stopped_what.empty()) add(stopped_what.c_str());
         detail = fmt::format("magnetometer sensor {}: {}", m_sensors[slot].index, what);
     }
     m_checks.update("pose_inputs", t_ns, worst, detail);

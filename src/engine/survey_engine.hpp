@@ -75,15 +75,16 @@ public:
     // Inputs, each at its aligned time t_ns (UTC ns). Angles in degrees, lengths in metres.
     void onFix(TimeNs t_ns, double lon_deg, double lat_deg, int quality);
     void onSpeed(TimeNs t_ns, double sog_mps);
-    void onHeading(TimeNs t_ns, double true_heading_deg);
+    // `input`: the [[input]] the value came from, named by the pose_inputs alarm when it stops.
+    void onHeading(TimeNs t_ns, double true_heading_deg, std::string_view input = {});
     void onWaterDepth(TimeNs t_ns, double depth_below_transducer_m, std::optional<double> offset_m);
     void onPositionError(TimeNs t_ns, double horizontal_error_m);
-    void onCableOut(TimeNs t_ns, double cable_out_m);
+    void onCableOut(TimeNs t_ns, double cable_out_m, std::string_view input = {});
     void onAltitude(TimeNs t_ns, double altitude_m);
-    void onSensorDepth(TimeNs t_ns, double depth_m);
+    void onSensorDepth(TimeNs t_ns, double depth_m, std::string_view input = {});
     void onMagSample(TimeNs t_ns, int sensor, std::optional<double> field_nT,
                      std::optional<double> quality, std::optional<double> depth_m,
-                     std::optional<double> altitude_m);
+                     std::optional<double> altitude_m, std::string_view input = {});
     // The survey clock (docs/checks.md, "The survey clock"): the silence checks run on the time
     // of the instruments, not on the receive clock, so a simulation sent faster than real time
     // sees the same silences as the survey did. Survey time S is the latest aligned time of any
@@ -266,6 +267,12 @@ private:
     bool m_seen_heading = false;  // an HDT arrived
     bool m_seen_cable = false;    // a cable-out value arrived
     bool m_seen_depth = false;    // a sensor depth arrived
+    // Where and when each pose input last arrived (survey time), for a value that stops.
+    struct LastInput {
+        std::optional<TimeNs> at_ns;
+        std::string input;
+    };
+    LastInput m_last_heading, m_last_cable, m_last_depth;
     bool m_crs_checked = false;
     bool m_crs_refused = false;
     std::string m_crs_problem;

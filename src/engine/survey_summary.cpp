@@ -210,6 +210,7 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
     }
     auto& d = s.detection;
     d.field = cfg.detection.field;
+    d.field_used = detect::usesAmbientField(cfg.detection);
     d.settings = cfg.detection.detection;
     d.targets = cfg.detection.targets;
     d.sensors = engine.sensors().size();
@@ -399,9 +400,12 @@ nlohmann::json toJson(const SurveySummary& s) {
                            {"remanence_ratio", t.orientation == detect::Orientation::InducedRemanent
                                                    ? json(t.remanence_ratio)
                                                    : json(nullptr)}});
-    j["detection"] = {{"inclination_deg", d.field.inclination_deg},
-                      {"declination_deg", d.field.declination_deg},
-                      {"intensity_nT", d.field.intensity_nT},
+    const auto fieldValue = [&d](double v) { return d.field_used ? json(v) : json(nullptr); };
+    j["detection"] = {{"inclination_deg", fieldValue(d.field.inclination_deg)},
+                      {"declination_deg", fieldValue(d.field.declination_deg)},
+                      {"intensity_nT", fieldValue(d.field.intensity_nT)},
+                      {"ambient_field", d.field_used ? json("used by the dipole/sphere classes")
+                                                     : json(detect::kNoFieldNeeded)},
                       {"k", d.settings.k},
                       {"min_anomaly_nT", d.settings.min_anomaly_nT},
                       {"noise_window", d.settings.noise_window},

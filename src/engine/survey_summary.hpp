@@ -28,6 +28,7 @@ struct LineCoverage {
 // The detection model behind the coverage, as configured: what the numbers assume.
 struct DetectionSummary {
     detect::GeomagneticField field;
+    bool field_used = true;  // false: every class uses the mass rule; `field` is not printed
     detect::DetectionSettings settings;
     std::vector<detect::TargetClass> targets;
     std::size_t sensors = 0;

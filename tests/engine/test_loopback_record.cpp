@@ -8,6 +8,8 @@
 #include <filesystem>
 #include <fstream>
 #include <map>
+#include <memory>
+#include <cstdio>
 #include <regex>
 #include <sstream>
 #include <thread>
@@ -87,6 +89,77 @@ TEST(LoopbackRecord, EverySentLineIsInTheRawTable) {
     sg::ReceivedLine line;
     while (reader.next(line)) ++logged[line.source];
     for (const auto& [name, n] : sent) EXPECT_EQ(logged[name], n) << "channel " << name;
+    fs::remove_all(dir);
+}
+
+// A wrong sensor index in a live `record`: the simulator's strings carry sensors 0-3, the config
+// says 10-13. The unknown_sensor alarm is raised within seconds of the first string (survey
+// time), and the run ends with exit 5 (samples arrived, nothing covered) and the counts.
+TEST(LoopbackRecord, AWrongSensorIndexRaisesUnknownSensorAndEndsWithExitFive) {
+    namespace fs = std::filesystem;
+    const std::string src = SG_SOURCE_DIR;
+    const std::string bin = SG_BINARY_DIR;
+    const fs::path dir = fs::temp_directory_path() / ("sg_wrongsensor_" + std::to_string(::getpid()));
+    fs::remove_all(dir);
+    fs::create_directories(dir);
+    const int base = 45000 + static_cast<int>(::getpid() % 400) * 10;
+    std::string cfg = readFile(src + "/replay_logs/demo/survey.toml");
+    for (int i = 0; i < 6; ++i)
+        cfg = std::regex_replace(cfg, std::regex("127\\.0\\.0\\.1:4700" + std::to_string(i)),
+                                 "127.0.0.1:" + std::to_string(base + i));
+    cfg = std::regex_replace(cfg, std::regex("\"plan_(area|lines)\\.geojson\""),
+                             "\"" + src + "/replay_logs/demo/plan_$1.geojson\"");
+    cfg = std::regex_replace(cfg, std::regex("\nindex = ([0-3])\n"), "\nindex = 1$1\n");
+    ASSERT_NE(cfg.find("index = 13"), std::string::npos);
+    std::ofstream(dir / "survey.toml") << cfg;
+    const std::string log = (dir / "wrong.sglog").string();
+    const std::string rec_bin = bin + "/app/swathguard";
+    const std::string cfg_path = (dir / "survey.toml").string();
+    const std::string err_path = (dir / "err.txt").string();
+    const char* rec_argv[] = {rec_bin.c_str(), "record", "--config", cfg_path.c_str(), "--log",
+                              log.c_str(), "--headless", nullptr};
+    posix_spawn_file_actions_t fa;
+    posix_spawn_file_actions_init(&fa);
+    posix_spawn_file_actions_addopen(&fa, 1, "/dev/null", O_WRONLY, 0);
+    posix_spawn_file_actions_addopen(&fa, 2, err_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    pid_t rec = -1;
+    ASSERT_EQ(posix_spawn(&rec, rec_bin.c_str(), &fa, nullptr, const_cast<char**>(rec_argv), environ), 0);
+    posix_spawn_file_actions_destroy(&fa);
+    std::this_thread::sleep_for(std::chrono::milliseconds(1500));  // readers bound
+    const std::string sim = bin + "/drivers_sim/swathguard-sim --scenario " + src +
+                            "/replay_logs/demo/scenario.toml --out udp --base-port " +
+                            std::to_string(base) + " --speed 10 --duration 30 --dir " +
+                            (dir / "sim").string() + " > /dev/null";
+    ASSERT_EQ(std::system(sim.c_str()), 0);
+    std::this_thread::sleep_for(std::chrono::milliseconds(1500));
+    ::kill(rec, SIGINT);
+    int status = 0;
+    ::waitpid(rec, &status, 0);
+    ASSERT_TRUE(WIFEXITED(status));
+    EXPECT_EQ(WEXITSTATUS(status), 5) << readFile(err_path);
+    const std::string err = readFile(err_path);
+    // The counts by reason.
+    EXPECT_NE(err.find("nothing was covered although"), std::string::npos) << err;
+    EXPECT_NE(err.find("sensor index with no [[sensor]]"), std::string::npos) << err;
+    const auto q = [&log](const std::string& sql) {
+        std::string out;
+        std::unique_ptr<FILE, int (*)(FILE*)> p(
+            popen(("sqlite3 '" + log + "' \"" + sql + "\"").c_str(), "r"), pclose);
+        char buf[256];
+        while (p && fgets(buf, sizeof buf, p.get())) out += buf;
+        while (!out.empty() && out.back() == '\n') out.pop_back();
+        return out;
+    };
+    const std::string first_mag = q("select min(time_utc_ns) from mag_samples");
+    const std::string alarm = q("select min(start_utc_ns) from events where kind = 'alarm.unknown_sensor'");
+    ASSERT_FALSE(first_mag.empty());
+    ASSERT_FALSE(alarm.empty()) << "no unknown_sensor alarm in the log";
+    const double after_s = (std::stod(alarm) - std::stod(first_mag)) * 1e-9;
+    std::printf("unknown_sensor alarm %.2f s (survey time) after the first magnetometer string\n", after_s);
+    EXPECT_GE(after_s, 0.0);
+    EXPECT_LE(after_s, 3.0);
+    EXPECT_NE(q("select detail from events where kind = 'alarm.unknown_sensor' limit 1").find("has no configured offsets"),
+              std::string::npos);
     fs::remove_all(dir);
 }
 

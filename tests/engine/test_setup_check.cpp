@@ -103,6 +103,7 @@ LonLat toLonLat(double e_m, double n_m) {
 struct Survey {
     int sensor_index = 0;     // index carried by the magnetometer strings
     bool depth_field = true;  // the strings carry the fish depth
+    double cable_until_s = -1.0;  // >= 0: a winch input sends cable out once a second until then
     std::string gnss, mag;
     std::vector<ReceivedLine> lines;  // merged by time
 
@@ -151,6 +152,11 @@ struct Survey {
                 g << rmc << "\r\n" << gga << "\r\n";
                 add("gnss", t, rmc);
                 add("gnss", t, gga);
+            }
+            if (cable_until_s >= 0.0 && k % 10 == 5 && k * 0.1 <= cable_until_s) {
+                char cb[80];
+                std::snprintf(cb, sizeof cb, "CB,%s,12.0", hhmmss(t, 3).c_str());
+                add("winch", t, cb);
             }
             char line[160];
             if (depth_field)
@@ -523,6 +529,51 @@ TEST(SetupCheck, LiveAlarmForAMissingCableOut) {
     EXPECT_EQ(firstEpisode(q.engine(), "pose_inputs"), nullptr);
     EXPECT_EQ(firstEpisode(q.engine(), "unknown_sensor"), nullptr);
     EXPECT_EQ(firstEpisode(q.engine(), "crs_area"), nullptr);
+}
+
+TEST(SetupCheck, LiveAlarmForACableOutThatStops) {
+    // Cable out from a winch input arrives once a second for the first 40 s of survey time, then
+    // stops (the survey runs about 400 s). The pose may bridge [tow] cable_max_age_s = 3 s (set
+    // here; default 30 s): pose_inputs raises its alarm within seconds of that, naming the input.
+    ConfigSpec spec;
+    spec.cable = false;
+    spec.tow_extra = "cable_max_age_s = 3.0\n";
+    spec.extra = "[[input]]\nname = \"winch\"\nkind = \"fieldmap\"\nfieldmap = \"cb\"\nrole = \"cable\"\n"
+                 "clock = \"instrument\"\n[fieldmap.cb]\nstart = \"CB\"\ndelimiter = \",\"\ntime = 1\n"
+                 "time_format = \"hhmmss.sss\"\ncable_out_m = 2\n";
+    Survey sv;
+    sv.cable_until_s = 40.0;
+    sv.generate();
+    TempDir d;
+    writePlan(d);
+    const auto cfg = sg::engine::parseSurveyConfig(config(spec), d.file("survey.toml"), d.path.string(),
+                                                   sg::config::InputUse::Offline);
+    std::int64_t id = 1;
+    sg::engine::Pipeline p(cfg, [&id] { return id++; });
+    for (const auto& l : sv.lines) p.feed(l);
+    const auto* ep = firstEpisode(p.engine(), "pose_inputs");
+    ASSERT_NE(ep, nullptr) << "a cable out that stops raises no alarm";
+    EXPECT_EQ(ep->peak_level, sg::checks::Level::kAlarm);
+    // Last value at 39.5 s; stale after 3 s; the check warns at 2 s and alarms at 3 s of it.
+    const double start_s = sg::toSeconds(ep->start_ns - kT0);
+    EXPECT_GE(start_s, 39.5) << "no alarm while the winch was sending";
+    EXPECT_LE(start_s, 39.5 + 3.0 + 3.0 + 0.5);
+    EXPECT_NE(ep->detail.find("cable out stopped arriving from input 'winch'"), std::string::npos) << ep->detail;
+    EXPECT_EQ(ep->detail.find("no cable out (set"), std::string::npos) << "it did arrive: " << ep->detail;
+    // Samples were placed while the cable out came, and not after.
+    auto summary = sg::engine::summarise(p.engine(), p.linesFed());
+    EXPECT_GT(summary.raster_covered_cells, 0u);
+    EXPECT_GT(summary.invalid.pose_no_cable_out, 0u);
+
+    // The same winch sending to the end raises no pose_inputs alarm.
+    Survey all;
+    all.cable_until_s = 1e9;
+    all.generate();
+    sg::engine::Pipeline q(cfg, [&id] { return id++; });
+    for (const auto& l : all.lines) q.feed(l);
+    EXPECT_EQ(firstEpisode(q.engine(), "pose_inputs"), nullptr);
+    EXPECT_GT(sg::engine::summarise(q.engine(), q.linesFed()).raster_covered_cells,
+              summary.raster_covered_cells);
 }
 
 // --- demo from any folder ----------------------------------------------------------------------

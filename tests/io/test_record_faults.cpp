@@ -7,6 +7,7 @@
 #include <gtest/gtest.h>
 
 #include <fcntl.h>
+#include <pty.h>
 #include <signal.h>
 #include <spawn.h>
 #include <sys/mount.h>
@@ -239,6 +240,45 @@ TEST(RecordFaults, ASecondRecorderOnTheSameUdpPortFailsAndTheFirstKeepsTheStream
     }
     std::this_thread::sleep_for(std::chrono::milliseconds(800));
     EXPECT_EQ(first.interrupt(), 0);
+    EXPECT_EQ(sql(log1, "select count(*) from raw_lines"), "50");
+}
+
+// A pseudo-terminal pair (openpty(3)) held by the test: the slave is the "device".
+struct PtyPair {
+    int master = -1, slave = -1;
+    std::string device;
+    PtyPair() {
+        char name[256] = {};
+        if (::openpty(&master, &slave, name, nullptr, nullptr) == 0) device = name;
+    }
+    ~PtyPair() {
+        if (master >= 0) ::close(master);
+        if (slave >= 0) ::close(slave);
+    }
+};
+
+TEST(RecordFaults, ASecondRecorderOnTheSameSerialDeviceIsRefusedNamingTheDevice) {
+    TempDir dir;
+    PtyPair pty;
+    ASSERT_FALSE(pty.device.empty()) << "openpty failed";
+    const auto cfg = writeConfig(dir, "transport = \"serial\"\ndevice = \"" + pty.device +
+                                          "\"\nbaud = 115200\n");
+    const auto log1 = dir.file("first.sqlite"), log2 = dir.file("second.sqlite");
+    Proc first({"record", "--config", cfg, "--log", log1, "--headless"}, dir.file("o1"), dir.file("e1"));
+    ASSERT_TRUE(first.waitForOut(" err", std::chrono::seconds(10))) << first.err();
+    // The first recorder holds the device (flock + TIOCEXCL) before its first status line.
+    Proc second({"record", "--config", cfg, "--log", log2, "--headless"}, dir.file("o2"), dir.file("e2"));
+    EXPECT_EQ(second.wait(std::chrono::seconds(10)), 1);
+    EXPECT_NE(second.err().find("serial device " + pty.device + " is held by another process"),
+              std::string::npos)
+        << second.err();
+    EXPECT_FALSE(std::filesystem::exists(log2)) << "no log is left behind";
+    // The first one keeps reading the device.
+    std::string text;
+    for (int i = 0; i < 50; ++i) text += test::gga(i) + "\r\n";
+    ASSERT_EQ(::write(pty.master, text.data(), text.size()), static_cast<ssize_t>(text.size()));
+    std::this_thread::sleep_for(std::chrono::milliseconds(800));
+    EXPECT_EQ(first.interrupt(), 0) << first.err();
     EXPECT_EQ(sql(log1, "select count(*) from raw_lines"), "50");
 }
 

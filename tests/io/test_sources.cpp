@@ -274,6 +274,38 @@ TEST(Sources, SerialDeviceThatDisappearsIsReopened) {
     EXPECT_TRUE(ev[0].end_utc_ns.has_value());
 }
 
+TEST(Sources, SerialDeviceHeldByAnotherReaderIsRefused) {
+    TempDir dir;
+    Socat socat(dir);
+    ASSERT_TRUE(socat.ok());
+    auto in = nmeaInput("gnss", config::Transport::Serial);
+    in.serial.device = socat.a();
+    asio::io_context io;
+    io::LogWriter w1(dir.file("one.sqlite"), {100, false});
+    io::Recorder first(io, {in}, {}, w1);
+    first.start();
+    ASSERT_TRUE(test::runUntil(io, [&] { return first.source("gnss")->connected(); }));
+    // A second reader of the same device: refused at start, naming the device.
+    io::LogWriter w2(dir.file("two.sqlite"), {100, false});
+    io::Recorder second(io, {in}, {}, w2);
+    try {
+        second.start();
+        ADD_FAILURE() << "the second reader opened a device the first holds";
+    } catch (const io::SerialSource::DeviceBusy& e) {
+        EXPECT_NE(std::string(e.what()).find("serial device " + socat.a() + " is held by another process"),
+                  std::string::npos)
+            << e.what();
+    }
+    // So is the pre-acquisition check `record` runs before creating its log.
+    EXPECT_THROW(io::checkSerialDevicesFree({in}), io::SerialSource::DeviceBusy);
+    second.stop();
+    first.stop();
+    // Released: the device is free again.
+    EXPECT_NO_THROW(io::checkSerialDevicesFree({in}));
+    w1.stop();
+    w2.stop();
+}
+
 TEST(Sources, TcpPeerThatClosesAndReturnsIsAnOutageWithStartAndEnd) {
     TempDir dir;
     asio::io_context io;

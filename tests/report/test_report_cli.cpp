@@ -143,6 +143,45 @@ TEST_F(ReportCli, PdfTextCarriesTheCoverageAndGapCount) {
     EXPECT_NE(text.find("Detection model and assumptions"), std::string::npos);
 }
 
+// A survey whose classes all use the mass rule needs no ambient field: the report states so and
+// prints no field (the demo config's [geomagnetic] and dipole classes removed; same log).
+TEST_F(ReportCli, MassRuleOnlySurveyPrintsNoFieldAndSaysNoneIsNeeded) {
+    const std::string src = SG_SOURCE_DIR;
+    std::string cfg = slurp(src + "/replay_logs/demo/survey.toml");
+    const auto cut = [&cfg](const std::string& from, const std::string& to) {
+        const auto a = cfg.find(from), b = cfg.find(to);
+        ASSERT_NE(a, std::string::npos) << from;
+        ASSERT_NE(b, std::string::npos) << to;
+        cfg.erase(a, b - a);
+    };
+    cut("[geomagnetic]", "[detection]");
+    cut("[[target]]\nname = \"small shell\"", "[[target]]\nname = \"anchor");
+    for (const std::string f : {"plan_area.geojson", "plan_lines.geojson"}) {
+        const auto at = cfg.find("\"" + f + "\"");
+        ASSERT_NE(at, std::string::npos) << f;
+        cfg.replace(at, f.size() + 2, "\"" + src + "/replay_logs/demo/" + f + "\"");
+    }
+    ASSERT_EQ(cfg.find("dipole"), std::string::npos);
+    ASSERT_EQ(cfg.find("[geomagnetic]"), std::string::npos);
+    const std::string cfg_path = dir + "/mass_only.toml";
+    std::ofstream(cfg_path) << cfg;
+    const std::string bin = std::string(SG_BINARY_DIR) + "/app/swathguard";
+    std::string out;
+    ASSERT_EQ(run(bin + " report " + log + " --out " + dir + "/mass_only --config " + cfg_path, &out), 0) << out;
+    std::string text;
+    ASSERT_EQ(run("pdftotext " + dir + "/mass_only/report.pdf -", &text), 0) << text;
+    EXPECT_NE(text.find("mass rule: no field needed"), std::string::npos);
+    EXPECT_EQ(text.find("49800 nT"), std::string::npos) << "a field nothing used is printed";
+    EXPECT_EQ(text.find("inclination 67.5"), std::string::npos);
+    const auto j = nlohmann::json::parse(slurp(dir + "/mass_only/summary.json"));
+    EXPECT_TRUE(j["detection"]["inclination_deg"].is_null());
+    EXPECT_TRUE(j["detection"]["intensity_nT"].is_null());
+    EXPECT_EQ(j["detection"]["ambient_field"], "mass rule: no field needed");
+    // The demo's own report (dipole classes) prints the field it used.
+    ASSERT_EQ(run("pdftotext " + dir + "/report/report.pdf -", &text), 0) << text;
+    EXPECT_NE(text.find("inclination 67.5 deg, declination 1.5 deg, 49800 nT"), std::string::npos);
+}
+
 TEST_F(ReportCli, PdfRendersEveryPage) {
     std::string info;
     ASSERT_EQ(run("pdfinfo " + dir + "/report/report.pdf", &info), 0) << info;
