@@ -306,7 +306,27 @@ public:
                 dl->AddImage(tex, a, b);
         }
 
-        // ---- area, lines, gaps, infill ----
+        // ---- ground not run yet (quiet), area, lines, gaps, infill ----
+        if (!s->not_run_yet.empty() && !s->area.empty()) {
+            // A faint veil over the ground of lines not run yet, kept inside the area's box: not a
+            // gap, nothing to act on (docs/coverage.md, "Not run yet and missed").
+            ImVec2 bmin{1e30f, 1e30f}, bmax{-1e30f, -1e30f};
+            for (const auto& ring : s->area)
+                for (const auto& p : ring) {
+                    const ImVec2 q = m_t.toScreen(p);
+                    bmin = {std::min(bmin.x, q.x), std::min(bmin.y, q.y)};
+                    bmax = {std::max(bmax.x, q.x), std::max(bmax.y, q.y)};
+                }
+            dl->PushClipRect({std::max(bmin.x, amin.x), std::max(bmin.y, amin.y)},
+                             {std::min(bmax.x, amax.x), std::min(bmax.y, amax.y)}, true);
+            for (const auto& quad : s->not_run_yet) {
+                ImVec2 pts[4];
+                const std::size_t n = std::min<std::size_t>(4, quad.size());
+                for (std::size_t k = 0; k < n; ++k) pts[k] = m_t.toScreen(quad[k]);
+                if (n == 4) dl->AddConvexPolyFilled(pts, 4, withAlpha(pal.text_dim, 26));
+            }
+            dl->PopClipRect();
+        }
         for (const auto& ring : s->area) drawWorldPolyline(dl, ring, m_t, pal.area, 2.0f * sc, true);
         for (std::size_t i = 0; i < s->lines.size(); ++i) {
             const auto& line = s->lines[i];
@@ -339,7 +359,7 @@ public:
         }
         for (const auto& gap : s->gaps) {
             char buf[64];
-            std::snprintf(buf, sizeof buf, "gap %llu: %.0f m2", static_cast<unsigned long long>(gap.id), gap.area_m2);
+            std::snprintf(buf, sizeof buf, "%s: %.0f m2", gap.name.c_str(), gap.area_m2);
             const ImVec2 p = m_t.toScreen(gap.centroid);
             drawLabel(dl, {p.x + 6, p.y - 6}, pal.gap, label_bg, buf);
         }
@@ -347,6 +367,19 @@ public:
             if (inf.points.empty()) continue;
             const ImVec2 p = m_t.toScreen(inf.points.front());
             drawLabel(dl, {p.x + 4, p.y - 16 * sc}, pal.infill, label_bg, inf.name.c_str());
+        }
+
+        // ---- forming gap: a ring with a cross where it forms, while its alarm is active ----
+        if (s->forming_gap.active) {
+            const ImVec2 c = m_t.toScreen(s->forming_gap.at);
+            const float r = 11.0f * sc;
+            dl->AddCircle(c, r + 2.0f * sc, pal.background, 24, 5.0f * sc);
+            dl->AddCircle(c, r, pal.gap, 24, 2.5f * sc);
+            dl->AddLine({c.x - 1.6f * r, c.y}, {c.x + 1.6f * r, c.y}, pal.gap, 2.0f * sc);
+            dl->AddLine({c.x, c.y - 1.6f * r}, {c.x, c.y + 1.6f * r}, pal.gap, 2.0f * sc);
+            char buf[96];
+            std::snprintf(buf, sizeof buf, "forming gap %.1f m", s->forming_gap.width_m);
+            drawLabel(dl, {c.x + 1.8f * r, c.y - 1.8f * r}, pal.gap, label_bg, buf);
         }
 
         // ---- live swath, sensors, vessel ----

@@ -3,6 +3,7 @@
 // line tracker and the gap/infill options. No threads: the caller feeds it in time order.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -70,8 +71,16 @@ public:
     const SwathPainter::Counters& painterCounters() const { return m_painter.counters(); }
     const GapOptions& gapOptions() const { return m_gap_options; }
 
-    // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage.
+    // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage. Ground
+    // of planned lines not run yet (LineTracker::pendingGround) is in no gap: only missed ground is.
     GapReport gaps();
+    // The predicted half-width of a planned pass (m, >= 0), for the ground a line not run yet is
+    // expected to cover (default 0: half the spacing to each neighbour).
+    void setPlannedHalfWidth(double half_width_m) { m_planned_half_width_m = std::max(0.0, half_width_m); }
+    double plannedHalfWidth_m() const { return m_planned_half_width_m; }
+    // The gaps of `raster` with the ground not run yet of `tracker`'s runs left out (the site's
+    // earlier sessions, replayed one by one for the gap names).
+    GapReport gapsWith(const CoverageRaster& raster, const LineTracker& tracker) const;
     // Plans infill over `report` and proves it by flying it over a copy of the raster.
     struct Infill {
         InfillPlan plan;
@@ -88,6 +97,7 @@ private:
     std::unique_ptr<CoverageRaster> m_site;
     SwathPainter m_painter;
     LineTracker m_tracker;
+    double m_planned_half_width_m = 0.0;
 };
 
 }  // namespace sg::coverage
