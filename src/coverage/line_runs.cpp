@@ -220,7 +220,8 @@ bool LineTracker::passedBy(int index, Point pos) const {
     return false;
 }
 
-LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_m, const Box& bounds) const {
+LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_m, const Box& bounds,
+                                                     bool final) const {
     PendingGround out;
     out.lines_total = static_cast<int>(m_lines.size());
     const double spacing = m_opt.line_spacing_m;
@@ -234,8 +235,15 @@ LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_
         const double len = m_length_m[static_cast<std::size_t>(li)];
         // Passed along-track intervals of every run of this line (the open one included), merged.
         std::vector<std::pair<double, double>> passed;
+        double closed_m = 0.0;
         for (const auto& r : m_runs)
-            if (r.line == li && r.along_max_m > r.along_min_m) passed.emplace_back(r.along_min_m, r.along_max_m);
+            if (r.line == li && r.along_max_m > r.along_min_m) {
+                passed.emplace_back(r.along_min_m, r.along_max_m);
+                if (final || r.id != m_open_run)
+                    closed_m += std::min(r.along_max_m, len) - std::max(r.along_min_m, 0.0);
+            }
+        // Run: a pass went along it and left; what it did not cover is missed, not ahead.
+        if (closed_m >= 0.5 * len) continue;
         std::sort(passed.begin(), passed.end());
         std::vector<std::pair<double, double>> pieces;  // unpassed stretches of [0, len]
         double cur = 0.0;

@@ -128,13 +128,15 @@ public:
     // that side (neighbourLine) and W `planned_half_width_m` (>= 0); with no neighbour on a side,
     // everything to `bounds` (the area's box). A stretch touching a line end reaches along track to
     // `bounds` too. Unpassed stretches shorter than half a spacing are ignored (a run acquired a
-    // few metres into its line has run it).
+    // few metres into its line has run it). See docs/coverage.md for the whole rule.
     struct PendingGround {
         std::vector<std::array<Point, 4>> quads;  // counter-clockwise corners
         int lines_total = 0;                      // planned lines
         std::vector<int> lines_pending;           // lines with a stretch not run yet (indices)
     };
-    PendingGround pendingGround(double planned_half_width_m, const Box& bounds) const;
+    // A line is run once its closed runs have passed at least half its length (`final`: the open
+    // run counts as closed, the survey is over); its stretches not passed are then missed ground.
+    PendingGround pendingGround(double planned_half_width_m, const Box& bounds, bool final = false) const;
 
 private:
     bool directionMatches(int index, double dir_e, double dir_n, bool& reversed) const;

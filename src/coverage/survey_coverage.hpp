@@ -73,14 +73,15 @@ public:
 
     // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage. Ground
     // of planned lines not run yet (LineTracker::pendingGround) is in no gap: only missed ground is.
-    GapReport gaps();
+    // `final`: the survey is over, the open run counts as ended (LineTracker::pendingGround).
+    GapReport gaps(bool final = false);
     // The predicted half-width of a planned pass (m, >= 0), for the ground a line not run yet is
     // expected to cover (default 0: half the spacing to each neighbour).
     void setPlannedHalfWidth(double half_width_m) { m_planned_half_width_m = std::max(0.0, half_width_m); }
     double plannedHalfWidth_m() const { return m_planned_half_width_m; }
     // The gaps of `raster` with the ground not run yet of `tracker`'s runs left out (the site's
     // earlier sessions, replayed one by one for the gap names).
-    GapReport gapsWith(const CoverageRaster& raster, const LineTracker& tracker) const;
+    GapReport gapsWith(const CoverageRaster& raster, const LineTracker& tracker, bool final = false) const;
     // Plans infill over `report` and proves it by flying it over a copy of the raster.
     struct Infill {
         InfillPlan plan;
@@ -98,6 +99,7 @@ private:
     SwathPainter m_painter;
     LineTracker m_tracker;
     double m_planned_half_width_m = 0.0;
+    bool m_last_final = false;  // of the last gaps(): infill() leaves out the same ground
 };
 
 }  // namespace sg::coverage

@@ -802,9 +802,9 @@ coverage::InfillOptions SurveyEngine::infillOptions() const {
                                        std::max(0.1, plannedHalfWidth_m()));
 }
 
-coverage::GapReport SurveyEngine::gapReport() {
+coverage::GapReport SurveyEngine::gapReport(bool final) {
     if (!m_cov) return {};
-    auto rep = m_cov->gaps();
+    auto rep = m_cov->gaps(final);
     m_namer.name(rep, false);  // names as committed; gaps new since the last run's end preview theirs
     return rep;
 }

@@ -201,7 +201,8 @@ public:
 
     // Gaps in the area now, and the infill lines that close them.
     // (Both need a plan: without one the report is empty.)
-    coverage::GapReport gapReport();
+    // `final`: the survey is over (a finished log): the open run counts as ended.
+    coverage::GapReport gapReport(bool final = false);
     // Plans the infill and proves it by flying it over a copy of the raster.
     coverage::SurveyCoverage::Infill infillPlan(const coverage::GapReport& report) const;
     coverage::InfillOptions infillOptions() const;

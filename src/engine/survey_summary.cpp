@@ -183,7 +183,8 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
     s.raster_hash = engine.raster().contentHash();
     s.raster_covered_cells = engine.raster().coveredCells();
     if (engine.coverage() != nullptr) {
-        s.gaps = engine.gapReport();
+        // A summary of lines processed is that of a finished log (the screen's passes 0).
+        s.gaps = engine.gapReport(lines_processed > 0);
         s.next_gap_number = engine.gapNamer().nextNumber();
         s.area_m2 = s.gaps.areaM2();
         s.covered_m2 = static_cast<double>(s.gaps.covered_cells) * s.cell_size_m * s.cell_size_m;
