@@ -72,7 +72,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         EXPECT_EQ(eps[i].detail, live_episodes[i].detail);  // e.g. where a forming gap was located
     }
     // The same gap names: committed at the same run ends, matched the same way.
-    ASSERT_GE(live_commits, 2U);  // several lines end in the first 10 minutes
+    ASSERT_GE(live_commits, 1U);  // the first line ends within the first 10 minutes
     EXPECT_EQ(eng.gapNamer().commits(), live_commits);
     EXPECT_EQ(eng.gapNamer().nextNumber(), live_next);
     std::vector<int> ids;
