@@ -221,7 +221,8 @@ bool LineTracker::passedBy(int index, Point pos) const {
 }
 
 LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_m, const Box& bounds,
-                                                     bool final) const {
+                                                     bool final, const std::vector<Point>* track,
+                                                     double track_step_m) const {
     PendingGround out;
     out.lines_total = static_cast<int>(m_lines.size());
     const double spacing = m_opt.line_spacing_m;
@@ -234,14 +235,29 @@ LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_
         const PlanLine& l = m_lines[static_cast<std::size_t>(li)];
         const double len = m_length_m[static_cast<std::size_t>(li)];
         // Passed along-track intervals of every run of this line (the open one included), merged.
-        std::vector<std::pair<double, double>> passed;
-        double closed_m = 0.0;
+        std::vector<std::pair<double, double>> passed, closed;
         for (const auto& r : m_runs)
             if (r.line == li && r.along_max_m > r.along_min_m) {
                 passed.emplace_back(r.along_min_m, r.along_max_m);
-                if (final || r.id != m_open_run)
-                    closed_m += std::min(r.along_max_m, len) - std::max(r.along_min_m, 0.0);
+                if (final || r.id != m_open_run) closed.emplace_back(r.along_min_m, r.along_max_m);
             }
+        // The vessel went by with unusable samples: gone by all the same (no run records it).
+        if (track)
+            for (const auto& p : *track) {
+                const double a = alongTrack(li, p);
+                if (a < -track_step_m || a > len + track_step_m) continue;
+                if (std::abs(crossTrack(li, p, 1.0, 0.0)) > 0.5 * spacing) continue;
+                passed.emplace_back(a - track_step_m, a + track_step_m);
+                closed.emplace_back(a - track_step_m, a + track_step_m);
+            }
+        std::sort(closed.begin(), closed.end());
+        double closed_m = 0.0, reach = 0.0;
+        for (auto [a, b] : closed) {
+            a = std::max({a, reach, 0.0});
+            b = std::min(b, len);
+            if (b > a) closed_m += b - a;
+            reach = std::max(reach, b);
+        }
         // Run: a pass went along it and left; what it did not cover is missed, not ahead.
         if (closed_m >= 0.5 * len) continue;
         std::sort(passed.begin(), passed.end());

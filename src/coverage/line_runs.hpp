@@ -136,7 +136,10 @@ public:
     };
     // A line is run once its closed runs have passed at least half its length (`final`: the open
     // run counts as closed, the survey is over); its stretches not passed are then missed ground.
-    PendingGround pendingGround(double planned_half_width_m, const Box& bounds, bool final = false) const;
+    // `track`: positions the vessel went by with samples that could not be placed (one every
+    // `track_step_m`); within half a spacing of a line they count as closed passes of it.
+    PendingGround pendingGround(double planned_half_width_m, const Box& bounds, bool final = false,
+                                const std::vector<Point>* track = nullptr, double track_step_m = 5.0) const;
 
 private:
     bool directionMatches(int index, double dir_e, double dir_n, bool& reversed) const;

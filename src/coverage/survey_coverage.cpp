@@ -101,7 +101,7 @@ GapReport SurveyCoverage::gaps(bool final) {
 
 GapReport SurveyCoverage::gapsWith(const CoverageRaster& raster, const LineTracker& tracker, bool final) const {
     if (m_plan.area.empty() || tracker.lines().empty()) return findGaps(raster, m_plan.area, m_gap_options);
-    const auto pending = tracker.pendingGround(m_planned_half_width_m, bounds(m_plan.area), final);
+    const auto pending = pendingGround(tracker, final);
     GapReport rep = findGaps(raster, m_plan.area, m_gap_options, &pending.quads);
     rep.lines_total = pending.lines_total;
     for (int li : pending.lines_pending) rep.lines_not_run.push_back(tracker.lines()[static_cast<std::size_t>(li)].name);
@@ -114,7 +114,7 @@ SurveyCoverage::Infill SurveyCoverage::infill(const GapReport& report, const Inf
     if (m_plan.area.empty() || m_tracker.lines().empty()) {
         out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options).after;
     } else {
-        const auto pending = m_tracker.pendingGround(m_planned_half_width_m, bounds(m_plan.area), m_last_final);
+        const auto pending = pendingGround(m_tracker, m_last_final);
         out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options, 2.0, 1.0, &pending.quads).after;
         out.after.lines_total = report.lines_total;
         out.after.lines_not_run = report.lines_not_run;

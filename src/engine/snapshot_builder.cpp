@@ -168,7 +168,7 @@ void SnapshotBuilder::updateGaps(bool force) {
     }
     m_not_run.clear();
     if (auto* cov = m_engine.coverage(); cov && !cov->plan().area.empty()) {
-        const auto pending = cov->lines().pendingGround(cov->plannedHalfWidth_m(), coverage::bounds(cov->plan().area));
+        const auto pending = cov->pendingGround(cov->lines(), false);
         for (const auto& q : pending.quads) {
             std::vector<PointEN> ring;
             for (const auto& p : q) ring.push_back({p.e_m, p.n_m});

@@ -122,6 +122,7 @@ void SurveyEngine::loadPlan() {
     m_cov = std::make_unique<coverage::SurveyCoverage>(std::move(plan), cov, gaps);
     // The ground a line not run yet is expected to cover (docs/coverage.md, "Not run yet and missed").
     m_cov->setPlannedHalfWidth(plannedHalfWidth_m());
+    m_cov->setVesselTrack(&m_track, kTrackStep_m);
 }
 
 std::string FormingGapSpot::text() const {
