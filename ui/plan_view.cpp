@@ -315,7 +315,27 @@ public:
             dl->AddText({amin.x + 8.0f * sc, amax.y - ImGui::GetTextLineHeight() - 8.0f * sc}, pal.text, note);
         }
 
-        // ---- area, lines, gaps, infill ----
+        // ---- ground not run yet (quiet), area, lines, gaps, infill ----
+        if (!s->not_run_yet.empty() && !s->area.empty()) {
+            // A faint veil over the ground of lines not run yet, kept inside the area's box: not a
+            // gap, nothing to act on (docs/coverage.md, "Not run yet and missed").
+            ImVec2 bmin{1e30f, 1e30f}, bmax{-1e30f, -1e30f};
+            for (const auto& ring : s->area)
+                for (const auto& p : ring) {
+                    const ImVec2 q = m_t.toScreen(p);
+                    bmin = {std::min(bmin.x, q.x), std::min(bmin.y, q.y)};
+                    bmax = {std::max(bmax.x, q.x), std::max(bmax.y, q.y)};
+                }
+            dl->PushClipRect({std::max(bmin.x, amin.x), std::max(bmin.y, amin.y)},
+                             {std::min(bmax.x, amax.x), std::min(bmax.y, amax.y)}, true);
+            for (const auto& quad : s->not_run_yet) {
+                ImVec2 pts[4];
+                const std::size_t n = std::min<std::size_t>(4, quad.size());
+                for (std::size_t k = 0; k < n; ++k) pts[k] = m_t.toScreen(quad[k]);
+                if (n == 4) dl->AddConvexPolyFilled(pts, 4, withAlpha(pal.text_dim, 26));
+            }
+            dl->PopClipRect();
+        }
         for (const auto& ring : s->area) drawWorldPolyline(dl, ring, m_t, pal.area, 2.0f * sc, true);
         for (std::size_t i = 0; i < s->lines.size(); ++i) {
             const auto& line = s->lines[i];
@@ -340,6 +360,20 @@ public:
         // ---- labels (after the tracks so they stay readable; placed without overlap) ----
         const Rect legend = legendRect(rect, sc), scale_bar = scaleBarRect(rect, sc);
         placeLabels(dl, rect, pal, *s, sc, {legend, scale_bar, controlsRect(rect, sc), northArrowRect(rect, sc)});
+        const ImU32 label_bg = withAlpha(pal.background, 190);
+
+        // ---- forming gap: a ring with a cross where it forms, while its alarm is active ----
+        if (s->forming_gap.active) {
+            const ImVec2 c = m_t.toScreen(s->forming_gap.at);
+            const float r = 11.0f * sc;
+            dl->AddCircle(c, r + 2.0f * sc, pal.background, 24, 5.0f * sc);
+            dl->AddCircle(c, r, pal.gap, 24, 2.5f * sc);
+            dl->AddLine({c.x - 1.6f * r, c.y}, {c.x + 1.6f * r, c.y}, pal.gap, 2.0f * sc);
+            dl->AddLine({c.x, c.y - 1.6f * r}, {c.x, c.y + 1.6f * r}, pal.gap, 2.0f * sc);
+            char buf[96];
+            std::snprintf(buf, sizeof buf, "forming gap %.1f m", s->forming_gap.width_m);
+            drawLabel(dl, {c.x + 1.8f * r, c.y - 1.8f * r}, pal.gap, label_bg, buf);
+        }
 
         // ---- live swath, sensors, vessel ----
         for (std::size_t i = 0; i < s->sensors.size(); ++i) {
@@ -495,7 +529,7 @@ private:
         if (s.active_line >= 0 && static_cast<std::size_t>(s.active_line) < s.lines.size())
             lineLabel(static_cast<std::size_t>(s.active_line));
         for (const auto& gap_view : s.gaps) {
-            const std::string text = "gap " + std::to_string(gap_view.id) + "  " + roundedArea(gap_view.area_m2);
+            const std::string text = (gap_view.name.empty() ? "gap " + std::to_string(gap_view.id) : gap_view.name) + "  " + roundedArea(gap_view.area_m2);
             put(m_t.toScreen(gap_view.centroid), text, pal.gap, around);
         }
         for (const auto& inf : s.infill) {

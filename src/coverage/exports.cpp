@@ -85,6 +85,7 @@ std::string gapsGeoJson(const GapReport& report, const GridToLonLat& to_lonlat) 
              {"geometry", geom},
              {"properties",
               {{"id", gap.id},
+               {"name", "G" + std::to_string(gap.id)},
                {"kind", gap.small ? "small" : "gap"},
                {"area_m2", gap.area_m2},
                {"along_length_m", gap.along_length_m},

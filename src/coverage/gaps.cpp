@@ -42,12 +42,44 @@ struct Stats {
 
 }  // namespace
 
+std::string GapReport::notRunMessage() const {
+    if (lines_not_run.empty()) return {};
+    return std::to_string(lines_not_run.size()) + " of " + std::to_string(lines_total) +
+           " planned lines not run yet: their ground is not counted as missed";
+}
+
+namespace {
+
+// The x-interval [lo, hi] where the horizontal line y crosses a convex quadrilateral; false when
+// it does not.
+bool quadRow(const GroundQuad& q, double y, double& lo, double& hi) {
+    lo = 1e300;
+    hi = -1e300;
+    for (std::size_t k = 0; k < 4; ++k) {
+        const Point a = q[k], b = q[(k + 1) % 4];
+        if ((a.n_m <= y && b.n_m >= y) || (b.n_m <= y && a.n_m >= y)) {
+            if (a.n_m == b.n_m) {
+                lo = std::min({lo, a.e_m, b.e_m});
+                hi = std::max({hi, a.e_m, b.e_m});
+            } else {
+                const double x = a.e_m + (y - a.n_m) / (b.n_m - a.n_m) * (b.e_m - a.e_m);
+                lo = std::min(lo, x);
+                hi = std::max(hi, x);
+            }
+        }
+    }
+    return hi >= lo;
+}
+
+}  // namespace
+
 std::size_t GapReport::significantCount() const {
     return static_cast<std::size_t>(
         std::count_if(gaps.begin(), gaps.end(), [](const Gap& g) { return !g.small; }));
 }
 
-GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const GapOptions& options) {
+GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const GapOptions& options,
+                   const std::vector<GroundQuad>* not_run_yet) {
     GapReport rep;
     const double cell = raster.cellSize();
     const Point org = raster.origin();
@@ -66,16 +98,50 @@ GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const
     UnionFind uf;
     std::vector<double> xs;
     std::size_t prev_begin = 0, prev_end = 0;  // runs of the previous row
+    std::vector<std::pair<std::int64_t, std::int64_t>> skip;  // cells [a, e) of ground not run yet
     for (std::int64_t j = j_lo; j <= j_hi; ++j) {
         const std::size_t row_begin = runs.size();
         const double yc = org.n_m + (static_cast<double>(j) + 0.5) * cell;
         rowCrossings(area, yc, xs);
-        auto emit = [&](std::int64_t a, std::int64_t e) {
+        skip.clear();
+        if (not_run_yet) {
+            for (const auto& q : *not_run_yet) {
+                double lo = 0.0, hi = 0.0;
+                if (!quadRow(q, yc, lo, hi)) continue;
+                const auto a = static_cast<std::int64_t>(std::ceil((lo - org.e_m) / cell - 0.5));
+                const auto e = static_cast<std::int64_t>(std::ceil((hi - org.e_m) / cell - 0.5));
+                if (e > a) skip.emplace_back(a, e);
+            }
+            std::sort(skip.begin(), skip.end());
+            std::size_t m = 0;  // merge overlapping intervals
+            for (std::size_t k = 0; k < skip.size(); ++k) {
+                if (m > 0 && skip[k].first <= skip[m - 1].second) {
+                    skip[m - 1].second = std::max(skip[m - 1].second, skip[k].second);
+                } else {
+                    skip[m++] = skip[k];
+                }
+            }
+            skip.resize(m);
+        }
+        std::size_t sk = 0;  // first skip interval that may still matter (calls come in order)
+        auto emitRun = [&](std::int64_t a, std::int64_t e) {
             if (runs.size() > row_begin && runs.back().i1 == a) {
                 runs.back().i1 = e;
             } else {
                 runs.push_back({j, a, e, uf.add()});
             }
+        };
+        // Uncovered cells [a, e): those on ground not run yet are counted apart, the rest emitted.
+        auto emit = [&](std::int64_t a, std::int64_t e) {
+            while (sk < skip.size() && skip[sk].second <= a) ++sk;
+            for (std::size_t k = sk; k < skip.size() && a < e; ++k) {
+                if (skip[k].first >= e) break;
+                if (skip[k].first > a) emitRun(a, skip[k].first);
+                const std::int64_t s0 = std::max(a, skip[k].first), s1 = std::min(e, skip[k].second);
+                rep.not_run_cells += s1 - s0;
+                a = s1;
+            }
+            if (a < e) emitRun(a, e);
         };
         for (std::size_t s = 0; s + 1 < xs.size(); s += 2) {
             std::int64_t i = static_cast<std::int64_t>(std::ceil((xs[s] - org.e_m) / cell - 0.5));

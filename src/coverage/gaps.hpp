@@ -3,7 +3,9 @@
 // A gap narrower than min_width_m is flagged `small` and listed apart, never dropped.
 #pragma once
 
+#include <array>
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include "coverage/coverage_raster.hpp"
@@ -24,7 +26,8 @@ struct GapRun {
 };
 
 struct Gap {
-    int id = 0;                   // 1-based, in report order
+    int id = 0;                   // the gap's number: 1-based report order from findGaps; stable
+                                  // for the life of a site once GapNamer has named it ("G<id>")
     std::int64_t cells = 0;
     double area_m2 = 0.0;         // cells * cell_size^2
     Box bbox;                     // of the cells (outer cell edges), survey CRS
@@ -45,18 +48,31 @@ struct GapReport {
     std::vector<GapRun> runs;  // sorted by row, then i0
     std::int64_t area_cells = 0;     // cells whose centre is inside the area
     std::int64_t covered_cells = 0;  // of those, margin >= 1
+    // Uncovered cells on ground not run yet (planned lines ahead): in no gap, not counted as missed.
+    std::int64_t not_run_cells = 0;
+    int lines_total = 0;                // planned lines (0 without a plan's lines)
+    std::vector<std::string> lines_not_run;  // names of the planned lines with a stretch not run yet
 
     double areaM2() const { return static_cast<double>(area_cells) * cell_size_m * cell_size_m; }
     double coveragePercent() const {
         return area_cells > 0 ? 100.0 * static_cast<double>(covered_cells) / static_cast<double>(area_cells)
                               : 0.0;
     }
+    double notRunM2() const { return static_cast<double>(not_run_cells) * cell_size_m * cell_size_m; }
+    // "3 of 12 planned lines not run yet: their ground is not counted as missed"; empty when none.
+    std::string notRunMessage() const;
     std::size_t significantCount() const;
     std::size_t smallCount() const { return gaps.size() - significantCount(); }
 };
 
-// Scans the area row by row (untouched tiles are skipped in whole 32-cell segments).
-GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const GapOptions& options);
+// A convex quadrilateral of ground not run yet (LineTracker::pendingGround).
+using GroundQuad = std::array<Point, 4>;
+
+// Scans the area row by row (untouched tiles are skipped in whole 32-cell segments). Uncovered
+// cells whose centre lies inside one of `not_run_yet` (may be null) belong to no gap: they are
+// counted in not_run_cells (docs/coverage.md, "Not run yet and missed").
+GapReport findGaps(const CoverageRaster& raster, const MultiPolygon& area, const GapOptions& options,
+                   const std::vector<GroundQuad>* not_run_yet = nullptr);
 
 // Outline of one gap in the survey CRS, traced along cell edges: exteriors counter-clockwise,
 // holes clockwise; parts touching only at a corner become separate polygons (so each ring is

@@ -144,6 +144,14 @@ InfillPlan planInfill(const GapReport& report, const InfillOptions& options) {
                 line.length_m = u1 - u0;
                 std::map<int, std::int64_t> per_gap;
                 for (std::size_t q = s; q < e; ++q) ++per_gap[group[q].gap];
+                std::int64_t most = -1;
+                for (const auto& [g, n] : per_gap) {
+                    const int id = report.gaps[static_cast<std::size_t>(g)].id;
+                    if (n > most || (n == most && id < line.main_gap_id)) {
+                        most = n;
+                        line.main_gap_id = id;
+                    }
+                }
                 for (const auto& [g, n] : per_gap) {
                     line.gap_ids.push_back(report.gaps[static_cast<std::size_t>(g)].id);
                     if (n == gap_cells[static_cast<std::size_t>(g)]) {
@@ -160,18 +168,25 @@ InfillPlan planInfill(const GapReport& report, const InfillOptions& options) {
             i = k;
         }
     }
+    // Names follow the main gap's stable number, suffixes in the order the lines were made
+    // (clusters by along-track position, lines across track), not in rank order: a line keeps its
+    // name while the ranking changes.
+    std::map<int, int> seen;
+    for (auto& l : plan.lines) {
+        const int n = seen[l.main_gap_id]++;
+        l.name = fmt::format("{}{}", options.name_prefix, l.main_gap_id);
+        if (n > 0) l.name += static_cast<char>('a' + std::min(n, 25));
+    }
     std::stable_sort(plan.lines.begin(), plan.lines.end(), [](const InfillLine& a, const InfillLine& b) {
         return a.area_per_km > b.area_per_km;
     });
-    for (std::size_t r = 0; r < plan.lines.size(); ++r) {
-        plan.lines[r].rank = static_cast<int>(r) + 1;
-        plan.lines[r].name = fmt::format("{}-{:02d}", options.name_prefix, r + 1);
-    }
+    for (std::size_t r = 0; r < plan.lines.size(); ++r) plan.lines[r].rank = static_cast<int>(r) + 1;
     return plan;
 }
 
 InfillCheck flyInfill(const CoverageRaster& raster, const MultiPolygon& area, const InfillPlan& plan,
-                      const GapOptions& gap_options, double centre_margin, double sample_step_m) {
+                      const GapOptions& gap_options, double centre_margin, double sample_step_m,
+                      const std::vector<GroundQuad>* not_run_yet) {
     InfillCheck check{raster, {}};
     SwathPainter painter(check.raster, 2.0 * sample_step_m + 1.0);
     for (const auto& line : plan.lines) {
@@ -195,7 +210,7 @@ InfillCheck flyInfill(const CoverageRaster& raster, const MultiPolygon& area, co
             painter.add(s);
         }
     }
-    check.after = findGaps(check.raster, area, gap_options);
+    check.after = findGaps(check.raster, area, gap_options, not_run_yet);
     return check;
 }
 

@@ -22,7 +22,9 @@ struct InfillOptions {
     double run_in_m = 50.0;        // straight approach before the first gap cell (m, >= 0)
     double run_out_m = 50.0;       // straight run past the last gap cell (m, >= 0)
     bool include_small_gaps = false;  // also plan for gaps flagged small
-    std::string name_prefix = "INF";
+    // Each line is named after the gap it covers most of: "I7" for gap G7, then "I7b", "I7c" for
+    // further lines whose main gap is G7 (in across-track order); see docs/coverage.md.
+    std::string name_prefix = "I";
     // Refuse to plan over more uncovered cells than this (an unsurveyed block is not a gap: plan
     // lines for it, not infill). 10 million cells = 2.5 km^2 at 0.5 m.
     std::int64_t max_cells = 10'000'000;
@@ -43,6 +45,7 @@ struct InfillLine {
     double area_closed_m2 = 0.0;   // gap area inside this line's swath (m^2)
     double area_per_km = 0.0;      // ranking key: area_closed_m2 / (length_m / 1000)
     int rank = 0;                  // 1 = best
+    int main_gap_id = 0;           // the gap it covers most cells of (ties: the lower number)
 };
 
 struct InfillPlan {
@@ -67,6 +70,6 @@ struct InfillCheck {
 };
 InfillCheck flyInfill(const CoverageRaster& raster, const MultiPolygon& area, const InfillPlan& plan,
                       const GapOptions& gap_options, double centre_margin = 2.0,
-                      double sample_step_m = 1.0);
+                      double sample_step_m = 1.0, const std::vector<GroundQuad>* not_run_yet = nullptr);
 
 }  // namespace sg::coverage

@@ -220,6 +220,87 @@ bool LineTracker::passedBy(int index, Point pos) const {
     return false;
 }
 
+LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_m, const Box& bounds,
+                                                     bool final, const std::vector<Point>* track,
+                                                     double track_step_m) const {
+    PendingGround out;
+    out.lines_total = static_cast<int>(m_lines.size());
+    const double spacing = m_opt.line_spacing_m;
+    const double tol = 0.5 * spacing;
+    // Far enough to reach every corner of the area from any line.
+    const double far = std::hypot(bounds.max_e - bounds.min_e, bounds.max_n - bounds.min_n) +
+                       std::hypot(bounds.max_e - bounds.min_e, bounds.max_n - bounds.min_n) + spacing;
+    const double w = std::max(0.0, planned_half_width_m);
+    for (int li = 0; li < static_cast<int>(m_lines.size()); ++li) {
+        const PlanLine& l = m_lines[static_cast<std::size_t>(li)];
+        const double len = m_length_m[static_cast<std::size_t>(li)];
+        // Passed along-track intervals of every run of this line (the open one included), merged.
+        std::vector<std::pair<double, double>> passed, closed;
+        for (const auto& r : m_runs)
+            if (r.line == li && r.along_max_m > r.along_min_m) {
+                passed.emplace_back(r.along_min_m, r.along_max_m);
+                if (final || r.id != m_open_run) closed.emplace_back(r.along_min_m, r.along_max_m);
+            }
+        // The vessel went by with unusable samples: gone by all the same (no run records it).
+        if (track)
+            for (const auto& p : *track) {
+                const double a = alongTrack(li, p);
+                if (a < -track_step_m || a > len + track_step_m) continue;
+                if (std::abs(crossTrack(li, p, 1.0, 0.0)) > 0.5 * spacing) continue;
+                passed.emplace_back(a - track_step_m, a + track_step_m);
+                closed.emplace_back(a - track_step_m, a + track_step_m);
+            }
+        std::sort(closed.begin(), closed.end());
+        double closed_m = 0.0, reach = 0.0;
+        for (auto [a, b] : closed) {
+            a = std::max({a, reach, 0.0});
+            b = std::min(b, len);
+            if (b > a) closed_m += b - a;
+            reach = std::max(reach, b);
+        }
+        // Run: a pass went along it and left; what it did not cover is missed, not ahead.
+        if (closed_m >= 0.5 * len) continue;
+        std::sort(passed.begin(), passed.end());
+        std::vector<std::pair<double, double>> pieces;  // unpassed stretches of [0, len]
+        double cur = 0.0;
+        for (const auto& [a, b] : passed) {
+            if (a > cur) pieces.emplace_back(cur, std::min(a, len));
+            cur = std::max(cur, b);
+            if (cur >= len) break;
+        }
+        if (cur < len) pieces.emplace_back(cur, len);
+        const double ue = (l.end.e_m - l.start.e_m) / len, un = (l.end.n_m - l.start.n_m) / len;
+        const double se = un, sn = -ue;  // starboard of start -> end
+        bool pending = false;
+        for (auto [a0, a1] : pieces) {
+            if (a1 - a0 < tol) continue;
+            pending = true;
+            const double mid = 0.5 * (a0 + a1);
+            const Point m{l.start.e_m + mid * ue, l.start.n_m + mid * un};
+            double claim[2] = {far, far};  // port, starboard
+            for (int side = 0; side < 2; ++side) {
+                const int nb = neighbourLine(li, m, ue, un, side == 1);
+                if (nb < 0) continue;
+                const PlanLine& o = m_lines[static_cast<std::size_t>(nb)];
+                const double oa = alongTrack(nb, m);
+                const double olen = m_length_m[static_cast<std::size_t>(nb)];
+                const Point q{o.start.e_m + oa * (o.end.e_m - o.start.e_m) / olen,
+                              o.start.n_m + oa * (o.end.n_m - o.start.n_m) / olen};
+                const double d = std::abs(crossTrack(li, q, ue, un));
+                claim[side] = std::min(d, std::max(0.5 * d, w));
+            }
+            const double u0 = a0 <= 0.0 ? -far : a0;
+            const double u1 = a1 >= len ? len + far : a1;
+            auto at = [&](double u, double v) { return Point{l.start.e_m + u * ue + v * se, l.start.n_m + u * un + v * sn}; };
+            // Starboard is to the right of travel: (u, -port) .. (u, +starboard); corners in
+            // counter-clockwise order.
+            out.quads.push_back({at(u0, claim[1]), at(u1, claim[1]), at(u1, -claim[0]), at(u0, -claim[0])});
+        }
+        if (pending) out.lines_pending.push_back(li);
+    }
+    return out;
+}
+
 void LineTracker::choose(int index) {
     if (index < 0 || index >= static_cast<int>(m_lines.size())) return;
     m_forced = index;

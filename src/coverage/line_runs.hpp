@@ -6,6 +6,7 @@
 // continuity that resumes away from the line).
 #pragma once
 
+#include <array>
 #include <cstdint>
 #include <optional>
 #include <vector>
@@ -97,6 +98,7 @@ public:
     int activeRun() const { return m_open_run; }
     const std::vector<LineRun>& runs() const { return m_runs; }
     const std::vector<PlanLine>& lines() const { return m_lines; }
+    const LineTrackerOptions& options() const { return m_opt; }
 
     // Signed cross-track deviation of `pos` from line `index`, starboard positive for a vessel
     // travelling along (dir_e, dir_n) (m).
@@ -118,6 +120,26 @@ public:
     // Whether a run other than the open one, on line `index`, has already passed the along-track
     // position of `pos` (its ground has been gone by, whatever its coverage).
     bool passedBy(int index, Point pos) const;
+
+    // Ground not run yet (docs/coverage.md, "Not run yet and missed"): for every stretch of a
+    // planned line that no run (the open one included) has passed, the ground that line's own pass
+    // is still expected to cover, as convex quadrilaterals in the survey CRS. On each side the
+    // stretch claims min(d, max(d/2, W)) across track, d the offset of the neighbouring line on
+    // that side (neighbourLine) and W `planned_half_width_m` (>= 0); with no neighbour on a side,
+    // everything to `bounds` (the area's box). A stretch touching a line end reaches along track to
+    // `bounds` too. Unpassed stretches shorter than half a spacing are ignored (a run acquired a
+    // few metres into its line has run it). See docs/coverage.md for the whole rule.
+    struct PendingGround {
+        std::vector<std::array<Point, 4>> quads;  // counter-clockwise corners
+        int lines_total = 0;                      // planned lines
+        std::vector<int> lines_pending;           // lines with a stretch not run yet (indices)
+    };
+    // A line is run once its closed runs have passed at least half its length (`final`: the open
+    // run counts as closed, the survey is over); its stretches not passed are then missed ground.
+    // `track`: positions the vessel went by with samples that could not be placed (one every
+    // `track_step_m`); within half a spacing of a line they count as closed passes of it.
+    PendingGround pendingGround(double planned_half_width_m, const Box& bounds, bool final = false,
+                                const std::vector<Point>* track = nullptr, double track_step_m = 5.0) const;
 
 private:
     bool directionMatches(int index, double dir_e, double dir_n, bool& reversed) const;

@@ -92,16 +92,33 @@ void SurveyCoverage::syncSite() {
     }
 }
 
-GapReport SurveyCoverage::gaps() {
+GapReport SurveyCoverage::gaps(bool final) {
     flush();
     m_tracker.refreshCoverage(raster());
-    return findGaps(raster(), m_plan.area, m_gap_options);
+    m_last_final = final;
+    return gapsWith(raster(), m_tracker, final);
+}
+
+GapReport SurveyCoverage::gapsWith(const CoverageRaster& raster, const LineTracker& tracker, bool final) const {
+    if (m_plan.area.empty() || tracker.lines().empty()) return findGaps(raster, m_plan.area, m_gap_options);
+    const auto pending = pendingGround(tracker, final);
+    GapReport rep = findGaps(raster, m_plan.area, m_gap_options, &pending.quads);
+    rep.lines_total = pending.lines_total;
+    for (int li : pending.lines_pending) rep.lines_not_run.push_back(tracker.lines()[static_cast<std::size_t>(li)].name);
+    return rep;
 }
 
 SurveyCoverage::Infill SurveyCoverage::infill(const GapReport& report, const InfillOptions& options) const {
     Infill out;
     out.plan = planInfill(report, options);
-    out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options).after;
+    if (m_plan.area.empty() || m_tracker.lines().empty()) {
+        out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options).after;
+    } else {
+        const auto pending = pendingGround(m_tracker, m_last_final);
+        out.after = flyInfill(raster(), m_plan.area, out.plan, m_gap_options, 2.0, 1.0, &pending.quads).after;
+        out.after.lines_total = report.lines_total;
+        out.after.lines_not_run = report.lines_not_run;
+    }
     return out;
 }
 

@@ -3,6 +3,7 @@
 // line tracker and the gap/infill options. No threads: the caller feeds it in time order.
 #pragma once
 
+#include <algorithm>
 #include <cstdint>
 #include <memory>
 #include <optional>
@@ -70,8 +71,27 @@ public:
     const SwathPainter::Counters& painterCounters() const { return m_painter.counters(); }
     const GapOptions& gapOptions() const { return m_gap_options; }
 
-    // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage.
-    GapReport gaps();
+    // Flushes, then finds the gaps of the area and refreshes every run's corridor coverage. Ground
+    // of planned lines not run yet (LineTracker::pendingGround) is in no gap: only missed ground is.
+    // `final`: the survey is over, the open run counts as ended (LineTracker::pendingGround).
+    GapReport gaps(bool final = false);
+    // The predicted half-width of a planned pass (m, >= 0), for the ground a line not run yet is
+    // expected to cover (default 0: half the spacing to each neighbour).
+    void setPlannedHalfWidth(double half_width_m) { m_planned_half_width_m = std::max(0.0, half_width_m); }
+    double plannedHalfWidth_m() const { return m_planned_half_width_m; }
+    // Where the vessel went with samples that could not be placed (the engine's decimated track,
+    // one point every `step_m`): ground gone by though no run records it. The vector must outlive
+    // this object (nullptr: none).
+    void setVesselTrack(const std::vector<Point>* track, double step_m) {
+        m_track = track;
+        m_track_step_m = step_m;
+    }
+    LineTracker::PendingGround pendingGround(const LineTracker& tracker, bool final) const {
+        return tracker.pendingGround(m_planned_half_width_m, bounds(m_plan.area), final, m_track, m_track_step_m);
+    }
+    // The gaps of `raster` with the ground not run yet of `tracker`'s runs left out (the site's
+    // earlier sessions, replayed one by one for the gap names).
+    GapReport gapsWith(const CoverageRaster& raster, const LineTracker& tracker, bool final = false) const;
     // Plans infill over `report` and proves it by flying it over a copy of the raster.
     struct Infill {
         InfillPlan plan;
@@ -88,6 +108,10 @@ private:
     std::unique_ptr<CoverageRaster> m_site;
     SwathPainter m_painter;
     LineTracker m_tracker;
+    double m_planned_half_width_m = 0.0;
+    bool m_last_final = false;
+    const std::vector<Point>* m_track = nullptr;
+    double m_track_step_m = 5.0;  // of the last gaps(): infill() leaves out the same ground
 };
 
 }  // namespace sg::coverage

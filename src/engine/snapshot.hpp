@@ -122,10 +122,24 @@ struct SensorView {
 };
 
 struct GapView {
-    std::uint64_t id = 0;
+    std::uint64_t id = 0;         // stable number for the life of the site
+    std::string name;             // "G7" (docs/coverage.md, "Gap names")
     std::vector<std::vector<PointEN>> rings;  // outline rings (first = outer), closed implicitly
     double area_m2 = 0.0;
     PointEN centroid;
+};
+
+// A forming gap located (docs/checks.md, forming_gap): drawn as a marker on the plan and named in
+// the banner while its alarm is active.
+struct FormingGapView {
+    bool active = false;          // the forming_gap check is above ok and the gap is located
+    std::string line;             // planned line name, e.g. "L07"
+    bool starboard = false;       // side of the direction of travel
+    double width_m = 0.0;
+    double along_m = 0.0;         // along the line from its start (m)
+    PointEN at;                   // middle of the gap, survey CRS
+    double lon_deg = 0.0, lat_deg = 0.0;
+    std::string text;             // "Forming gap on line L07, starboard, 6.2 m wide, at 840 m along the line"
 };
 
 struct InfillView {
@@ -230,8 +244,12 @@ struct Snapshot {
     std::vector<CoverageTileView> session_tiles;
     int earlier_sessions = 0;  // a site: logs joined before this session (0 = a single log)
     MarginScale margin;
-    std::vector<GapView> gaps;
+    std::vector<GapView> gaps;          // missed ground only
     std::vector<InfillView> infill;
+    // Ground of planned lines not run yet (drawn quietly; not a gap): quadrilaterals, survey CRS.
+    std::vector<std::vector<PointEN>> not_run_yet;
+    std::string not_run_message;        // "3 of 12 planned lines not run yet: ..."; empty when none
+    FormingGapView forming_gap;
 
     // Time plots and profiles.
     std::vector<PlotGroup> plots;

@@ -164,6 +164,7 @@ void SnapshotBuilder::updateGaps(bool force) {
         if (g.small) continue;
         GapView v;
         v.id = static_cast<std::uint64_t>(g.id);
+        v.name = fmt::format("G{}", g.id);
         v.area_m2 = g.area_m2;
         v.centroid = {g.centroid.e_m, g.centroid.n_m};
         for (const auto& poly : outlines[i]) {
@@ -173,6 +174,16 @@ void SnapshotBuilder::updateGaps(bool force) {
         }
         m_gap_views.push_back(std::move(v));
     }
+    m_not_run.clear();
+    if (auto* cov = m_engine.coverage(); cov && !cov->plan().area.empty()) {
+        const auto pending = cov->pendingGround(cov->lines(), false);
+        for (const auto& q : pending.quads) {
+            std::vector<PointEN> ring;
+            for (const auto& p : q) ring.push_back({p.e_m, p.n_m});
+            m_not_run.push_back(std::move(ring));
+        }
+    }
+    m_not_run_message = m_summary->gaps.notRunMessage();
     m_infill_views.clear();
     for (const auto& l : m_summary->infill.plan.lines) {
         InfillView v;
@@ -231,6 +242,21 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     s.margin.unit = "x threshold";
     s.gaps = m_gap_views;
     s.infill = m_infill_views;
+    s.not_run_yet = m_not_run;
+    s.not_run_message = m_not_run_message;
+    const auto& spot = m_engine.formingGapSpot();
+    if (spot && m_engine.checks().check("forming_gap").level() != checks::Level::kOk) {
+        auto& f = s.forming_gap;
+        f.active = true;
+        f.line = spot->line_name;
+        f.starboard = spot->starboard;
+        f.width_m = spot->width_m;
+        f.along_m = spot->along_m;
+        f.at = {spot->at.e_m, spot->at.n_m};
+        f.lon_deg = spot->lon_deg;
+        f.lat_deg = spot->lat_deg;
+        f.text = "Forming gap on " + spot->text();
+    }
 
     // Plots, in the order the screen expects.
     const auto& chk = m_engine.checks();
@@ -322,6 +348,11 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
         a.unit = chk.check(ep.check).unit();
         a.text = fmt::format("{} {} {:.2f} {}", checks::levelName(ep.peak_level), ep.check, ep.peak_value, a.unit);
         if (!ep.detail.empty()) a.text += ": " + ep.detail;
+        if (ep.check == "forming_gap") {
+            // Located: the live place while the episode is open, else where it was raised.
+            if (!ep.end_ns && s.forming_gap.active) a.text = s.forming_gap.text;
+            else if (!ep.detail.empty()) a.text = "Forming gap on " + ep.detail;
+        }
         (ep.end_ns ? past : active).push_back(std::move(a));
     }
     std::reverse(past.begin(), past.end());

@@ -80,6 +80,8 @@ private:
     std::optional<SurveySummary> m_summary;
     std::vector<GapView> m_gap_views;
     std::vector<InfillView> m_infill_views;
+    std::vector<std::vector<PointEN>> m_not_run;
+    std::string m_not_run_message;
 };
 
 }  // namespace sg::engine

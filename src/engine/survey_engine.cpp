@@ -120,6 +120,20 @@ void SurveyEngine::loadPlan() {
     const auto cov = coverage::loadCoverageOptions(sectionOrEmpty(root, "coverage"));
     const auto gaps = coverage::loadGapOptions(sectionOrEmpty(root, "gaps"), plan.surveyHeadingDeg());
     m_cov = std::make_unique<coverage::SurveyCoverage>(std::move(plan), cov, gaps);
+    // The ground a line not run yet is expected to cover (docs/coverage.md, "Not run yet and missed").
+    m_cov->setPlannedHalfWidth(plannedHalfWidth_m());
+    m_cov->setVesselTrack(&m_track, kTrackStep_m);
+}
+
+std::string FormingGapSpot::text() const {
+    return fmt::format("line {}, {}, {:.1f} m wide, at {:.0f} m along the line", line_name,
+                       starboard ? "starboard" : "port", width_m, along_m);
+}
+
+void SurveyEngine::commitGapNames() {
+    if (!m_cov) return;
+    auto rep = m_cov->gaps();
+    m_namer.name(rep, true);
 }
 
 void SurveyEngine::onFix(TimeNs t_ns, double lon_deg, double lat_deg, int quality) {
@@ -298,7 +312,18 @@ void SurveyEngine::seedSite(SiteSeed seed) {
     m_prior_sessions = std::move(seed.sessions);
     if (!m_cov) return;  // no [plan]: no coverage to join
     auto& site = m_cov->beginSite();
-    if (seed.merge_into) seed.merge_into(site, m_prior_sessions);
+    // Gap names: after each earlier session is joined, its gaps (with the ground its and the
+    // earlier sessions' runs had not run yet left out) are committed, in time order.
+    const auto joined = [&](std::size_t k) {
+        std::vector<coverage::LineRun> upto;
+        for (const auto& r : seed.runs)
+            if (r.session <= static_cast<int>(k)) upto.push_back(r);
+        coverage::LineTracker tracker(m_cov->plan().lines, m_cov->lines().options());
+        tracker.adoptEarlierRuns(std::move(upto), static_cast<int>(k) + 1);
+        auto rep = m_cov->gapsWith(site, tracker);
+        m_namer.name(rep, true);
+    };
+    if (seed.merge_into) seed.merge_into(site, m_prior_sessions, joined);
     m_cov->lines().adoptEarlierRuns(std::move(seed.runs), static_cast<int>(m_prior_sessions.size()));
 }
 
@@ -415,7 +440,10 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
             std::optional<double> alt;
             if (s.pose.altitude_source != nav::AltitudeSource::None) alt = s.pose.altitude_m;
             if (m_cov) {
+                const int before = m_cov->lines().activeRun();
                 m_run_of_last_sample = m_cov->updatePosition(t_ns, ref, dir_e, dir_n, alt);
+                // A run ended: its gaps get their names for good.
+                if (before != coverage::kRunNone && m_cov->lines().activeRun() != before) commitGapNames();
                 const auto& lines = m_cov->lines();
                 const int line = lines.activeLine();
                 if (line >= 0) m_deviation = lines.crossTrack(line, ref, dir_e, dir_n);
@@ -455,7 +483,7 @@ coverage::SwathSample SurveyEngine::swathSample(const SensorState& s) const {
     return sw;
 }
 
-std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
+std::optional<FormingGapSpot> SurveyEngine::probeFormingGap(const SensorState& outer, bool starboard) const {
     if (!outer.valid || !m_cov || !m_last_ref_pos) return std::nullopt;
     const auto sw = swathSample(outer);
     const double spacing = m_cov->plan().line_spacing_m;
@@ -467,26 +495,43 @@ std::optional<double> SurveyEngine::probeFormingGap(const SensorState& outer, bo
     // one on that side, that is a run of that line abreast of here: until it is run, the strip
     // between is simply not surveyed yet (no alarm). Once it was, the gap is the distance to its
     // coverage, or the whole search distance when none is near (its swath failed here too).
-    const int neighbour = lines.neighbourLine(line, *m_last_ref_pos, sw.dir_e, sw.dir_n, starboard);
-    if (neighbour >= 0) {
-        if (!lines.passedBy(neighbour, *m_last_ref_pos)) return std::nullopt;
-        const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
-        return probe.found ? probe.gap_m : search_m;
-    }
-    // The outermost line on that side: coverage of another run, else the area edge if it is
-    // within the search distance, is the neighbour.
-    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
-    if (probe.found) return probe.gap_m;
     const double dir_e = sw.dir_e, dir_n = sw.dir_n;
     const double side_e = starboard ? dir_n : -dir_n;
     const double side_n = starboard ? -dir_e : dir_e;
     const double hw = starboard ? sw.right_m : sw.left_m;
+    // The gap lies beyond the swath edge, `width` wide: its middle is where it is reported.
+    const auto spot = [&](double width) {
+        FormingGapSpot f;
+        f.line = line;
+        f.line_name = lines.lines()[static_cast<std::size_t>(line)].name;
+        f.starboard = starboard;
+        f.width_m = width;
+        f.at = {sw.e_m + side_e * (hw + 0.5 * width), sw.n_m + side_n * (hw + 0.5 * width)};
+        f.along_m = lines.alongTrack(line, f.at);
+        if (m_crs) {
+            const auto ll = m_crs->inverse(f.at.e_m, f.at.n_m);
+            f.lon_deg = ll.lon_deg;
+            f.lat_deg = ll.lat_deg;
+        }
+        f.t_ns = outer.t_ns;
+        return f;
+    };
+    const int neighbour = lines.neighbourLine(line, *m_last_ref_pos, sw.dir_e, sw.dir_n, starboard);
+    if (neighbour >= 0) {
+        if (!lines.passedBy(neighbour, *m_last_ref_pos)) return std::nullopt;
+        const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
+        return spot(probe.found ? probe.gap_m : search_m);
+    }
+    // The outermost line on that side: coverage of another run, else the area edge if it is
+    // within the search distance, is the neighbour.
+    const auto probe = coverage::probeEdge(m_cov->raster(), sw, starboard, search_m);
+    if (probe.found) return spot(probe.gap_m);
     const double cell = m_cov->raster().cellSize();
     const int steps = static_cast<int>(search_m / cell) + 1;
     for (int k = 1; k <= steps; ++k) {
         const double d = k * cell;
         const coverage::Point q{sw.e_m + side_e * (hw + d), sw.n_m + side_n * (hw + d)};
-        if (!coverage::contains(m_cov->plan().area, q)) return d - cell;
+        if (!coverage::contains(m_cov->plan().area, q)) return spot(d - cell);
     }
     return std::nullopt;
 }
@@ -521,13 +566,18 @@ void SurveyEngine::updateChecks(TimeNs t_ns) {
                     m_deviation ? std::optional<double>(std::abs(*m_deviation)) : std::nullopt);
     // Forming gap: only while on a planned line; off line it reads 0 so an episode can end.
     double gap = 0.0;
+    std::optional<FormingGapSpot> where;
     if (m_cov && m_cov->lines().activeRun() >= 0 && port_most && stbd_most) {
         const auto p = probeFormingGap(*port_most, false);
         const auto s = probeFormingGap(*stbd_most, true);
-        gap = std::max(p.value_or(0.0), s.value_or(0.0));
+        // The wider side is the one reported (port on a tie).
+        if (p && p->width_m > 0.0) where = p;
+        if (s && s->width_m > 0.0 && (!where || s->width_m > where->width_m)) where = s;
+        if (where) gap = where->width_m;
     }
     m_forming_gap = gap;
-    m_checks.update("forming_gap", t_ns, gap);
+    m_forming_spot = where;
+    m_checks.update("forming_gap", t_ns, gap, where ? where->text() : std::string());
 }
 
 void SurveyEngine::countPoseReasons(std::uint32_t flags) {
@@ -783,9 +833,11 @@ coverage::InfillOptions SurveyEngine::infillOptions() const {
                                        std::max(0.1, plannedHalfWidth_m()));
 }
 
-coverage::GapReport SurveyEngine::gapReport() {
+coverage::GapReport SurveyEngine::gapReport(bool final) {
     if (!m_cov) return {};
-    return m_cov->gaps();
+    auto rep = m_cov->gaps(final);
+    m_namer.name(rep, false);  // names as committed; gaps new since the last run's end preview theirs
+    return rep;
 }
 
 coverage::SurveyCoverage::Infill SurveyEngine::infillPlan(const coverage::GapReport& report) const {

@@ -19,6 +19,7 @@
 #include "checks/check_set.hpp"
 #include "coverage/coverage_config.hpp"
 #include "coverage/coverage_raster.hpp"
+#include "coverage/gap_names.hpp"
 #include "coverage/gaps.hpp"
 #include "coverage/infill.hpp"
 #include "coverage/line_runs.hpp"
@@ -55,12 +56,31 @@ struct SensorState {
 // into the site raster by `merge_into`), their runs (ids 0..n-1), alarms, outages and sessions.
 struct SiteSeed {
     std::optional<int> epsg;  // CRS of the earlier logs (when the config names none)
-    // Joins the earlier coverage into the site raster; may fill in each session's added_m2.
-    std::function<void(coverage::CoverageRaster&, std::vector<SessionInfo>&)> merge_into;
+    // Joins the earlier coverage into the site raster, in session (time) order; may fill in each
+    // session's added_m2. Calls `joined(k)` after session k is joined (the gap names are
+    // committed there, so that a site's names do not depend on which command opened it).
+    std::function<void(coverage::CoverageRaster&, std::vector<SessionInfo>&,
+                       const std::function<void(std::size_t)>& joined)>
+        merge_into;
     std::vector<coverage::LineRun> runs;
     std::vector<AlarmSummary> alarms;
     std::vector<OutageSummary> outages;
     std::vector<SessionInfo> sessions;
+};
+
+// A forming gap, located: on which line and side, how wide, how far along the line, and where.
+struct FormingGapSpot {
+    int line = -1;               // index into the plan's lines
+    std::string line_name;
+    bool starboard = false;      // side of the direction of travel
+    double width_m = 0.0;        // from the outer sensor's swath edge to the neighbouring coverage
+                                 // (or the area edge; the whole search distance when none is near)
+    double along_m = 0.0;        // of the gap's middle, along the line from its start (m)
+    coverage::Point at;          // middle of the gap across track, survey CRS (m)
+    double lon_deg = 0.0, lat_deg = 0.0;  // the same in WGS84
+    TimeNs t_ns = 0;             // sample time it was measured at
+    // "line L07, starboard, 6.2 m wide, at 840 m along the line"
+    std::string text() const;
 };
 
 class SurveyEngine {
@@ -163,6 +183,11 @@ public:
     std::optional<double> speed_mps() const { return m_speed; }
     std::optional<double> deviation_m() const { return m_deviation; }
     std::optional<double> formingGap_m() const { return m_forming_gap; }
+    // Where the widest forming gap is, while the forming-gap check reads above 0 (docs/checks.md).
+    const std::optional<FormingGapSpot>& formingGapSpot() const { return m_forming_spot; }
+    // Stable gap names (docs/coverage.md, "Gap names"): committed at every run's end and after
+    // each earlier session of a site is joined.
+    const coverage::GapNamer& gapNamer() const { return m_namer; }
     // Receive clock (UTC receive time of the latest line or tick): replay pacing and seeking.
     TimeNs clock_ns() const { return m_clock_ns; }
     // Survey clock (instrument time, see advanceTo); 0 before the first aligned line.
@@ -177,7 +202,8 @@ public:
 
     // Gaps in the area now, and the infill lines that close them.
     // (Both need a plan: without one the report is empty.)
-    coverage::GapReport gapReport();
+    // `final`: the survey is over (a finished log): the open run counts as ended.
+    coverage::GapReport gapReport(bool final = false);
     // Plans the infill and proves it by flying it over a copy of the raster.
     coverage::SurveyCoverage::Infill infillPlan(const coverage::GapReport& report) const;
     coverage::InfillOptions infillOptions() const;
@@ -200,7 +226,8 @@ private:
     // now have a fix at or after their time.
     void releasePending(TimeNs up_to_ns, bool by_fix);
     void processSample(SensorState& s, TimeNs t_ns, bool warmed_up);
-    std::optional<double> probeFormingGap(const SensorState& outer, bool starboard) const;
+    std::optional<FormingGapSpot> probeFormingGap(const SensorState& outer, bool starboard) const;
+    void commitGapNames();
     coverage::SwathSample swathSample(const SensorState& s) const;
     std::vector<double> sensorCross() const;
     double planningThreshold_nT() const;
@@ -227,6 +254,8 @@ private:
     std::optional<double> m_speed;
     std::optional<double> m_deviation;
     std::optional<double> m_forming_gap;
+    std::optional<FormingGapSpot> m_forming_spot;
+    coverage::GapNamer m_namer;
     std::optional<double> m_max_overlap_altitude;
     std::optional<coverage::Point> m_last_ref_pos;
     void setSurveyClock(TimeNs s_ns);

@@ -183,7 +183,9 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
     s.raster_hash = engine.raster().contentHash();
     s.raster_covered_cells = engine.raster().coveredCells();
     if (engine.coverage() != nullptr) {
-        s.gaps = engine.gapReport();
+        // A summary of lines processed is that of a finished log (the screen's passes 0).
+        s.gaps = engine.gapReport(lines_processed > 0);
+        s.next_gap_number = engine.gapNamer().nextNumber();
         s.area_m2 = s.gaps.areaM2();
         s.covered_m2 = static_cast<double>(s.gaps.covered_cells) * s.cell_size_m * s.cell_size_m;
         s.coverage_pct = s.gaps.coveragePercent();
@@ -294,6 +296,7 @@ nlohmann::json toJson(const SurveySummary& s) {
             cause = {{"passes", passes}, {"checks", gc.checks}, {"text", gc.text}};
         }
         gaps.push_back({{"id", g.id},
+                        {"name", fmt::format("G{}", g.id)},
                         {"area_m2", g.area_m2},
                         {"centroid_e", g.centroid.e_m},
                         {"centroid_n", g.centroid.n_m},
@@ -305,6 +308,12 @@ nlohmann::json toJson(const SurveySummary& s) {
                         {"cause", cause}});
     }
     j["gaps"] = gaps;
+    // Ground of planned lines not run yet: in no gap, no infill (docs/coverage.md).
+    j["not_run_yet"] = {{"lines_total", s.gaps.lines_total},
+                        {"lines", s.gaps.lines_not_run},
+                        {"area_m2", s.gaps.notRunM2()},
+                        {"message", s.gaps.notRunMessage()}};
+    j["next_gap_number"] = s.next_gap_number;
     json infill = json::array();
     for (const auto& l : s.infill.plan.lines)
         infill.push_back({{"name", l.name},
@@ -313,6 +322,7 @@ nlohmann::json toJson(const SurveySummary& s) {
                           {"end", {l.end.e_m, l.end.n_m}},
                           {"length_m", l.length_m},
                           {"gap_ids", l.gap_ids},
+                          {"main_gap", fmt::format("G{}", l.main_gap_id)},
                           {"area_closed_m2", l.area_closed_m2}});
     j["infill"] = {{"lines", infill},
                    {"total_length_m", s.infill.plan.totalLength_m()},
@@ -444,9 +454,11 @@ std::string toText(const SurveySummary& s) {
     out += fmt::format("gaps: {} (plus {} narrower than {} m)\n", s.significant_gaps, s.small_gaps,
                        s.gaps.min_width_m);
     for (const auto& g : s.gaps.gaps)
-        out += fmt::format("  gap {:3}{} {:9.1f} m2 at E {:.1f} N {:.1f}, {:.1f} m along x {:.1f} m across\n",
+        out += fmt::format("  G{:<4}{} {:9.1f} m2 at E {:.1f} N {:.1f}, {:.1f} m along x {:.1f} m across\n",
                            g.id, g.small ? " (small)" : "", g.area_m2, g.centroid.e_m, g.centroid.n_m,
                            g.along_length_m, g.across_width_m);
+    if (!s.gaps.lines_not_run.empty())
+        out += fmt::format("not run yet: {} ({:.0f} m2 of their ground)\n", s.gaps.notRunMessage(), s.gaps.notRunM2());
     if (!s.infill_error.empty()) out += "infill: not planned: " + s.infill_error + "\n";
     else out += fmt::format("infill: {} line(s), {:.0f} m in all, half-width {:.1f} m; gaps left after flying them: {}\n",
                        s.infill.plan.lines.size(), s.infill.plan.totalLength_m(),

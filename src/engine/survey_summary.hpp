@@ -81,7 +81,8 @@ struct SurveySummary {
     double coverage_pct = 0.0;
     std::size_t significant_gaps = 0;
     std::size_t small_gaps = 0;
-    coverage::GapReport gaps;
+    coverage::GapReport gaps;          // missed ground only; gaps[k].id is the stable number (G<id>)
+    int next_gap_number = 1;           // the number the next new gap takes (committed state)
     coverage::SurveyCoverage::Infill infill;
     std::string infill_error;  // why no infill could be planned (e.g. swath narrower than a cell)
     std::vector<coverage::LineRun> runs;

@@ -274,7 +274,8 @@ engine::SiteSeed siteSeed(const Site& site, std::optional<std::size_t> upto) {
                      [](const auto& a, const auto& b) { return a.start_ns < b.start_ns; });
     std::stable_sort(seed.outages.begin(), seed.outages.end(),
                      [](const auto& a, const auto& b) { return a.start_ns < b.start_ns; });
-    seed.merge_into = [logs, bases](coverage::CoverageRaster& raster, std::vector<engine::SessionInfo>& sessions) {
+    seed.merge_into = [logs, bases](coverage::CoverageRaster& raster, std::vector<engine::SessionInfo>& sessions,
+                                    const std::function<void(std::size_t)>& joined) {
         const double cell_m2 = raster.cellSize() * raster.cellSize();
         std::string buffer;
         for (std::size_t k = 0; k < logs.size(); ++k) {
@@ -289,6 +290,7 @@ engine::SiteSeed siteSeed(const Site& site, std::optional<std::size_t> upto) {
                 throw SiteError(fmt::format("{}: {}", l->summary_path, e.what()));
             }
             if (k < sessions.size()) sessions[k].added_m2 = static_cast<double>(added) * cell_m2;
+            if (joined) joined(k);
         }
     };
     return seed;

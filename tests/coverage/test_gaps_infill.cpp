@@ -115,7 +115,9 @@ TEST(GapsAndInfill, ConstructedSurveyTwoFaultsTwoGapsClosedByInfill) {
     EXPECT_NEAR(second.end.n_m, kOrigin.n_m + 229.75 + 30.0, 1e-9);
     EXPECT_NEAR(second.area_per_km, 1440.0 / 0.1395, 1e-6);
     EXPECT_EQ(first.rank, 1);
-    EXPECT_EQ(first.name, "INF-01");
+    // Named after the gap it closes (docs/coverage.md, "Gap names"): gap 1 -> I1, gap 2 -> I2.
+    EXPECT_EQ(first.name, "I1");
+    EXPECT_EQ(second.name, "I2");
 
     const InfillCheck check = flyInfill(r, area, plan, GapOptions{1.0, 0.0});
     EXPECT_TRUE(check.after.gaps.empty());

@@ -31,6 +31,9 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     std::vector<sg::checks::Episode> live_episodes;
     std::uint64_t live_lines = 0;
     std::map<std::string, sg::engine::SourceCounters> live_counters;
+    std::vector<int> live_gap_ids;  // stable gap numbers (issue #12), in report order
+    std::size_t live_commits = 0;
+    int live_next = 0;
     {
         sg::io::LogWriter writer(log_path, {200, false},
                                  {{"config_text", cfg.text}, {"config_file", dir + "survey.toml"}});
@@ -45,6 +48,9 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         live_episodes = live.engine().checks().episodes();
         live_lines = live.linesFed();
         live_counters = live.decoder().counters();
+        for (const auto& g : live.engine().gapReport().gaps) live_gap_ids.push_back(g.id);
+        live_commits = live.engine().gapNamer().commits();
+        live_next = live.engine().gapNamer().nextNumber();
     }
     ASSERT_GT(live_lines, 30000u);
     ASSERT_FALSE(live_episodes.empty());  // the demo's faults raise alarms in the first 10 min
@@ -63,7 +69,15 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         EXPECT_EQ(eps[i].end_ns, live_episodes[i].end_ns);
         EXPECT_EQ(eps[i].peak_level, live_episodes[i].peak_level);
         EXPECT_DOUBLE_EQ(eps[i].peak_value, live_episodes[i].peak_value);
+        EXPECT_EQ(eps[i].detail, live_episodes[i].detail);  // e.g. where a forming gap was located
     }
+    // The same gap names: committed at the same run ends, matched the same way.
+    ASSERT_GE(live_commits, 1U);  // the first line ends within the first 10 minutes
+    EXPECT_EQ(eng.gapNamer().commits(), live_commits);
+    EXPECT_EQ(eng.gapNamer().nextNumber(), live_next);
+    std::vector<int> ids;
+    for (const auto& g : eng.gapReport().gaps) ids.push_back(g.id);
+    EXPECT_EQ(ids, live_gap_ids);
     // The same decode counters, although the replay gathers no log rows (it writes no log).
     const auto& counters = replay.pipeline().decoder().counters();
     ASSERT_EQ(counters.size(), live_counters.size());

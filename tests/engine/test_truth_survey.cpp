@@ -23,6 +23,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -272,6 +273,7 @@ struct Outcome {
     TimeNs t0_ns = 0;  // UTC of generator time 0
     std::vector<Sample> samples;
     sg::engine::SurveySummary summary;
+    std::vector<sg::checks::Episode> episodes;  // with their detail (where a forming gap is)
     Truth truth;
 };
 
@@ -411,6 +413,7 @@ Outcome run(double excursion_m) {
         if (k % 2000 == 0) (void)pipe.takeBatch();
     }
     o.summary = sg::engine::summarise(pipe.engine(), fed);
+    o.episodes = pipe.engine().checks().episodes();
     o.truth = truthOf(o.samples);
     return o;
 }
@@ -504,6 +507,50 @@ TEST_P(TruthSurvey, FormingGapAlarmsOnlyBesideTheGapsAgainstGroundAlreadyRun) {
     // The excursion and the altitude excursion open gaps against lines already run (1 and 3), and
     // the next lines (3 and 5) run beside them again: at least those four.
     EXPECT_GE(forming, 4);
+}
+
+// Issue #12: a forming gap is located. Each forming-gap episode's detail names the line of the run
+// (L1..L8, as planned), the side towards the planted gap, a width up to one spacing, and a distance
+// along the line within 12 m of the fish's northing there (lines run from N 0 northwards) and
+// within 12 m of the planted gap's extent along the line (hold time 2 s at 2 m/s, plus the probe's
+// half-cell steps and the gap's ragged ends: our tolerance, not a published one).
+TEST_P(TruthSurvey, FormingGapIsLocatedOnItsLineSideAndPlace) {
+    const Outcome& o = outcome(GetParam());
+    int located = 0;
+    for (const auto& ep : o.episodes) {
+        if (ep.check != "forming_gap") continue;
+        char line[16] = {}, side[16] = {};
+        double width = 0.0, along = 0.0;
+        ASSERT_EQ(std::sscanf(ep.detail.c_str(), "line %15[^,], %15[^,], %lf m wide, at %lf m along the line", line, side,
+                              &width, &along),
+                  4)
+            << ep.detail;
+        ++located;
+        const auto k = static_cast<std::size_t>(std::llround(sg::toSeconds(ep.start_ns - o.t0_ns) * kRate));
+        ASSERT_LT(k, o.samples.size());
+        const P f = o.samples[k].fish;
+        // The run open at that time is on the named line.
+        std::string run_line;
+        for (const auto& r : o.summary.runs)
+            if (r.start_t_ns <= ep.start_ns && r.end_t_ns >= ep.start_ns) run_line = "L" + std::to_string(r.line + 1);
+        EXPECT_EQ(run_line, line) << ep.detail;
+        const int li = std::atoi(line + 1) - 1;
+        const bool north = li % 2 == 0;
+        EXPECT_GT(width, 0.0);
+        EXPECT_LE(width, kSpacing + 0.5) << ep.detail;
+        EXPECT_NEAR(along, f.n, 12.0) << ep.detail;
+        // Beside a planted gap: the side it lies on (starboard of northbound travel is east).
+        bool matched = false;
+        for (const auto& g : o.truth.gaps) {
+            if (along < g.n0 - 12.0 || along > g.n1 + 12.0) continue;
+            if (f.e < g.e0 - 12.0 || f.e > g.e1 + 12.0) continue;
+            const bool east = 0.5 * (g.e0 + g.e1) > f.e;
+            const std::string expect = east == north ? "starboard" : "port";
+            matched = matched || expect == side;
+        }
+        EXPECT_TRUE(matched) << ep.detail << " fish at " << f.e << ", " << f.n;
+    }
+    EXPECT_GE(located, 4);
 }
 
 // GNSS at 1 Hz, magnetometer at 10 Hz between the fixes: each sample waits for the fix after it and
