@@ -88,6 +88,7 @@ public:
     const Layout& layout() const { return m_layout; }
     const Palette& palette() const { return paletteFor(m_settings.night); }
     bool bannerShown() const { return m_banner_shown; }
+    bool helpShown() const { return m_help; }
 
 private:
     ScreenSettings m_settings;
@@ -103,6 +104,11 @@ private:
     int m_tab_frames = 0;
     int m_last_unacked = 0;
     std::optional<engine::PointEN> m_focus;
+    bool m_help = false;  // the key help overlay is open
+
+    // Keys pressed this frame -> commands, settings and view requests.
+    void handleKeys(const engine::Snapshot* s, FrameContext& ctx);
+    void drawHelp(const Palette& pal, float scale);
 };
 
 }  // namespace sg::ui
