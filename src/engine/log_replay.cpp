@@ -128,8 +128,10 @@ void LogReplay::seekSurvey(TimeNs s_ns) {
 
 std::vector<TimeNs> LogReplay::episodeStarts() {
     std::vector<TimeNs> out;
+    // Episodes that started after the log's last line (the inputs falling silent when acquisition
+    // was stopped) have no data to show: a replay cannot stand there, so they are not visited.
     for (const auto& e : m_reader.events())
-        if (e.kind.rfind("alarm.", 0) == 0) out.push_back(e.start_utc_ns);
+        if (e.kind.rfind("alarm.", 0) == 0 && e.start_utc_ns <= m_survey_last_ns) out.push_back(e.start_utc_ns);
     std::sort(out.begin(), out.end());
     return out;
 }

@@ -66,7 +66,9 @@ public:
     // span when none carries one).
     TimeNs surveyFirst() const { return m_survey_first_ns; }
     TimeNs surveyLast() const { return m_survey_last_ns; }
-    // Start (survey clock) of every episode the log recorded, in order ("next alarm").
+    // Start (survey clock) of every episode the log recorded within its survey span, in order
+    // ("next alarm"; episodes after the last line, e.g. silences when acquisition stopped, have
+    // nothing to show and are left out).
     std::vector<TimeNs> episodeStarts();
     // "Next alarm": goes forward to the next episode of `cursor` (see EpisodeCursor) and returns
     // its index, or nullopt (and stays) after the last.

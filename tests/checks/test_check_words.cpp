@@ -41,7 +41,9 @@ TEST(CheckWords, FixQualityByItsNmea0183Name) {
     for (int q : {0, 1, 2, 4, 5, 6}) {
         const std::string text = checkValueText("fix_quality", fixQualityRank(q));
         EXPECT_EQ(text.find("rank"), std::string::npos) << text;
-        if (q != 2) EXPECT_EQ(text, q == 0 ? std::string("no fix") : std::string(fixQualityName(q))) << q;
+        if (q != 2) {
+            EXPECT_EQ(text, q == 0 ? std::string("no fix") : std::string(fixQualityName(q))) << q;
+        }
     }
 }
 
