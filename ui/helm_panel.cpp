@@ -34,6 +34,29 @@ std::string minutesText(double s) {
     return buf;
 }
 
+template <class Put>
+void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float gap, float sc, Put& put) {
+    if (h.line.empty()) {
+        put(big, pal.text_dim, "No active line", gap);
+        return;
+    }
+    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc);
+    put(big, pal.line_active, h.line, gap);
+    if (h.off_line_m) {
+        const double d = *h.off_line_m;
+        // Starboard of the line positive (LineTracker::crossTrack).
+        const std::string side = std::fabs(d) < 0.05 ? "on line" : (d > 0 ? "STARBOARD of line" : "PORT of line");
+        put(big * 0.55f, pal.text_dim, "OFF", 6 * sc);
+        put(big, pal.text, distanceText(std::fabs(d)) + " " + side, gap);
+    }
+    if (h.to_end_m) {
+        put(big * 0.55f, pal.text_dim, "TO END", 6 * sc);
+        std::string t = distanceText(*h.to_end_m);
+        if (h.to_end_s) t += "  " + minutesText(*h.to_end_s);
+        put(big, pal.text, t, gap);
+    }
+}
+
 class HelmPanel final : public Panel {
 public:
     const char* name() const override { return "Helm"; }
@@ -54,35 +77,33 @@ public:
             return;
         }
         const auto& h = s->helm;
-        // Row 1, large: line, off line with side, to the end.
-        const float big = base * 2.0f;
         float x = amin.x;
+        bool measure = false;  // a dry run measures the large row, so it can be made to fit
+        float row_h = base;
         auto put = [&](float size, ImU32 colour, const std::string& text, float gap_after) {
-            dl->AddText(font, size, {x, y}, colour, text.c_str());
-            x += font->CalcTextSizeA(size, 1e9f, 0.0f, text.c_str()).x + gap_after;
+            const float w = font->CalcTextSizeA(size, 1e9f, 0.0f, text.c_str()).x;
+            // Rows wrap rather than run off the panel (large UI scales, narrow windows).
+            if (!measure && x > amin.x && x + w > amax.x) {
+                x = amin.x;
+                y += row_h + 2 * sc;
+            }
+            if (!measure) dl->AddText(font, size, {x, y}, colour, text.c_str());
+            x += w + gap_after;
         };
         const float gap = 22 * sc;
-        if (h.line.empty()) {
-            put(big, pal.text_dim, "No active line", gap);
-        } else {
-            put(big * 0.55f, pal.text_dim, "LINE", 6 * sc);
-            put(big, pal.line_active, h.line, gap);
-            if (h.off_line_m) {
-                const double d = *h.off_line_m;
-                // Starboard of the line positive (LineTracker::crossTrack).
-                const std::string side = std::fabs(d) < 0.05 ? "on line" : (d > 0 ? "STARBOARD of line" : "PORT of line");
-                put(big * 0.55f, pal.text_dim, "OFF", 6 * sc);
-                put(big, pal.text, distanceText(std::fabs(d)) + " " + side, gap);
-            }
-            if (h.to_end_m) {
-                put(big * 0.55f, pal.text_dim, "TO END", 6 * sc);
-                std::string t = distanceText(*h.to_end_m);
-                if (h.to_end_s) t += "  " + minutesText(*h.to_end_s);
-                put(big, pal.text, t, gap);
-            }
+        // Row 1, large: line, off line with side, to the end; as large as fits (at most 2x).
+        float big = base * 2.0f;
+        for (int pass = 0; pass < 2; ++pass) {
+            measure = pass == 0;
+            x = amin.x;
+            row_h = big;
+            drawLineRow(h, pal, big, gap, sc, put);
+            if (measure && x - gap > amax.x)
+                big = std::max(base * 1.2f, big * (amax.x - amin.x) / (x - gap - amin.x));
         }
         y += big + 4 * sc;
-
+        x = amin.x;
+        row_h = base * 1.15f;
         // Row 2: speed, altitude, layback and cable, GNSS, coverage.
         const float mid = base * 1.15f;
         x = amin.x;
@@ -123,17 +144,16 @@ public:
         // Row 3: input health (receive clock).
         x = amin.x;
         const float small = base;
+        row_h = small;
         for (const auto& in : s->inputs) {
             const bool stale = in.in_outage || in.age_s < 0 || in.age_s > 2.0;
+            char rate[24];
+            if (in.rate_hz >= 0) std::snprintf(rate, sizeof rate, "%.0f Hz", in.rate_hz);
+            else std::snprintf(rate, sizeof rate, "-- Hz");
             if (in.age_s >= 0)
-                std::snprintf(buf, sizeof buf, "%s %.0f Hz, %.1f s ago, %llu errors%s", in.name.c_str(), in.rate_hz,
-                              in.age_s, static_cast<unsigned long long>(in.errors), in.in_outage ? ", LINK DOWN" : "");
+                std::snprintf(buf, sizeof buf, "%s %s, %.1f s ago, %llu errors%s", in.name.c_str(), rate, in.age_s,
+                              static_cast<unsigned long long>(in.errors), in.in_outage ? ", LINK DOWN" : "");
             else std::snprintf(buf, sizeof buf, "%s: nothing received", in.name.c_str());
-            const float w = font->CalcTextSizeA(small, 1e9f, 0.0f, buf).x;
-            if (x > amin.x && x + w > amax.x) {
-                x = amin.x;
-                y += small + 2 * sc;
-            }
             put(small, stale ? pal.warn : (in.errors > 0 ? pal.text : pal.text_dim), buf, 16 * sc);
         }
         dl->PopClipRect();

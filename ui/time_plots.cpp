@@ -94,9 +94,11 @@ public:
         const ImVec2 avail = ImGui::GetContentRegionAvail();
         const float line_h = ImGui::GetTextLineHeight();
         const float axis_h = line_h + 4.0f * sc;  // the one shared time axis, under the last plot
-        const float gap = 4.0f * sc;
+        // Each Dummy below also adds the style's item spacing: count it, or the shared time axis
+        // under the last plot would be scrolled out of view.
+        const float gap = 4.0f * sc + ImGui::GetStyle().ItemSpacing.y;
         const float plot_h = std::max(
-            40.0f * sc, (avail.y - axis_h - gap * static_cast<float>(visible.size())) / static_cast<float>(visible.size()));
+            40.0f * sc, (avail.y - axis_h - 2.0f - gap * static_cast<float>(visible.size())) / static_cast<float>(visible.size()));
         ImGui::BeginChild("plots_scroll", avail, false);
         const double t1 = s->now_s;
         const double t0 = t1 - set.plot_minutes * 60.0;
@@ -108,7 +110,7 @@ public:
             const bool last = k + 1 == visible.size();
             const float h = plot_h + (last ? axis_h : 0.0f);
             drawPlot(ImGui::GetWindowDrawList(), g, {p0, {p0.x + w, p0.y + h}}, t0, t1, pal, sc, last);
-            ImGui::Dummy({w, h + gap});
+            ImGui::Dummy({w, h + 4.0f * sc});
         }
         ImGui::EndChild();
         m_summaries.endFrame();

@@ -227,7 +227,8 @@ struct ReplayView {
 // Health of one input (the receive clock: this is log health, not survey time).
 struct InputHealthView {
     std::string name;             // [[input]] name
-    double rate_hz = 0.0;         // lines per receive second over the last few seconds
+    double rate_hz = -1.0;        // lines per receive second over the last few seconds; < 0 = not
+                                  // measured yet
     double age_s = -1.0;          // receive seconds since its last line; < 0 = none yet
     std::uint64_t lines = 0;
     std::uint64_t errors = 0;     // rejected lines (bad checksum, malformed field, ...)

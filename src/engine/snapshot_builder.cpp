@@ -234,7 +234,7 @@ void SnapshotBuilder::buildInputs(Snapshot& s) {
         // Rate over at least 2 s of the receive clock (the last value is kept in between).
         auto& mark = m_rates[name];
         if (mark.t_ns == 0) {
-            mark = {now, c.lines, 0.0};
+            mark = {now, c.lines, -1.0};
         } else if (now - mark.t_ns >= 2'000'000'000) {
             mark.rate_hz = static_cast<double>(c.lines - mark.lines) / seconds(now - mark.t_ns);
             mark.t_ns = now;

@@ -83,7 +83,7 @@ private:
     struct RateMark {
         TimeNs t_ns = 0;
         std::uint64_t lines = 0;
-        double rate_hz = 0.0;
+        double rate_hz = -1.0;  // not measured yet
     };
     std::map<std::string, RateMark> m_rates;
 
