@@ -110,12 +110,16 @@ public:
             dl->AddTriangleFilled({sp.x + sym * 0.5f, sp.y}, {sp.x + sym, sp.y + sym}, {sp.x, sp.y + sym}, pal.banner_text);
             dl->AddRectFilled({sp.x + sym * 0.46f, sp.y + sym * 0.32f}, {sp.x + sym * 0.54f, sp.y + sym * 0.72f}, pal.banner);
             dl->AddRectFilled({sp.x + sym * 0.46f, sp.y + sym * 0.8f}, {sp.x + sym * 0.54f, sp.y + sym * 0.9f}, pal.banner);
-            // The words, as large as the strip allows; clipped before the buttons.
-            ImGui::SetWindowFontScale(1.8f);
-            const float line_h = ImGui::GetTextLineHeight();
+            // The words, as large as the room before the buttons allows (1.8x down to 1.2x the
+            // font), clipped there only if even that does not fit.
             std::string title = "ALARM  " + newest->words + ": " + newest->value_text;
             if (alarms_unacked > 1) title += "   (+" + std::to_string(alarms_unacked - 1) + " more)";
             const float tx = sp.x + sym + 16 * sc;
+            ImGui::SetWindowFontScale(1.0f);
+            const float w1 = ImGui::CalcTextSize(title.c_str()).x;
+            const float room = words_end - tx;
+            ImGui::SetWindowFontScale(std::clamp(w1 > 0 ? room / w1 : 1.8f, 1.2f, 1.8f));
+            const float line_h = ImGui::GetTextLineHeight();
             dl->PushClipRect({tx, a.y}, {std::max(tx, words_end), b.y}, true);
             dl->AddText(ImGui::GetFont(), ImGui::GetFontSize(), {tx, a.y + (body - line_h) * 0.5f}, fg, title.c_str());
             dl->PopClipRect();
