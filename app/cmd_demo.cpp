@@ -167,6 +167,7 @@ int runDemo(const DemoOptions& opts) {
     }
     return runWithScreen(o.screen, "swathguard demo", [&](ScreenLink& link) {
     engine::SnapshotBuilder builder(pipeline.engine());
+    builder.setInputCounters(&pipeline.decoder());
     auto last_publish = std::chrono::steady_clock::now();
     const TimeNs sim0 = simulator.now_utc_ns();  // a later session is paced from its start
     std::printf("demo: simulating '%s' (seed %llu) into %s\n", o.scenario.c_str(),

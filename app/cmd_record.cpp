@@ -119,6 +119,7 @@ int runRecord(RecordOptions o) {
                     log_path.c_str());
     }
     engine::SnapshotBuilder builder(rec.pipeline()->engine());
+    builder.setInputCounters(&rec.pipeline()->decoder());
     const auto export_dir = (std::filesystem::path(log_path).parent_path() / "exports").string();
     // Every flush (100 ms): the screen's commands, then a fresh snapshot for it.
     rec.onFlush([&] {

@@ -77,46 +77,53 @@ int runReplay(ReplayOptions& o) {
     std::printf("replay: %s, %lld lines, %s .. %s, speed %s\n", o.log.c_str(),
                 static_cast<long long>(replay.totalLines()), utcText(replay.firstTime()).c_str(),
                 utcText(replay.lastTime()).c_str(), o.speed.c_str());
-    // Alarms the operator of the day saw, from the log's events (training view: "next alarm").
-    std::vector<TimeNs> logged_alarms;
-    for (const auto& e : replay.reader().events())
-        if (e.kind.rfind("alarm.", 0) == 0) logged_alarms.push_back(e.start_utc_ns);
-    std::sort(logged_alarms.begin(), logged_alarms.end());
+    // Episodes the operator of the day saw, from the log's events (training view: "next alarm"),
+    // by their survey start times.
+    engine::EpisodeCursor episodes(replay.episodeStarts());
     const auto export_dir = (std::filesystem::path(o.log).parent_path() / "exports").string();
 
     return runWithScreen(o.screen, "swathguard replay", [&](ScreenLink& link) {
         // Only a screen needs the snapshot history (it costs time at full replay speed).
         auto makeBuilder = [&] {
-            return link.hasScreen() ? std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine())
-                                    : nullptr;
+            if (!link.hasScreen()) return std::unique_ptr<engine::SnapshotBuilder>();
+            auto b = std::make_unique<engine::SnapshotBuilder>(replay.pipeline().engine());
+            b->setInputCounters(&replay.pipeline().decoder());
+            return b;
         };
         auto builder = makeBuilder();
         bool paused = false;
         const auto wall0 = std::chrono::steady_clock::now();
+        // Pacing runs on the survey clock: speed 1 replays the survey in its own time, whatever
+        // speed the log was recorded at (a simulation sent at 20x included).
         auto pace_wall = wall0;
-        TimeNs pace_log = replay.firstTime();
+        TimeNs pace_log = replay.surveyFirst();
         auto last_print = wall0;
         auto last_publish = wall0;
         const std::int64_t step = std::max<std::int64_t>(1, replay.totalLines() / 10);
         std::int64_t next_print = step;
-        const auto now_log = [&] { return replay.pipeline().engine().clock_ns(); };
+        const auto now_log = [&] { return replay.surveyNow() != 0 ? replay.surveyNow() : replay.surveyFirst(); };
         const auto seekTo = [&](TimeNs target) {
-            if (target < now_log()) {
+            target = std::clamp(target, replay.surveyFirst(), replay.surveyLast());
+            if (target < replay.surveyNow()) {
                 replay.restart();
                 builder = makeBuilder();
+                episodes = engine::EpisodeCursor(replay.episodeStarts());
             }
-            replay.runUntil(target);
+            replay.runUntilSurvey(target);
             pace_wall = std::chrono::steady_clock::now();
-            pace_log = target;
+            pace_log = now_log();
         };
         const auto publish = [&](bool force_gaps) {
             engine::ReplayView rv;
             rv.is_replay = true;
             rv.t_s = toSeconds(now_log());
-            rv.t_start_s = toSeconds(replay.firstTime());
-            rv.t_end_s = toSeconds(replay.lastTime());
+            rv.t_start_s = toSeconds(replay.surveyFirst());
+            rv.t_end_s = toSeconds(std::max(replay.surveyLast(), now_log()));
             rv.speed = speed;
             rv.paused = paused;
+            for (const TimeNs t : episodes.starts()) rv.episode_starts_s.push_back(toSeconds(t));
+            rv.episode_visited = episodes.lastVisited();
+            rv.receive_t_s = toSeconds(replay.pipeline().engine().clock_ns());
             if (!builder) return;
             builder->setReplay(rv);
             link.publish(builder->build(force_gaps));
@@ -139,9 +146,10 @@ int runReplay(ReplayOptions& o) {
                 }
                 if (c.kind == Kind::kReplaySeek) seekTo(static_cast<TimeNs>(c.value * 1e9));
                 if (c.kind == Kind::kReplayNextAlarm) {
-                    auto it = std::upper_bound(logged_alarms.begin(), logged_alarms.end(), now_log());
-                    if (it != logged_alarms.end()) {
-                        seekTo(*it);
+                    // Every episode of the day in order; after the last one the replay stays.
+                    if (replay.nextEpisode(episodes)) {
+                        pace_wall = std::chrono::steady_clock::now();
+                        pace_log = now_log();
                         paused = true;  // the trainer stops at each alarm of the day
                     }
                 }
@@ -161,7 +169,7 @@ int runReplay(ReplayOptions& o) {
                     }
                 } else {
                     const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - pace_wall).count();
-                    replay.runUntil(pace_log + static_cast<TimeNs>(wall_s * speed * 1e9));
+                    replay.runUntilSurvey(pace_log + static_cast<TimeNs>(wall_s * speed * 1e9));
                     const auto now = std::chrono::steady_clock::now();
                     if (!link.hasScreen() && now - last_print >= std::chrono::seconds(1)) {
                         last_print = now;

@@ -96,10 +96,15 @@ std::vector<engine::UiCommand> applyCommonCommands(std::vector<engine::UiCommand
                                                    const std::string& export_dir) {
     using Kind = engine::UiCommand::Kind;
     std::vector<engine::UiCommand> rest;
+    // Acknowledgements are dated on the survey clock, like the episodes they close (before the
+    // first aligned line there is none: the receive clock stands in).
+    const auto now = [&] { return engine.surveyClock_ns() != 0 ? engine.surveyClock_ns() : engine.clock_ns(); };
     for (auto& c : commands) {
         switch (c.kind) {
-        case Kind::kAcknowledgeAlarm: engine.acknowledge(c.id, engine.clock_ns()); break;
-        case Kind::kAcknowledgeAll: engine.acknowledgeAll(engine.clock_ns()); break;
+        case Kind::kAcknowledgeAlarm: engine.acknowledge(c.id, now()); break;
+        case Kind::kAcknowledgeAll: engine.acknowledgeAll(now()); break;
+        case Kind::kAcknowledgeAlarms: engine.acknowledgeAll(now(), checks::Level::kAlarm); break;
+        case Kind::kAcknowledgeWarnings: engine.acknowledgeAll(now(), checks::Level::kWarn); break;
         case Kind::kSetActiveLine: engine.chooseLine(static_cast<int>(c.id)); break;
         case Kind::kChooseProfileRun: builder.chooseProfileRun(static_cast<int>(c.value)); break;
         case Kind::kExportInfill: {

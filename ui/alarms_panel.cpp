@@ -44,15 +44,22 @@ public:
         const engine::Snapshot* s = ctx.snapshot;
         if (!s) return;
         const Palette& pal = *ctx.palette;
-        int active = 0, unacked = 0;
+        int active = 0, unacked_alarms = 0, unacked_warnings = 0;
         for (const auto& a : s->alarms) {
             active += a.episode.end_ns ? 0 : 1;
-            unacked += a.episode.ack_ns ? 0 : 1;
+            if (!a.episode.ack_ns)
+                (a.episode.peak_level == checks::Level::kAlarm ? unacked_alarms : unacked_warnings) += 1;
         }
-        ImGui::Text("%d active, %d not acknowledged, %zu in total", active, unacked, s->alarms.size());
+        ImGui::Text("%d on now, %d alarms and %d warnings not acknowledged, %zu in total", active, unacked_alarms,
+                    unacked_warnings, s->alarms.size());
+        // Alarms and warnings are acknowledged apart: one click never clears both.
+        ImGui::BeginDisabled(unacked_alarms == 0);
+        if (ImGui::Button("Acknowledge alarms")) ctx.send({engine::UiCommand::Kind::kAcknowledgeAlarms, 0, 0.0, {}});
+        ImGui::EndDisabled();
         ImGui::SameLine();
-        ImGui::BeginDisabled(unacked == 0);
-        if (ImGui::Button("Acknowledge all")) ctx.send({engine::UiCommand::Kind::kAcknowledgeAll, 0, 0.0, {}});
+        ImGui::BeginDisabled(unacked_warnings == 0);
+        if (ImGui::Button("Acknowledge warnings"))
+            ctx.send({engine::UiCommand::Kind::kAcknowledgeWarnings, 0, 0.0, {}});
         ImGui::EndDisabled();
 
         const ImGuiTableFlags flags = ImGuiTableFlags_RowBg | ImGuiTableFlags_BordersInnerV |
@@ -60,9 +67,9 @@ public:
         if (!ImGui::BeginTable("alarms", 7, flags)) return;
         ImGui::TableSetupScrollFreeze(0, 1);
         ImGui::TableSetupColumn("", ImGuiTableColumnFlags_WidthFixed, 18 * ctx.scale);
-        ImGui::TableSetupColumn("check", ImGuiTableColumnFlags_WidthStretch, 3.0f);
+        ImGui::TableSetupColumn("what", ImGuiTableColumnFlags_WidthStretch, 3.0f);
         ImGui::TableSetupColumn("level", ImGuiTableColumnFlags_WidthStretch, 1.0f);
-        ImGui::TableSetupColumn("start UTC", ImGuiTableColumnFlags_WidthStretch, 1.2f);
+        ImGui::TableSetupColumn("start (survey UTC)", ImGuiTableColumnFlags_WidthStretch, 1.2f);
         ImGui::TableSetupColumn("duration", ImGuiTableColumnFlags_WidthStretch, 1.0f);
         ImGui::TableSetupColumn("peak", ImGuiTableColumnFlags_WidthStretch, 1.2f);
         ImGui::TableSetupColumn("ack", ImGuiTableColumnFlags_WidthStretch, 1.2f);
@@ -81,9 +88,11 @@ public:
                 drawLevelSymbol(ImGui::GetWindowDrawList(), ImGui::GetCursorScreenPos(), h, e.peak_level, is_active, pal);
                 ImGui::Dummy({h, h});
                 ImGui::TableNextColumn();
-                ImGui::TextUnformatted(a.text.empty() ? e.check.c_str() : a.text.c_str());
+                if (a.words.empty()) ImGui::TextUnformatted(a.text.empty() ? e.check.c_str() : a.text.c_str());
+                else ImGui::TextUnformatted(a.words.c_str());
+                if (!e.detail.empty() && ImGui::IsItemHovered()) ImGui::SetTooltip("%s", e.detail.c_str());
                 ImGui::TableNextColumn();
-                ImGui::Text("%s%s", checks::levelName(e.peak_level), is_active ? " (on)" : "");
+                ImGui::Text("%s%s", e.peak_level == checks::Level::kAlarm ? "alarm" : "warning", is_active ? " (on)" : "");
                 ImGui::TableNextColumn();
                 const double start_s = toSeconds(e.start_ns);
                 ImGui::TextUnformatted(formatUtcTime(start_s).c_str());
@@ -91,7 +100,8 @@ public:
                 const double end_s = e.end_ns ? toSeconds(*e.end_ns) : s->now_s;
                 ImGui::TextUnformatted(formatDuration(end_s - start_s).c_str());
                 ImGui::TableNextColumn();
-                ImGui::Text("%.3g %s", e.peak_value, a.unit.c_str());
+                if (a.value_text.empty()) ImGui::Text("%.3g %s", e.peak_value, a.unit.c_str());
+                else ImGui::TextUnformatted(a.value_text.c_str());
                 ImGui::TableNextColumn();
                 if (e.ack_ns) {
                     ImGui::TextDisabled("%s", formatUtcTime(toSeconds(*e.ack_ns)).c_str());

@@ -41,6 +41,8 @@ struct FrameContext {
     float scale = 1.0f;   // UI scale
     // A panel may ask the plan view to centre on a point (e.g. "show gap").
     std::optional<engine::PointEN> focus_request;
+    // The keyboard asked the plan view to fit the whole survey (key F).
+    bool fit_request = false;
     bool settings_changed = false;  // a panel changed a setting that should be saved
 
     void send(engine::UiCommand c) const {
@@ -51,6 +53,7 @@ struct FrameContext {
 enum class Slot {
     kToolbar,  // the strip at the top
     kPlan,     // the large left area
+    kHelm,     // the right column, top: the helm's numbers in large print
     kPlots,    // the right column, upper part
     kTab,      // tabs in the right column, lower part
     kReplay,   // strip above the status bar, only while replaying
@@ -85,5 +88,17 @@ std::unique_ptr<Panel> makeProfilesPanel();
 std::unique_ptr<Panel> makeReplayBar();
 std::unique_ptr<Panel> makeStatusBar();
 std::unique_ptr<Panel> makeAlarmBanner();
+std::unique_ptr<Panel> makeHelmPanel();
+// Height (pixels) the helm panel needs at this font size and UI scale.
+float helmPanelHeight(float font_px, float scale);
+
+// The screen's keys (GLFW key codes, which the GLFW backend uses to fill io.KeysDown), in one table
+// for the keyboard handler and the help overlay (screen_ui.cpp).
+struct KeyBinding {
+    int key;
+    const char* key_name;
+    const char* action;
+};
+const std::vector<KeyBinding>& keyBindings();
 
 }  // namespace sg::ui

@@ -8,6 +8,7 @@ std::vector<std::unique_ptr<Panel>> makePanels() {
     std::vector<std::unique_ptr<Panel>> p;
     p.push_back(makeToolbar());
     p.push_back(makePlanView());
+    p.push_back(makeHelmPanel());
     p.push_back(makeTimePlots());
     p.push_back(makeAlarmsPanel());
     p.push_back(makeRunsPanel());

@@ -263,7 +263,7 @@ public:
             m_t.center_e += before.e_m - after.e_m;
             m_t.center_n += before.n_m - after.n_m;
         }
-        if (hovered && ImGui::IsMouseDoubleClicked(ImGuiMouseButton_Left)) {
+        if (ctx.fit_request || (hovered && ImGui::IsMouseDoubleClicked(ImGuiMouseButton_Left))) {
             m_t = fitTransform(surveyBounds(*s), rect);
             if (ctx.settings->follow_vessel) {
                 ctx.settings->follow_vessel = false;

@@ -44,14 +44,22 @@ public:
             ImGui::EndCombo();
         }
         ImGui::SameLine();
-        if (ImGui::Button("Next alarm")) ctx.send({engine::UiCommand::Kind::kReplayNextAlarm, 0, 0.0, {}});
+        const int n = static_cast<int>(r.episode_starts_s.size());
+        const bool at_last = n == 0 || r.episode_visited + 1 >= n;
+        ImGui::BeginDisabled(at_last && r.episode_visited >= 0);
+        if (ImGui::Button("Next alarm (N)")) ctx.send({engine::UiCommand::Kind::kReplayNextAlarm, 0, 0.0, {}});
+        ImGui::EndDisabled();
         ImGui::SameLine();
-        ImGui::Text("%s", formatUtcTime(r.t_s).c_str());
+        if (n == 0) ImGui::TextDisabled("no alarms in this log");
+        else if (r.episode_visited < 0) ImGui::Text("%d in log", n);
+        else ImGui::Text("%d of %d%s", r.episode_visited + 1, n, r.episode_visited + 1 >= n ? " (last)" : "");
+        ImGui::SameLine();
+        ImGui::Text("survey %s", formatUtcTime(r.t_s).c_str());
         ImGui::SameLine();
         // While dragging, the slider shows the operator's value; the seek is sent on release only,
         // so a drag does not flood the replay driver.
         if (!m_dragging) m_seek_t = r.t_s;
-        ImGui::SetNextItemWidth(-90 * sc);
+        ImGui::SetNextItemWidth(-(ImGui::CalcTextSize("00:00:00").x + ImGui::GetStyle().ItemSpacing.x * 2));
         const double lo = r.t_start_s, hi = std::max(r.t_end_s, r.t_start_s + 1.0);
         const std::string label = formatUtcTime(m_seek_t);
         ImGui::SliderScalar("##seek", ImGuiDataType_Double, &m_seek_t, &lo, &hi, label.c_str());

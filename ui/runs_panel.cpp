@@ -55,7 +55,7 @@ private:
         ImGui::TableSetupColumn("worst alt m", ImGuiTableColumnFlags_WidthStretch, 1.0f);
         ImGui::TableSetupColumn("worst dev m", ImGuiTableColumnFlags_WidthStretch, 1.0f);
         ImGui::TableSetupColumn("alarms", ImGuiTableColumnFlags_WidthStretch, 0.8f);
-        ImGui::TableSetupColumn("time", ImGuiTableColumnFlags_WidthStretch, 1.0f);
+        ImGui::TableSetupColumn("start, duration", ImGuiTableColumnFlags_WidthStretch, 1.6f);
         ImGui::TableHeadersRow();
         for (const auto& r : s.runs) {
             if (hide_earlier && r.earlier_session) continue;
@@ -77,8 +77,11 @@ private:
             ImGui::TableNextColumn();
             ImGui::Text("%d", r.alarm_count);
             ImGui::TableNextColumn();
+            // Start and end are on the survey clock, like now_s (issue #12: a duration once read
+            // 4156 h, the survey start subtracted from the receive clock of a replay).
             const double end = r.active ? s.now_s : r.end_s;
-            ImGui::TextUnformatted(formatDuration(end - r.start_s).c_str());
+            ImGui::Text("%s, %s", formatUtcTime(r.start_s).c_str(),
+                        end >= r.start_s ? formatDuration(end - r.start_s).c_str() : "--");
         }
         ImGui::EndTable();
     }

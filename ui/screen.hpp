@@ -90,6 +90,7 @@ public:
     bool bannerShown() const { return m_banner_shown; }
     // Why the configured font could not be used (the built-in font is then in use), else empty.
     const std::string& fontProblem() const { return m_font_problem; }
+    bool helpShown() const { return m_help; }
 
 private:
     ScreenSettings m_settings;
@@ -107,6 +108,11 @@ private:
     int m_tab_frames = 0;
     int m_last_unacked = 0;
     std::optional<engine::PointEN> m_focus;
+    bool m_help = false;  // the key help overlay is open
+
+    // Keys pressed this frame -> commands, settings and view requests.
+    void handleKeys(const engine::Snapshot* s, FrameContext& ctx);
+    void drawHelp(const Palette& pal, float scale);
 };
 
 }  // namespace sg::ui

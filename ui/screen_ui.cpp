@@ -12,6 +12,88 @@
 
 namespace sg::ui {
 
+namespace {
+
+// GLFW key codes (include/GLFW/glfw3.h): printable keys are their upper-case ASCII code.
+constexpr int kKeySpace = 32, kKeySlash = 47, kKeyEscape = 256, kKeyF1 = 290;
+
+}  // namespace
+
+const std::vector<KeyBinding>& keyBindings() {
+    static const std::vector<KeyBinding> keys = {
+        {'A', "A", "Acknowledge every alarm (warnings stay)"},
+        {'W', "W", "Acknowledge every warning"},
+        {'N', "N", "Replay: go to the next alarm of the log (stops at the last)"},
+        {kKeySpace, "Space", "Replay: pause / play"},
+        {'F', "F", "Fit the whole survey in the plan view"},
+        {'V', "V", "Follow the vessel on / off"},
+        {'G', "G", "Jump to the forming gap"},
+        {kKeyF1, "F1 or ?", "This list of keys (Esc closes it)"},
+    };
+    return keys;
+}
+
+void ScreenUi::handleKeys(const engine::Snapshot* s, FrameContext& ctx) {
+    const ImGuiIO& io = ImGui::GetIO();
+    if (io.WantTextInput || io.KeyCtrl || io.KeyAlt || io.KeySuper) return;
+    const auto pressed = [](int key) { return ImGui::IsKeyPressed(key, false); };
+    if (pressed(kKeyF1) || (io.KeyShift && pressed(kKeySlash))) m_help = !m_help;
+    if (m_help && pressed(kKeyEscape)) m_help = false;
+    if (pressed('A')) ctx.send({engine::UiCommand::Kind::kAcknowledgeAlarms, 0, 0.0, {}});
+    if (pressed('W')) ctx.send({engine::UiCommand::Kind::kAcknowledgeWarnings, 0, 0.0, {}});
+    if (pressed('F')) ctx.fit_request = true;
+    if (pressed('V')) {
+        m_settings.follow_vessel = !m_settings.follow_vessel;
+        m_settings_changed = true;
+    }
+    if (s && s->replay.is_replay) {
+        if (pressed('N')) ctx.send({engine::UiCommand::Kind::kReplayNextAlarm, 0, 0.0, {}});
+        if (pressed(kKeySpace))
+            ctx.send({s->replay.paused ? engine::UiCommand::Kind::kReplayPlay : engine::UiCommand::Kind::kReplayPause, 0,
+                      0.0, {}});
+    }
+    if (s && pressed('G') && s->forming_gap.active) {
+        // The forming gap the engine locates now (its marker on the plan).
+        ctx.focus_request = s->forming_gap.at;
+    } else if (s && pressed('G')) {
+        // Otherwise the newest forming-gap episode that has a place.
+        const engine::AlarmView* best = nullptr;
+        for (const auto& a : s->alarms) {
+            if (a.episode.check != "forming_gap" || !a.where) continue;
+            const bool better = !best || (!a.episode.end_ns && best->episode.end_ns) ||
+                                (!a.episode.end_ns == !best->episode.end_ns && a.episode.start_ns > best->episode.start_ns);
+            if (better) best = &a;
+        }
+        if (best) ctx.focus_request = *best->where;
+    }
+}
+
+void ScreenUi::drawHelp(const Palette& pal, float scale) {
+    const ImVec2 display = ImGui::GetIO().DisplaySize;
+    ImGui::SetNextWindowPos({display.x * 0.5f, display.y * 0.5f}, ImGuiCond_Always, {0.5f, 0.5f});
+    ImGui::SetNextWindowBgAlpha(0.96f);
+    ImGui::PushStyleColor(ImGuiCol_Border, ImGui::ColorConvertU32ToFloat4(pal.text));
+    ImGui::Begin("Keys", &m_help,
+                 ImGuiWindowFlags_AlwaysAutoResize | ImGuiWindowFlags_NoCollapse | ImGuiWindowFlags_NoSavedSettings |
+                     ImGuiWindowFlags_NoMove);
+    ImGui::SetWindowFontScale(1.2f);
+    if (ImGui::BeginTable("keys", 2, ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingFixedFit)) {
+        for (const auto& k : keyBindings()) {
+            ImGui::TableNextRow();
+            ImGui::TableNextColumn();
+            ImGui::TextUnformatted(k.key_name);
+            ImGui::TableNextColumn();
+            ImGui::TextUnformatted(k.action);
+        }
+        ImGui::EndTable();
+    }
+    ImGui::Dummy({0, 4 * scale});
+    ImGui::TextDisabled("Keys act when no text field has the keyboard.");
+    ImGui::SetWindowFontScale(1.0f);
+    ImGui::End();
+    ImGui::PopStyleColor();
+}
+
 ScreenUi::ScreenUi(ScreenSettings settings, CommandSink& commands, TileTextureSource& textures)
     : m_settings(std::move(settings)), m_commands(commands), m_textures(textures), m_panels(makePanels()) {}
 
@@ -81,7 +163,13 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
     }
     ImGui::NewFrame();
     const ImVec2 display = ImGui::GetIO().DisplaySize;
-    m_layout = computeLayout(display, scale, s && s->replay.is_replay, s && s->hasUnacknowledgedAlarm());
+    // The alert strip's space is always reserved: an alarm coming or going never moves a panel.
+    m_layout = computeLayout(display, scale, s && s->replay.is_replay, /*banner=*/true);
+    // The helm panel takes the top of the right column.
+    const float helm_h = std::min(std::round(helmPanelHeight(ImGui::GetFontSize(), scale)),
+                                  m_layout.plots.height() * 0.5f);
+    const Rect helm{m_layout.plots.min, {m_layout.plots.max.x, m_layout.plots.min.y + helm_h}};
+    m_layout.plots.min.y += helm_h;
 
     FrameContext ctx;
     ctx.snapshot = s;
@@ -92,6 +180,7 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
     ctx.wall_s = wall_s;
     ctx.scale = scale;
     ctx.focus_request = std::exchange(m_focus, std::nullopt);
+    handleKeys(s, ctx);
 
     const ImGuiWindowFlags fixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove |
                                    ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoBringToFrontOnFocus;
@@ -99,6 +188,7 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
         switch (slot) {
             case Slot::kToolbar: return &m_layout.toolbar;
             case Slot::kPlan: return &m_layout.plan;
+            case Slot::kHelm: return &helm;
             case Slot::kPlots: return &m_layout.plots;
             case Slot::kReplay: return m_layout.replay.height() > 0 ? &m_layout.replay : nullptr;
             case Slot::kStatus: return &m_layout.status;
@@ -158,7 +248,8 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
     m_last_unacked = unacked;
     for (auto& p : m_panels)
         if (p->slot() == Slot::kOverlay) p->draw(ctx, m_layout.banner.min, m_layout.banner.max);
-    m_banner_shown = s && s->hasUnacknowledgedAlarm();
+    m_banner_shown = s && s->hasUnacknowledgedActiveAlarm();
+    if (m_help) drawHelp(*ctx.palette, scale);
 
     if (!m_font_problem.empty()) {
         const std::string msg = "Font: " + m_font_problem + " - built-in font in use";

@@ -1,6 +1,7 @@
 // Toolbar (palette, UI scale) and status bar (safety caution, survey time, CRS, health items,
 // age of the latest state). The caution is always on screen: coverage is a model's estimate.
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 
 #include "ui/panel.hpp"
@@ -43,8 +44,14 @@ public:
         }
         if (const engine::Snapshot* s = ctx.snapshot) {
             ImGui::SameLine();
-            ImGui::Text("  survey time %s UTC   speed %.1f m/s   heading %.0f deg", formatUtcTime(s->now_s).c_str(),
-                        s->speed_mps, s->heading_rad * 180.0 / 3.14159265358979323846);
+            // Survey time: the instruments' clock, the same as the plots, alarms and runs.
+            // 1 kn = 1852 m / 3600 s.
+            double heading_deg = std::fmod(s->heading_rad * 180.0 / 3.14159265358979323846, 360.0);
+            if (heading_deg < 0) heading_deg += 360.0;
+            ImGui::Text("  survey time %s UTC   speed %.1f kn (%.1f m/s)   heading %03.0f deg",
+                        formatUtcTime(s->now_s).c_str(), s->speed_mps * 3600.0 / 1852.0, s->speed_mps, heading_deg);
+            ImGui::SameLine();
+            ImGui::TextDisabled("  F1: keys");
         }
     }
 
@@ -80,6 +87,11 @@ public:
         if (s) {
             ImGui::SameLine();
             ImGui::TextDisabled("| %s |", s->crs_name.empty() ? "CRS ?" : s->crs_name.c_str());
+            // The receive clock, apart: when the latest line reached this computer (log health).
+            if (s->receive_s > 0) {
+                ImGui::SameLine();
+                ImGui::TextDisabled("received %s UTC |", formatUtcTime(s->receive_s).c_str());
+            }
             for (const auto& item : s->status) {
                 ImGui::SameLine();
                 ImGui::TextUnformatted(item.c_str());

@@ -1,6 +1,10 @@
 // Live check catalogue, config parsing and alarm episodes; see check_set.hpp.
 #include "checks/check_set.hpp"
 
+#include <cmath>
+#include <cstdio>
+#include <utility>
+
 #include <algorithm>
 #include <stdexcept>
 
@@ -57,6 +61,78 @@ const std::vector<CheckSpec>& catalogue() {
          above(0.5, 3.0, 0.0, 0.0)},
     };
     return specs;
+}
+
+std::string_view checkWords(std::string_view check) {
+    // Beside the catalogue: a new check needs its words here too (tests/checks test_check_words).
+    static const std::pair<std::string_view, std::string_view> kWords[] = {
+        {"altitude", "Sensor too high above the seabed"},
+        {"deviation", "Off the active line"},
+        {"speed_high", "Speed too high"},
+        {"speed_low", "Speed too low"},
+        {"sample_spacing", "Samples too far apart"},
+        {"mag_silence", "No magnetometer data"},
+        {"gnss_silence", "No position fixes"},
+        {"altitude_lost", "Sensor altitude unknown"},
+        {"fix_quality", "GNSS fix degraded"},
+        {"position_error", "Position error large"},
+        {"noise", "Magnetometer noise high"},
+        {"signal_quality", "Magnetometer signal weak"},
+        {"forming_gap", "Gap forming beside the last line"},
+        {"input_drops", "Input data lost before logging"},
+        {"unknown_sensor", "Sensor missing from the setup"},
+        {"pose_inputs", "Sensor position cannot be computed"},
+        {"crs_area", "Positions outside the survey's map projection"},
+    };
+    for (const auto& [name, words] : kWords)
+        if (name == check) return words;
+    return check;
+}
+
+std::string checkValueText(std::string_view check, double value) {
+    char buf[64];
+    if (check == "fix_quality") return std::string(fixRankName(value));
+    if (check == "speed_high" || check == "speed_low") {
+        // 1 knot = 1852 m / 3600 s (international nautical mile).
+        std::snprintf(buf, sizeof buf, "%.1f m/s (%.1f kn)", value, value * 3600.0 / 1852.0);
+        return buf;
+    }
+    const CheckSpec* spec = nullptr;
+    for (const auto& c : catalogue())
+        if (c.name == check) spec = &c;
+    const std::string unit = spec ? std::string(spec->unit) : std::string();
+    int decimals = 1;  // metres: a tenth is what a fish height or an offset can mean
+    if (unit == "nT") decimals = 2;
+    else if (unit == "s" || unit == "%" || unit == "datagrams" || unit == "sensors") decimals = 0;
+    std::snprintf(buf, sizeof buf, "%.*f%s%s", decimals, value, unit.empty() ? "" : " ", unit.c_str());
+    return buf;
+}
+
+std::string_view fixQualityName(int q) {
+    switch (q) {
+    case 0: return "no fix (invalid)";
+    case 1: return "GPS fix";
+    case 2: return "DGPS fix";
+    case 3: return "PPS fix";
+    case 4: return "RTK fixed";
+    case 5: return "RTK float";
+    case 6: return "estimated (dead reckoning)";
+    case 7: return "manual input";
+    case 8: return "simulator";
+    default: return "unknown";
+    }
+}
+
+std::string_view fixRankName(double rank) {
+    const long r = std::lround(rank);
+    switch (r) {
+    case 0: return "RTK fixed";
+    case 1: return "RTK float";
+    case 2: return "DGPS or PPS fix";
+    case 3: return "GPS fix";
+    case 4: return "estimated (dead reckoning)";
+    default: return "no fix";
+    }
 }
 
 double fixQualityRank(int q) {
@@ -173,10 +249,10 @@ bool CheckSet::acknowledge(std::uint64_t episode_id, TimeNs t_ns) {
     return true;
 }
 
-int CheckSet::acknowledgeAll(TimeNs t_ns) {
+int CheckSet::acknowledgeAll(TimeNs t_ns, std::optional<Level> only) {
     int n = 0;
     for (auto& ep : m_episodes)
-        if (!ep.ack_ns && acknowledge(ep.id, t_ns)) ++n;
+        if (!ep.ack_ns && (!only || ep.peak_level == *only) && acknowledge(ep.id, t_ns)) ++n;
     return n;
 }
 

@@ -24,6 +24,23 @@ struct CheckSpec {
 // Every check swathguard knows, with the defaults used when the config does not set them.
 const std::vector<CheckSpec>& catalogue();
 
+// The words a surveyor reads for a check, e.g. "forming_gap" -> "Gap forming beside the last
+// line". One table for the screen and the report; every catalogue entry has one (tested). An
+// unknown name comes back as it is.
+std::string_view checkWords(std::string_view check);
+
+// A check's value in words, rounded to what it means (e.g. altitude 7.0 m, noise 1.39 nT,
+// silence 25 s, speed 3.1 m/s (6.0 kn), fix_quality "GPS fix").
+std::string checkValueText(std::string_view check, double value);
+
+// The name of a GGA quality indicator (NMEA 0183, GGA field 6, from memory of the standard:
+// 0 invalid, 1 GPS fix, 2 DGPS fix, 3 PPS fix, 4 RTK fixed, 5 RTK float, 6 estimated (dead
+// reckoning), 7 manual input, 8 simulator). Anything else: "unknown".
+std::string_view fixQualityName(int gga_quality);
+// The fix type a fix_quality rank stands for (the inverse of fixQualityRank, e.g. 3 -> "GPS fix";
+// rank 2 reads "DGPS or PPS fix", rank 5 "no fix").
+std::string_view fixRankName(double rank);
+
 // Fix-quality rank used by the fix_quality check: 0 best ... 5 no fix. From the GGA quality
 // indicator (NMEA 0183: 0 invalid, 1 GPS, 2 DGPS, 4 RTK fixed, 5 RTK float, 6 estimated).
 double fixQualityRank(int gga_quality);
@@ -52,7 +69,9 @@ public:
                 std::string_view detail = {});
 
     bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
-    int acknowledgeAll(TimeNs t_ns);
+    // Acknowledges every unacknowledged episode, or only those whose peak level is `only`
+    // (the screen acknowledges alarms and warnings as two separate actions).
+    int acknowledgeAll(TimeNs t_ns, std::optional<Level> only = std::nullopt);
 
     const Check& check(std::string_view name) const;
     const std::vector<Check>& checks() const { return m_checks; }

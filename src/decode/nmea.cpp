@@ -277,7 +277,8 @@ bool decodeGga(Decoder& d, const Fields& f, NmeaData& out) {
     g.lon_deg = d.longitude(3);
     g.quality = d.integer(5, "fix quality", 8).value_or(0);
     if (f[5].empty()) d.fail(5, "fix quality", "empty");
-    // Not used by the core (kept in the log): flagged and null when malformed.
+    // Not used by the core's computations (kept in the log; satellites and HDOP are shown on the
+    // helm panel): flagged and null when malformed, the fix kept.
     d.unused([&] {
         g.satellites = d.integer(6, "satellites", 99);
         g.hdop = d.number(7, "hdop", 0.0, 99.99);

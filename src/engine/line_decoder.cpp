@@ -44,6 +44,7 @@ void LineDecoder::onLine(const ReceivedLine& line) {
     const auto it = m_by_name.find(line.source);
     auto& c = it != m_by_name.end() ? *it->second.counters : m_counters[line.source];
     ++c.lines;
+    c.last_utc_ns = line.utc_ns;
     if (line.flags & kLineContinued) {
         // The tail of a line cut at the framer's limit: no decoder can use half a line.
         raw.status = log::DecodeStatus::NotDecoded;

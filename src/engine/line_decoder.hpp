@@ -30,6 +30,7 @@ struct SourceCounters {
     std::map<std::string, std::uint64_t, std::less<>> by_reason;  // reason name -> count (all statuses)
     bool in_outage = false;
     std::uint64_t outages = 0;
+    TimeNs last_utc_ns = 0;         // receive time of the latest line (0 = none yet)
     std::uint64_t dropped = 0;      // datagrams the kernel dropped before the reader (UDP)
     // Latest values, for the status line.
     std::optional<double> last_lat_deg, last_lon_deg;

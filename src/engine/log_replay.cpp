@@ -41,6 +41,9 @@ void LogReplay::init() {
         if (probe.next(l)) m_first_ns = l.utc_ns;
         m_last_ns = m_first_ns;
         if (auto last = probe.store().lastRawUtc()) m_last_ns = *last;
+        const auto span = probe.store().instrumentTimeSpan();
+        m_survey_first_ns = span ? span->first : m_first_ns;
+        m_survey_last_ns = span ? span->second : m_last_ns;
     }
     restart();
 }
@@ -95,6 +98,72 @@ std::uint64_t LogReplay::runUntil(TimeNs utc_ns) {
     feedDropsUntil(utc_ns);
     m_pipeline->tick(utc_ns);
     return n;
+}
+
+std::uint64_t LogReplay::runUntilSurvey(TimeNs s_ns) {
+    std::uint64_t n = 0;
+    auto& engine = m_pipeline->engine();
+    while (m_has_next && engine.surveyClock_ns() < s_ns) {
+        step();
+        ++n;
+    }
+    const TimeNs s_now = engine.surveyClock_ns();
+    if (s_now != 0 && s_now < s_ns) {
+        // While no line moves it, the survey clock follows the receive clock (SurveyEngine::
+        // advanceTo): tick that on, short of the next line and never past the log's last line.
+        TimeNs recv = engine.clock_ns() + (s_ns - s_now);
+        recv = std::min(recv, m_has_next ? m_next.utc_ns - 1 : m_last_ns);
+        if (recv > engine.clock_ns()) {
+            feedDropsUntil(recv);
+            m_pipeline->tick(recv);
+        }
+    }
+    return n;
+}
+
+void LogReplay::seekSurvey(TimeNs s_ns) {
+    if (s_ns < surveyNow()) restart();
+    runUntilSurvey(s_ns);
+}
+
+std::vector<TimeNs> LogReplay::episodeStarts() {
+    std::vector<TimeNs> out;
+    // Episodes that started after the log's last line (the inputs falling silent when acquisition
+    // was stopped) have no data to show: a replay cannot stand there, so they are not visited.
+    for (const auto& e : m_reader.events())
+        if (e.kind.rfind("alarm.", 0) == 0 && e.start_utc_ns <= m_survey_last_ns) out.push_back(e.start_utc_ns);
+    std::sort(out.begin(), out.end());
+    return out;
+}
+
+std::optional<std::size_t> LogReplay::nextEpisode(EpisodeCursor& cursor) {
+    const auto i = cursor.next(surveyNow());
+    if (!i) return std::nullopt;  // at the last one: stay (never seek past the end of the log)
+    const TimeNs t = cursor.starts()[*i];
+    // Two episodes may start within one line of each other: then the replay already stands there.
+    if (t > surveyNow()) runUntilSurvey(t);
+    cursor.visited(*i, surveyNow());
+    return i;
+}
+
+EpisodeCursor::EpisodeCursor(std::vector<TimeNs> starts_ns) : m_starts(std::move(starts_ns)) {
+    std::sort(m_starts.begin(), m_starts.end());
+}
+
+std::optional<std::size_t> EpisodeCursor::next(TimeNs now_ns) const {
+    std::size_t i = 0;
+    if (m_visited >= 0 && now_ns == m_after_visit_ns) {
+        i = static_cast<std::size_t>(m_visited) + 1;
+    } else {
+        i = static_cast<std::size_t>(std::upper_bound(m_starts.begin(), m_starts.end(), now_ns) - m_starts.begin());
+    }
+    if (i >= m_starts.size()) return std::nullopt;
+    return i;
+}
+
+void EpisodeCursor::visited(std::size_t i, TimeNs now_ns) {
+    m_visited = static_cast<int>(i);
+    m_after_visit_ns = now_ns;
 }
 
 std::uint64_t LogReplay::runToEnd() {

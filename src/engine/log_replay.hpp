@@ -21,6 +21,27 @@ namespace sg::engine {
 // relative plan paths resolve against the folder of the file it was recorded with).
 SurveyConfig configForLog(log::LogReader& reader, const std::optional<std::string>& override_path);
 
+// "Next alarm" of a replay: visits the episodes the log recorded (alarms and warnings), by
+// survey start time, each once and in order, and stops at the last (never past it).
+class EpisodeCursor {
+public:
+    EpisodeCursor() = default;
+    explicit EpisodeCursor(std::vector<TimeNs> starts_ns);  // sorted here
+    // The episode to visit from survey time now_ns: the one after the last visited while the
+    // replay still stands where that visit left it, else the first starting after now_ns;
+    // nullopt after the last.
+    std::optional<std::size_t> next(TimeNs now_ns) const;
+    // Records the visit of episode i; the replay stands at now_ns after seeking to it.
+    void visited(std::size_t i, TimeNs now_ns);
+    const std::vector<TimeNs>& starts() const { return m_starts; }
+    int lastVisited() const { return m_visited; }
+
+private:
+    std::vector<TimeNs> m_starts;
+    int m_visited = -1;
+    TimeNs m_after_visit_ns = 0;
+};
+
 class LogReplay {
 public:
     LogReplay(const std::string& log_path, const std::optional<std::string>& config_override);
@@ -33,6 +54,25 @@ public:
     bool step();
     // Feeds lines until the next one would be later than utc_ns (or the end). Returns lines fed.
     std::uint64_t runUntil(TimeNs utc_ns);
+    // Survey clock: feeds lines until the survey clock reaches s_ns. While the next line is later
+    // (all inputs silent) the receive clock is ticked on, but never to the next line's receive
+    // time nor past the end of the log (no silence the log did not have). Returns lines fed.
+    std::uint64_t runUntilSurvey(TimeNs s_ns);
+    // Survey clock: goes to s_ns (backwards = rebuild from the start, then forwards).
+    void seekSurvey(TimeNs s_ns);
+    // The survey clock now (0 before the first aligned line).
+    TimeNs surveyNow() const { return m_pipeline->engine().surveyClock_ns(); }
+    // The log's survey span: instrument times of its decoded fixes and samples (the receive
+    // span when none carries one).
+    TimeNs surveyFirst() const { return m_survey_first_ns; }
+    TimeNs surveyLast() const { return m_survey_last_ns; }
+    // Start (survey clock) of every episode the log recorded within its survey span, in order
+    // ("next alarm"; episodes after the last line, e.g. silences when acquisition stopped, have
+    // nothing to show and are left out).
+    std::vector<TimeNs> episodeStarts();
+    // "Next alarm": goes forward to the next episode of `cursor` (see EpisodeCursor) and returns
+    // its index, or nullopt (and stays) after the last.
+    std::optional<std::size_t> nextEpisode(EpisodeCursor& cursor);
     // Feeds every remaining line.
     std::uint64_t runToEnd();
     // Starts again from the first line with a fresh Pipeline (seek backwards = rebuild).
@@ -67,6 +107,8 @@ private:
     bool m_has_next = false;
     TimeNs m_first_ns = 0;
     TimeNs m_last_ns = 0;
+    TimeNs m_survey_first_ns = 0;
+    TimeNs m_survey_last_ns = 0;
     std::int64_t m_total = 0;
     std::uint64_t m_fed = 0;
     std::vector<SourceEvent> m_drops;  // input_drops events of the log, by receive time

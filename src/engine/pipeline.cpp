@@ -89,6 +89,7 @@ void Pipeline::onNmea(const config::InputConfig& input, const ReceivedLine& line
     auto& engine = *m_engine;
     if (const auto* g = std::get_if<decode::Gga>(&s.data)) {
         m_has_fix_sentence[input.name] = true;
+        engine.onGnssStatus(t, g->quality, g->satellites, g->hdop);
         if (g->lat_deg && g->lon_deg) engine.onFix(t, *g->lon_deg, *g->lat_deg, g->quality);
         else engine.onFix(t, 0.0, 0.0, 0);
     } else if (const auto* n = std::get_if<decode::Gns>(&s.data)) {

@@ -8,6 +8,11 @@
 // - Times (t_s) are seconds since the Unix epoch, UTC, as a double (sub-microsecond resolution
 //   for the coming centuries); alarm episodes keep their TimeNs fields from checks::Episode, which
 //   count the same epoch in nanoseconds (t_s = toSeconds(t_ns)).
+// - One clock for what the survey did: every time here is on the SURVEY clock (the instruments'
+//   time, SurveyEngine::surveyClock_ns) - plot samples, now_s, alarm start/end/acknowledgement,
+//   runs, the replay position. Only fields named receive_* are on the receive clock (when lines
+//   reached the computer): they answer latency and log-health questions only. A log recorded
+//   at 20x has 20 survey seconds per receive second; the screen never mixes the two.
 // - Angles are radians, clockwise from grid north (the screen converts to degrees at its edge).
 // - Long, growing data (12-hour tracks and time series) is held in immutable shared chunks
 //   (Chunked<T>): a new snapshot reuses every full chunk of the previous one and only copies or
@@ -197,7 +202,12 @@ struct ProfileSet {
 struct AlarmView {
     checks::Episode episode;   // start/end/peak/ack/id as the check set keeps them
     std::string unit;          // of peak_value
-    std::string text;          // one line for the operator, e.g. "mag2 altitude 7.9 m > 6.0 m"
+    std::string words;         // the check in a surveyor's words (checks::checkWords)
+    std::string value_text;    // the peak in words and rounded, e.g. "7.0 m", "GPS fix"
+    std::string text;          // one line for the operator: words, value and detail
+    // Where the vessel's sensors were (their mean position) when the episode started, when known
+    // (the forming-gap key of the screen jumps there).
+    std::optional<PointEN> where;
 };
 
 struct RunView {
@@ -217,14 +227,49 @@ struct RunView {
 
 struct ReplayView {
     bool is_replay = false;
-    double t_s = 0.0, t_start_s = 0.0, t_end_s = 0.0;  // UTC seconds
-    double speed = 1.0;  // 0 = as fast as possible
+    // Survey clock: the replay position and the log's span (seconds since the epoch, UTC).
+    double t_s = 0.0, t_start_s = 0.0, t_end_s = 0.0;
+    double speed = 1.0;  // survey seconds per wall second; 0 = as fast as possible
     bool paused = false;
+    // Episodes the log recorded (alarms and warnings), their survey start times in order, and the
+    // index of the one "next alarm" visited last (-1 = none yet).
+    std::vector<double> episode_starts_s;
+    int episode_visited = -1;
+    // Receive clock of the replayed line (log health only).
+    double receive_t_s = 0.0;
+};
+
+// Health of one input (the receive clock: this is log health, not survey time).
+struct InputHealthView {
+    std::string name;             // [[input]] name
+    double rate_hz = -1.0;        // lines per receive second over the last few seconds; < 0 = not
+                                  // measured yet
+    double age_s = -1.0;          // receive seconds since its last line; < 0 = none yet
+    std::uint64_t lines = 0;
+    std::uint64_t errors = 0;     // rejected lines (bad checksum, malformed field, ...)
+    bool in_outage = false;       // the link is down now
+};
+
+// The numbers the helm and the surveyor watch, large (the helm panel).
+struct HelmView {
+    std::string line;                     // active line name, empty = no active line
+    std::optional<double> off_line_m;     // cross-track distance, starboard of the line positive
+    std::optional<double> to_end_m;       // distance to the end of the line, along it
+    std::optional<double> to_end_s;       // time to the end at the present speed
+    std::optional<double> speed_mps;      // over ground
+    std::optional<double> layback_m;      // tow point -> sensor, along the path (first sensor)
+    std::optional<double> cable_out_m;
+    std::optional<int> fix_quality;       // GGA quality indicator (NMEA 0183)
+    std::string fix_name;                 // its name (checks::fixQualityName)
+    std::optional<int> satellites;
+    std::optional<double> hdop;
+    std::optional<double> coverage_pct;   // of the area of interest, at the last gap update
 };
 
 struct Snapshot {
     std::uint64_t seq = 0;  // increases with every published snapshot
-    double now_s = 0.0;     // survey time (UTC seconds) the state refers to
+    double now_s = 0.0;     // survey clock (UTC seconds) the state refers to
+    double receive_s = 0.0; // receive clock of the latest line (latency / log health only)
 
     // Vessel and tow.
     PointEN vessel;
@@ -268,6 +313,16 @@ struct Snapshot {
 
     std::string cautions;             // safety text shown in the status bar
     std::vector<std::string> status;  // short health items ("gnss ok", "mag 10 Hz")
+    HelmView helm;
+    std::vector<InputHealthView> inputs;
+
+    // True while an alarm-level episode that is still active waits for acknowledgement (the
+    // banner shows only these; ended ones are in the list).
+    bool hasUnacknowledgedActiveAlarm() const {
+        return std::any_of(alarms.begin(), alarms.end(), [](const AlarmView& a) {
+            return !a.episode.ack_ns && !a.episode.end_ns && a.episode.peak_level == checks::Level::kAlarm;
+        });
+    }
 
     // True while an alarm-level episode (active or already ended) waits for acknowledgement.
     bool hasUnacknowledgedAlarm() const {
@@ -291,6 +346,8 @@ struct UiCommand {
         kReplaySeek,         // value = UTC seconds
         kReplayNextAlarm,
         kExportInfill,       // text = "geojson" | "gpx" | "csv"; all current proposals
+        kAcknowledgeAlarms,  // every unacknowledged alarm-level episode (warnings untouched)
+        kAcknowledgeWarnings,  // every unacknowledged warning-level episode
     };
     Kind kind = Kind::kAcknowledgeAll;
     std::uint64_t id = 0;
@@ -310,6 +367,8 @@ inline const char* toString(UiCommand::Kind kind) {
         case UiCommand::Kind::kReplaySeek: return "replay-seek";
         case UiCommand::Kind::kReplayNextAlarm: return "replay-next-alarm";
         case UiCommand::Kind::kExportInfill: return "export-infill";
+        case UiCommand::Kind::kAcknowledgeAlarms: return "acknowledge-alarms";
+        case UiCommand::Kind::kAcknowledgeWarnings: return "acknowledge-warnings";
     }
     return "unknown";
 }

@@ -20,6 +20,10 @@ constexpr int kProfileWindow = 201;        // samples of the running mean remove
 
 double seconds(TimeNs t) { return toSeconds(t); }
 
+// Sensors whose latest sample lies further than this from the epoch being summed are not part
+// of it (their pose is stale, or they have no sample yet).
+constexpr TimeNs kSameEpochNs = 500'000'000;
+
 }  // namespace
 
 SnapshotBuilder::SnapshotBuilder(SurveyEngine& engine, double gap_interval_s)
@@ -74,10 +78,13 @@ void SnapshotBuilder::onSample(const SensorState& s) {
     // Per epoch (sensor slot 0): array reference track, deviation, speed, gradients.
     const auto& sensors = m_engine.sensors();
     if (sensors.empty() || s.index != sensors.front().index) return;
+    // Only sensors placed at this epoch: a sensor with no sample yet holds a default pose at
+    // E 0, N 0 (that point once drew a straight line from the start of the track far off the
+    // survey, issue #12).
     double e = 0, n = 0;
     int k = 0;
     for (const auto& o : sensors)
-        if (o.pose.ok()) {
+        if (o.samples > 0 && o.pose.ok() && std::llabs(o.t_ns - s.t_ns) <= kSameEpochNs) {
             e += o.pose.easting_m;
             n += o.pose.northing_m;
             ++k;
@@ -152,7 +159,7 @@ void SnapshotBuilder::convertTiles(const coverage::CoverageRaster& raster, int l
 }
 
 void SnapshotBuilder::updateGaps(bool force) {
-    const double now = seconds(m_engine.clock_ns());
+    const double now = seconds(m_engine.surveyClock_ns());
     if (!force && now - m_last_gap_s < m_gap_interval_s) return;
     if (m_engine.coverage() == nullptr) return;
     m_last_gap_s = now;
@@ -196,6 +203,67 @@ void SnapshotBuilder::updateGaps(bool force) {
     }
 }
 
+void SnapshotBuilder::buildHelm(Snapshot& s) const {
+    HelmView& h = s.helm;
+    const auto* lines = m_engine.lines();
+    const auto* plan = m_engine.plan();
+    const int li = lines ? lines->activeLine() : -1;
+    if (plan && li >= 0 && static_cast<std::size_t>(li) < plan->lines.size()) {
+        const auto& pl = plan->lines[static_cast<std::size_t>(li)];
+        h.line = pl.name;
+        h.off_line_m = m_engine.deviation_m();
+        // Along the line from the position of the array (else the vessel) to the end the vessel
+        // is heading for: the line is run either way, so the end is the one ahead.
+        const auto pos = m_ref_last ? std::optional<PointEN>(m_ref_last)
+                                    : (m_engine.vesselPosition() ? std::optional<PointEN>(s.vessel) : std::nullopt);
+        const double le = pl.end.e_m - pl.start.e_m, ln = pl.end.n_m - pl.start.n_m;
+        const double len = std::hypot(le, ln);
+        if (pos && len > 0) {
+            const double along = ((pos->e_m - pl.start.e_m) * le + (pos->n_m - pl.start.n_m) * ln) / len;
+            const double de = std::sin(s.heading_rad), dn = std::cos(s.heading_rad);
+            const bool forward = de * le + dn * ln >= 0;
+            h.to_end_m = std::max(0.0, forward ? len - along : along);
+            if (auto v = m_engine.speed_mps(); v && *v > 0.1) h.to_end_s = *h.to_end_m / *v;
+        }
+    }
+    h.speed_mps = m_engine.speed_mps();
+    const auto& sensors = m_engine.sensors();
+    if (!sensors.empty() && sensors.front().samples > 0 && sensors.front().pose.positionOk())
+        h.layback_m = sensors.front().pose.layback_m;
+    h.cable_out_m = m_engine.cableOut_m();
+    if (const auto& g = m_engine.gnssStatus()) {
+        h.fix_quality = g->quality;
+        h.fix_name = std::string(checks::fixQualityName(g->quality));
+        h.satellites = g->satellites;
+        h.hdop = g->hdop;
+    }
+    if (m_summary) h.coverage_pct = m_summary->coverage_pct;
+}
+
+void SnapshotBuilder::buildInputs(Snapshot& s) {
+    if (!m_decoder) return;
+    const TimeNs now = m_engine.clock_ns();
+    for (const auto& [name, c] : m_decoder->counters()) {
+        InputHealthView v;
+        v.name = name;
+        v.lines = c.lines;
+        v.errors = c.rejected;
+        v.in_outage = c.in_outage;
+        if (c.last_utc_ns != 0 && now >= c.last_utc_ns) v.age_s = seconds(now - c.last_utc_ns);
+        // Rate over at least 2 s of the receive clock (the last value is kept in between).
+        auto& mark = m_rates[name];
+        if (mark.t_ns == 0) {
+            mark = {now, c.lines, -1.0};
+        } else if (now - mark.t_ns >= 2'000'000'000) {
+            mark.rate_hz = static_cast<double>(c.lines - mark.lines) / seconds(now - mark.t_ns);
+            mark.t_ns = now;
+            mark.lines = c.lines;
+        }
+        v.rate_hz = mark.rate_hz;
+        s.inputs.push_back(std::move(v));
+    }
+}
+
 std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     m_engine.flushCoverage();
     updateTiles();
@@ -203,7 +271,9 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     auto snap = std::make_shared<Snapshot>();
     Snapshot& s = *snap;
     s.seq = ++m_seq;
-    s.now_s = seconds(m_engine.clock_ns());
+    // The survey clock (instrument time) for everything the survey did; the receive clock apart.
+    s.now_s = seconds(m_engine.surveyClock_ns() != 0 ? m_engine.surveyClock_ns() : m_engine.clock_ns());
+    s.receive_s = seconds(m_engine.clock_ns());
     const auto& sensors = m_engine.sensors();
     if (auto v = m_engine.vesselPosition()) s.vessel = {v->e_m, v->n_m};
     if (!sensors.empty()) s.heading_rad = sensors.front().pose.heading_grid_rad;
@@ -211,6 +281,8 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     s.tow_point = m_ref_last.value_or(s.vessel);
     s.tow_track = m_ref_track;
     for (const auto& st : sensors) {
+        // A sensor never placed yet has no position to draw (its pose is a default at E 0, N 0).
+        if (st.samples == 0 || !st.pose.positionOk()) continue;
         SensorView v;
         v.name = fmt::format("mag{}", st.index);
         v.position = {st.pose.easting_m, st.pose.northing_m};
@@ -342,17 +414,23 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
     }
     // Alarms: active first, then past ones newest first.
     std::vector<AlarmView> active, past;
+    const std::optional<PointEN> here =
+        m_ref_last ? m_ref_last : (m_engine.vesselPosition() ? std::optional<PointEN>(s.vessel) : std::nullopt);
     for (const auto& ep : chk.episodes()) {
         AlarmView a;
         a.episode = ep;
         a.unit = chk.check(ep.check).unit();
-        a.text = fmt::format("{} {} {:.2f} {}", checks::levelName(ep.peak_level), ep.check, ep.peak_value, a.unit);
-        if (!ep.detail.empty()) a.text += ": " + ep.detail;
+        a.words = std::string(checks::checkWords(ep.check));
+        a.value_text = checks::checkValueText(ep.check, ep.peak_value);
+        a.text = a.words + ": " + a.value_text;
+        if (!ep.detail.empty()) a.text += " - " + ep.detail;
         if (ep.check == "forming_gap") {
             // Located: the live place while the episode is open, else where it was raised.
             if (!ep.end_ns && s.forming_gap.active) a.text = s.forming_gap.text;
             else if (!ep.detail.empty()) a.text = "Forming gap on " + ep.detail;
         }
+        if (auto it = m_episode_where.find(ep.id); it != m_episode_where.end()) a.where = it->second;
+        else if (here && !ep.end_ns) a.where = m_episode_where[ep.id] = *here;
         (ep.end_ns ? past : active).push_back(std::move(a));
     }
     std::reverse(past.begin(), past.end());
@@ -368,6 +446,8 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
             return std::make_pair(ll.lon_deg, ll.lat_deg);
         };
     }
+    buildHelm(s);
+    buildInputs(s);
     s.cautions = "Coverage is a model's estimate. UXO clearance follows the project's risk "
                  "assessment, local regulations and licensed specialists. The master decides on "
                  "navigation.";

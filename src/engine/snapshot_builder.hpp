@@ -12,6 +12,7 @@
 #include <string>
 #include <vector>
 
+#include "engine/line_decoder.hpp"
 #include "engine/snapshot.hpp"
 #include "engine/survey_engine.hpp"
 #include "engine/survey_summary.hpp"
@@ -28,6 +29,9 @@ public:
 
     // A new immutable snapshot of the state now. `force_gaps` recomputes gaps and infill.
     std::shared_ptr<const Snapshot> build(bool force_gaps = false);
+    // Per-input health (rate, age, errors) from this decoder's counters; optional, must outlive
+    // the builder.
+    void setInputCounters(const LineDecoder* decoder) { m_decoder = decoder; }
     // Replay state shown by the replay strip.
     void setReplay(const ReplayView& replay) { m_replay = replay; }
     // Profiles of this run index (into runs), -1 = the current run.
@@ -42,6 +46,8 @@ private:
     static void convertTiles(const coverage::CoverageRaster& raster, int layer, std::uint64_t& gen,
                              std::map<std::uint64_t, CoverageTileView>& views);
     void updateGaps(bool force);
+    void buildHelm(Snapshot& s) const;
+    void buildInputs(Snapshot& s);
     std::shared_ptr<const Series> series(const std::string& key) const;
 
     SurveyEngine& m_engine;
@@ -74,6 +80,17 @@ private:
     std::uint64_t m_tiles_gen = 0;
     std::map<std::uint64_t, CoverageTileView> m_session_tiles;  // a site: this session's own
     std::uint64_t m_session_tiles_gen = 0;
+
+    // Mean position of the sensors (or the vessel) when each episode was first seen (by id).
+    std::map<std::uint64_t, PointEN> m_episode_where;
+    // Input health: the decoder's counters, and each input's line count some seconds ago.
+    const LineDecoder* m_decoder = nullptr;
+    struct RateMark {
+        TimeNs t_ns = 0;
+        std::uint64_t lines = 0;
+        double rate_hz = -1.0;  // not measured yet
+    };
+    std::map<std::string, RateMark> m_rates;
 
     // Gaps.
     double m_last_gap_s = -1e18;

@@ -205,6 +205,7 @@ void SurveyEngine::onPositionError(TimeNs t_ns, double horizontal_error_m) {
 void SurveyEngine::onCableOut(TimeNs t_ns, double cable_out_m, std::string_view input) {
     m_seen_cable = true;
     m_last_cable = {t_ns, std::string(input)};
+    m_cable_out = cable_out_m;
     if (m_positioner) m_positioner->addCableOut(t_ns, cable_out_m);
 }
 
@@ -734,8 +735,8 @@ bool SurveyEngine::acknowledge(std::uint64_t episode_id, TimeNs t_ns) {
     return ok;
 }
 
-int SurveyEngine::acknowledgeAll(TimeNs t_ns) {
-    const int n = m_checks.acknowledgeAll(t_ns);
+int SurveyEngine::acknowledgeAll(TimeNs t_ns, std::optional<checks::Level> only) {
+    const int n = m_checks.acknowledgeAll(t_ns, only);
     drainEpisodes();
     return n;
 }

@@ -144,7 +144,7 @@ public:
 
     // Operator actions (logged as events).
     bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
-    int acknowledgeAll(TimeNs t_ns);
+    int acknowledgeAll(TimeNs t_ns, std::optional<checks::Level> only = std::nullopt);
     void chooseLine(int index);  // -1: automatic
 
     // Rows for the log produced since the last call (alarm events, ends, acknowledgements).
@@ -188,6 +188,20 @@ public:
     // Stable gap names (docs/coverage.md, "Gap names"): committed at every run's end and after
     // each earlier session of a site is joined.
     const coverage::GapNamer& gapNamer() const { return m_namer; }
+    // The latest GGA's quality indicator, satellites used and HDOP (for the helm panel; the
+    // checks use the quality through fix_quality). Empty before the first GGA.
+    struct GnssStatus {
+        int quality = 0;
+        std::optional<int> satellites;
+        std::optional<double> hdop;
+        TimeNs t_ns = 0;
+    };
+    void onGnssStatus(TimeNs t_ns, int quality, std::optional<int> satellites, std::optional<double> hdop) {
+        m_gnss = GnssStatus{quality, satellites, hdop, t_ns};
+    }
+    const std::optional<GnssStatus>& gnssStatus() const { return m_gnss; }
+    // The latest cable out received (m), for the helm panel.
+    std::optional<double> cableOut_m() const { return m_cable_out; }
     // Receive clock (UTC receive time of the latest line or tick): replay pacing and seeking.
     TimeNs clock_ns() const { return m_clock_ns; }
     // Survey clock (instrument time, see advanceTo); 0 before the first aligned line.
@@ -256,6 +270,8 @@ private:
     std::optional<double> m_forming_gap;
     std::optional<FormingGapSpot> m_forming_spot;
     coverage::GapNamer m_namer;
+    std::optional<GnssStatus> m_gnss;
+    std::optional<double> m_cable_out;
     std::optional<double> m_max_overlap_altitude;
     std::optional<coverage::Point> m_last_ref_pos;
     void setSurveyClock(TimeNs s_ns);

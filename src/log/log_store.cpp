@@ -612,6 +612,15 @@ std::optional<TimeNs> LogStore::lastRawUtc() {
     return s.columnInt(0);
 }
 
+std::optional<std::pair<TimeNs, TimeNs>> LogStore::instrumentTimeSpan() {
+    Statement s(m_db,
+                "SELECT coalesce(min(t), 0), coalesce(max(t), 0), count(t) FROM (SELECT time_utc_ns AS t "
+                "FROM mag_samples UNION ALL SELECT time_utc_ns FROM fixes) WHERE t IS NOT NULL",
+                m_path);
+    if (!s.step() || s.columnInt(2) == 0) return std::nullopt;
+    return std::make_pair(static_cast<TimeNs>(s.columnInt(0)), static_cast<TimeNs>(s.columnInt(1)));
+}
+
 std::int64_t LogStore::forEachRaw(const std::function<bool(std::int64_t, const RawRow&)>& f,
                                   std::int64_t after_id) {
     Statement s(m_db,

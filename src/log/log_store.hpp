@@ -127,6 +127,9 @@ public:
     std::int64_t rawCount();
     // UTC receive time of the last raw line (nullopt for an empty log).
     std::optional<TimeNs> lastRawUtc();
+    // Earliest and latest instrument (survey) time of the decoded fixes and magnetometer samples,
+    // or nullopt when none carries one.
+    std::optional<std::pair<TimeNs, TimeNs>> instrumentTimeSpan();
     // Calls `f` for every raw line with id > after_id in id order, until f returns false.
     // Returns the last id delivered. The id of each line is passed alongside.
     std::int64_t forEachRaw(const std::function<bool(std::int64_t id, const RawRow&)>& f,

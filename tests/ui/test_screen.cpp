@@ -275,7 +275,7 @@ TEST_F(ScreenTest, SavedTabIsShownAndReplayStripRenders) {
     sg::testdata::SyntheticOptions o;
     o.acknowledge_alarm = true;
     o.replay = true;
-    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, /*replay=*/true, /*banner=*/false);
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, /*replay=*/true, /*banner=*/true);
     int counts[2] = {0, 0};
     int i = 0;
     for (const char* tab : {"Profiles", "Runs & infill"}) {

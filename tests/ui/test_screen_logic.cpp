@@ -311,21 +311,73 @@ protected:
     std::unique_ptr<sg::ui::ScreenUi> m_ui;
 };
 
-TEST_F(HeadlessScreen, ClickOnBannerAcknowledgesAll) {
+TEST_F(HeadlessScreen, ClickOnBannerAcknowledgesAlarmsButNotWarnings) {
     const auto snap = sg::testdata::makeSyntheticSnapshot({});
     frame(snap.get(), {-100, -100}, false);
     ASSERT_TRUE(m_ui->bannerShown());
-    // "Acknowledge all" sits at the right end of the banner, centred in its body (above the
-    // 12 px stripe band) whose height at phase 0 is 85 % of the full banner.
+    // The synthetic survey's only unacknowledged episode is an alarm: its button, "Acknowledge
+    // alarms", is the rightmost, centred in the banner's body (above the 12 px stripe band).
     const auto& l = m_ui->layout();
-    const float body = (l.banner.height() * 0.85f - 12.0f);
-    const ImVec2 at{l.banner.max.x - 30.0f, l.banner.min.y + body * 0.5f};
+    const ImVec2 at{l.banner.max.x - 30.0f, l.banner.min.y + (l.banner.height() - 12.0f) * 0.5f};
     frame(snap.get(), at, false);
     frame(snap.get(), at, true);
     frame(snap.get(), at, false);
     const auto cmds = m_commands.drain();
     ASSERT_EQ(cmds.size(), 1u);
-    EXPECT_EQ(cmds[0].kind, UiCommand::Kind::kAcknowledgeAll);
+    EXPECT_EQ(cmds[0].kind, UiCommand::Kind::kAcknowledgeAlarms);
+}
+
+// Issue #12: the banner's coming and going moved every panel ~70 px, so a click could land on
+// the wrong control. Its strip is now always reserved.
+TEST_F(HeadlessScreen, AlarmBannerNeverMovesThePanels) {
+    sg::testdata::SyntheticOptions acked;
+    acked.acknowledge_alarm = true;
+    const auto with = sg::testdata::makeSyntheticSnapshot({});
+    const auto without = sg::testdata::makeSyntheticSnapshot(acked);
+    frame(with.get(), {-100, -100}, false);
+    ASSERT_TRUE(m_ui->bannerShown());
+    const sg::ui::Layout a = m_ui->layout();
+    frame(without.get(), {-100, -100}, false);
+    ASSERT_FALSE(m_ui->bannerShown());
+    const sg::ui::Layout b = m_ui->layout();
+    for (const auto& [ra, rb] : {std::pair{a.plan, b.plan}, {a.plots, b.plots}, {a.tabs, b.tabs}, {a.status, b.status}}) {
+        EXPECT_EQ(ra.min.x, rb.min.x);
+        EXPECT_EQ(ra.min.y, rb.min.y);
+        EXPECT_EQ(ra.max.x, rb.max.x);
+        EXPECT_EQ(ra.max.y, rb.max.y);
+    }
+}
+
+TEST_F(HeadlessScreen, KeysAcknowledgeApartStepAlarmsAndOpenTheHelp) {
+    sg::testdata::SyntheticOptions o;
+    o.replay = true;
+    const auto snap = sg::testdata::makeSyntheticSnapshot(o);
+    frame(snap.get(), {-100, -100}, false);
+    auto press = [&](int key) {
+        ImGuiIO& io = ImGui::GetIO();
+        io.KeysDown[key] = true;
+        frame(snap.get(), {-100, -100}, false);
+        io.KeysDown[key] = false;
+        frame(snap.get(), {-100, -100}, false);
+    };
+    press('A');
+    press('W');
+    press('N');
+    const auto cmds = m_commands.drain();
+    ASSERT_EQ(cmds.size(), 3u);
+    EXPECT_EQ(cmds[0].kind, UiCommand::Kind::kAcknowledgeAlarms);
+    EXPECT_EQ(cmds[1].kind, UiCommand::Kind::kAcknowledgeWarnings);
+    EXPECT_EQ(cmds[2].kind, UiCommand::Kind::kReplayNextAlarm);
+    EXPECT_FALSE(m_ui->helpShown());
+    press(290);  // GLFW_KEY_F1
+    EXPECT_TRUE(m_ui->helpShown());
+    press(256);  // GLFW_KEY_ESCAPE
+    EXPECT_FALSE(m_ui->helpShown());
+    const bool follow = m_ui->settings().follow_vessel;
+    press('V');
+    EXPECT_NE(m_ui->settings().follow_vessel, follow);
+    // Every binding is listed in the help (one table drives both).
+    EXPECT_GE(sg::ui::keyBindings().size(), 8u);
 }
 
 TEST_F(HeadlessScreen, DraggingThePlanStopsFollowingTheVessel) {
