@@ -2,6 +2,9 @@
 #include "engine/helm_steering.hpp"
 
 #include <cmath>
+#include <set>
+
+#include <fmt/format.h>
 
 #include <GeographicLib/Geodesic.hpp>
 
@@ -67,6 +70,13 @@ std::vector<helm::Waypoint> routeWaypoints(const std::vector<RouteLine>& lines, 
             out.push_back({helm::lineEndId(l.name, at_end), {ll.lat_deg, ll.lon_deg}});
         }
     }
+    // Identifiers must name one waypoint each: on any repeat, number them all ("W01A", ...).
+    std::set<std::string> seen;
+    bool repeated = false;
+    for (const auto& w : out) repeated = repeated || !seen.insert(w.id).second;
+    if (repeated)
+        for (std::size_t k = 0; k < out.size(); ++k)
+            out[k].id = fmt::format("W{:02d}{}", k / 2 + 1, k % 2 ? 'B' : 'A');
     return out;
 }
 

@@ -29,7 +29,7 @@ helm::SteeringFix steeringFixFor(const LegGeometry& leg, const nav::SurveyCrs& c
 helm::SteeringFix steeringFix(const SurveyEngine& engine, const helm::OutputConfig& output);
 
 // Waypoints of a list of lines flown start -> end, each line's start then its end, identifiers
-// from helm::lineEndId.
+// from helm::lineEndId (numbered W01A, W01B, ... when two lines would share one).
 struct RouteLine {
     std::string name;
     coverage::Point start, end;

@@ -72,9 +72,14 @@ std::string waypointId(std::string_view name) {
 }
 
 std::string lineEndId(std::string_view line_name, bool at_end) {
-    std::string id = waypointId(line_name.substr(0, std::min<std::size_t>(line_name.size(), kMaxWaypointIdChars - 1)));
-    id += at_end ? 'B' : 'A';
-    return id;
+    // Letters and digits only; a name longer than 5 keeps its first 2 and last 3 characters, so
+    // numbered names stay apart ("INF-01" -> "INF01", "LINE0123" -> "LI123").
+    std::string base;
+    for (const char c : line_name)
+        if ((c >= 'A' && c <= 'Z') || (c >= 'a' && c <= 'z') || (c >= '0' && c <= '9')) base += c;
+    const std::size_t keep = kMaxWaypointIdChars - 1;
+    if (base.size() > keep) base = base.substr(0, 2) + base.substr(base.size() - (keep - 2));
+    return base + (at_end ? 'B' : 'A');
 }
 
 std::string formatLatitude(double lat_deg, int minute_decimals) {

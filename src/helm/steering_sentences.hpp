@@ -64,8 +64,8 @@ inline constexpr std::size_t kMaxWaypointIdChars = 6;
 // ($ * , ! \ ^ ~ and the delimiter), every other character becomes '_'; cut to
 // kMaxWaypointIdChars.
 std::string waypointId(std::string_view name);
-// The identifiers of a line's two ends: its name cut to 5 characters + 'A' (start as planned)
-// or 'B' (end as planned), e.g. "HF01A", "IF-01B".
+// The identifiers of a line's two ends: its letters and digits (longer than 5: the first 2 and
+// the last 3) + 'A' (start as planned) or 'B' (end as planned), e.g. "HF01A", "INF01B".
 std::string lineEndId(std::string_view line_name, bool at_end);
 
 // "ddmm.mmmm,N" / "dddmm.mmmm,E" with `minute_decimals` decimals of the minutes (4: about

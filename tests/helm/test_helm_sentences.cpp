@@ -84,7 +84,9 @@ TEST(HelmSentences, LongestValuesStayWithin82Characters) {
     helm::SteeringFix f = exampleFix();
     f.origin_id = helm::lineEndId("VERYLONGNAME", false);
     f.dest_id = helm::lineEndId("VERYLONGNAME", true);
-    EXPECT_EQ(f.origin_id, "VERYLA");
+    EXPECT_EQ(f.origin_id, "VEAMEA");  // first 2 + last 3 letters/digits
+    EXPECT_EQ(helm::lineEndId("INF-01", true), "INF01B");
+    EXPECT_EQ(helm::lineEndId("HF01", false), "HF01A");
     f.xte_m = 1e9;
     f.range_to_dest_m = 1e12;
     f.closing_mps = -1e3;
@@ -160,6 +162,20 @@ TEST(HelmSentences, RouteSplitsIntoRteSentencesWithinTheLimit) {
     EXPECT_EQ(total, rte);
     ASSERT_EQ(ids.size(), w.size());
     for (std::size_t i = 0; i < w.size(); ++i) EXPECT_EQ(ids[i], w[i].id);
+}
+
+TEST(HelmSteering, RouteWaypointIdentifiersAreUnique) {
+    nav::SurveyCrs crs(32631);
+    const coverage::Point a{602972.982, 5762100.490}, b{603972.982, 5762100.490};
+    // Two names that shorten alike: every waypoint numbered instead.
+    const auto w = engine::routeWaypoints({{"LINE-X-001", a, b}, {"LIXX-001", b, a}}, crs);
+    ASSERT_EQ(w.size(), 4u);
+    EXPECT_EQ(w[0].id, "W01A");
+    EXPECT_EQ(w[3].id, "W02B");
+    const auto v = engine::routeWaypoints({{"INF-01", a, b}, {"INF-02", b, a}}, crs);
+    EXPECT_EQ(v[2].id, "INF02A");
+    EXPECT_NEAR(v[0].pos.lat_deg, 52.0, 1e-7);  // BUILD-NOTES reference point
+    EXPECT_NEAR(v[0].pos.lon_deg, 4.5, 1e-7);
 }
 
 TEST(HelmSteering, PlanarCrossTrackAndArrivalAgainstHandComputation) {
