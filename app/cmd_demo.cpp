@@ -24,6 +24,7 @@
 #include "engine/pipeline.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/survey_summary.hpp"
+#include "io/helm_output.hpp"
 #include "io/log_writer.hpp"
 
 namespace sg::app {
@@ -121,6 +122,7 @@ int runDemo(const DemoOptions& opts) {
         log_path = (std::filesystem::path(o.out_dir) / "demo.sglog").string();
         std::filesystem::remove(log_path);
     }
+    io::HelmOutputs helm(cfg.outputs);  // [[output]]: steering sentences, as record sends them
     io::LogWriter writer(log_path, {500, false},
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()},
@@ -186,6 +188,7 @@ int runDemo(const DemoOptions& opts) {
             ++lines;
         }
         pipeline.tick(out.utc_ns);
+        if (!helm.empty()) helm.update(pipeline.engine(), out.utc_ns);
         if (link.stopRequested()) break;
         if (link.hasScreen()) {
             applyCommonCommands(link.commands(), pipeline.engine(), builder, o.out_dir);
@@ -206,10 +209,15 @@ int runDemo(const DemoOptions& opts) {
                 std::printf("%s | %s\n", utcText(out.utc_ns).c_str(),
                             engineStatus(pipeline.engine()).c_str());
             next_status = out.utc_ns + 60 * kNsPerSecond;
-            writer.post(pipeline.takeBatch());
+            auto batch = pipeline.takeBatch();
+            helm.takeRows(batch);
+            writer.post(std::move(batch));
         }
     }
-    writer.post(pipeline.takeBatch());
+    auto last_batch = pipeline.takeBatch();
+    helm.takeRows(last_batch);
+    writer.post(std::move(last_batch));
+    std::printf("%s", helm.summaryText("demo").c_str());
     writer.stop();
     const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
     const double sim_s = simulator.elapsed_s();

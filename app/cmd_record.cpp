@@ -17,6 +17,7 @@
 #include "common/config_section.hpp"
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
+#include "io/helm_output.hpp"
 #include "io/recorder.hpp"
 #include "io/sources.hpp"
 #include "app/engine_status.hpp"
@@ -97,6 +98,9 @@ int runRecord(RecordOptions o) {
     io::checkUdpPortsFree(cfg.inputs);
     // So does a serial device another process holds (opened exclusively or locked).
     io::checkSerialDevicesFree(cfg.inputs);
+    // The helm's outputs ([[output]]): a host that does not resolve or a missing device ends the
+    // run here, before a log is created.
+    io::HelmOutputs helm(cfg.outputs);
     // The config's own path is stored absolute so replay finds the plan files it names.
     const bool log_existed = std::filesystem::exists(log_path);
     io::LogWriterOptions wopt;
@@ -123,6 +127,13 @@ int runRecord(RecordOptions o) {
     const auto export_dir = (std::filesystem::path(log_path).parent_path() / "exports").string();
     // Every flush (100 ms): the screen's commands, then a fresh snapshot for it.
     rec.onFlush([&] {
+        if (!helm.empty()) {
+            // Steering sentences at rate_hz of survey time; what was sent goes to the log.
+            helm.update(rec.pipeline()->engine(), io::utcNowNs());
+            log::Batch sent;
+            helm.takeRows(sent);
+            if (!sent.empty()) writer.post(std::move(sent));
+        }
         if (!link.hasScreen()) return;
         applyCommonCommands(link.commands(), rec.pipeline()->engine(), builder, export_dir);
         link.publish(builder.build());
@@ -192,6 +203,7 @@ int runRecord(RecordOptions o) {
         removeEmptyLog(log_path, log_existed, writer.stats().raw_committed);
         throw;
     }
+    std::printf("%s", helm.summaryText("record").c_str());
     const auto st = writer.stats();
     std::printf("record: %llu lines in %s (%llu commits)\n",
                 static_cast<unsigned long long>(st.raw_committed), log_path.c_str(),

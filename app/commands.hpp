@@ -17,5 +17,6 @@ void addReplayCommands(CLI::App& app);  // cmd_replay.cpp: replay and gaps
 void addDemoCommand(CLI::App& app);     // cmd_demo.cpp: simulator -> core in one process
 void addReportCommand(CLI::App& app);   // cmd_report.cpp: the end-of-site report
 void addCheckCommand(CLI::App& app);    // cmd_check.cpp: setup validation before a run
+void addRouteCommand(CLI::App& app);    // cmd_route.cpp: the infill plan as an NMEA route
 
 }  // namespace sg::app

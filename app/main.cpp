@@ -24,6 +24,7 @@ int main(int argc, char** argv) {
     sg::app::addDemoCommand(app);
     sg::app::addReportCommand(app);
     sg::app::addCheckCommand(app);
+    sg::app::addRouteCommand(app);
 
     try {
         app.parse(argc, argv);

@@ -13,11 +13,15 @@ pkgs=(
   socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev libgdal-dev fonts-dejavu-core
   clang libclang-rt-14-dev
   gpsd-clients libxxhash-dev
+  nodejs
 )
 missing=()
 for p in "${pkgs[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
 done
+# npm (the helm tests' independent NMEA parsers, scripts/install-npm-test-deps.sh): Debian's
+# package, unless a nodejs that bundles npm is installed already.
+command -v npm >/dev/null || missing+=(npm)
 if ((${#missing[@]})); then
   SUDO=""
   [[ $(id -u) -ne 0 ]] && SUDO=sudo

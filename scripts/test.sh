@@ -6,5 +6,6 @@ cd "$(dirname "$0")/.."
 bash scripts/install-deps.sh
 cmake --preset ci
 cmake --build build-ci -j"$(nproc)"
+bash scripts/install-npm-test-deps.sh build-ci
 ctest --test-dir build-ci --output-on-failure -j"$(nproc)"
 if [[ -x scripts/fuzz-smoke.sh ]]; then bash scripts/fuzz-smoke.sh; fi

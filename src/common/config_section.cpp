@@ -1,6 +1,8 @@
 // Typed, validated access to TOML tables; see config_section.hpp.
 #include "common/config_section.hpp"
 
+#include <algorithm>
+
 #include <cmath>
 #include <sstream>
 
@@ -189,6 +191,28 @@ std::optional<std::vector<double>> Section::optionalNumbers(std::string_view key
                                                             std::size_t count) const {
     if (!has(key)) return std::nullopt;
     return numbers(key, count);
+}
+
+std::vector<std::string> Section::strings(std::string_view key,
+                                          std::initializer_list<std::string_view> choices,
+                                          std::vector<std::string> fallback) const {
+    const auto* n = node(key);
+    if (n == nullptr) return fallback;
+    const auto* a = n->as_array();
+    std::string expected = "a non-empty array of distinct strings from";
+    for (const auto c : choices) expected += fmt::format(" \"{}\"", c);
+    if (a == nullptr || a->empty()) failAt(n, key, expected);
+    std::vector<std::string> out;
+    for (const auto& el : *a) {
+        const auto* s = el.as_string();
+        if (s == nullptr) failAt(n, key, expected);
+        const std::string v = s->get();
+        if (std::find(choices.begin(), choices.end(), v) == choices.end() ||
+            std::find(out.begin(), out.end(), v) != out.end())
+            failAt(n, key, expected);
+        out.push_back(v);
+    }
+    return out;
 }
 
 Section Section::table(std::string_view key) const {

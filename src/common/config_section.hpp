@@ -65,6 +65,11 @@ public:
     std::optional<std::vector<double>> optionalNumbers(std::string_view key,
                                                        std::size_t count) const;
 
+    // An array of distinct strings, each one of `choices` (e.g. sentences = ["XTE", "APB"]);
+    // `fallback` when the key is absent.
+    std::vector<std::string> strings(std::string_view key, std::initializer_list<std::string_view> choices,
+                                     std::vector<std::string> fallback) const;
+
     // Sub-tables.
     Section table(std::string_view key) const;
     std::optional<Section> optionalTable(std::string_view key) const;

@@ -745,4 +745,185 @@ NmeaSentence decodeNmea(std::string_view line, bool require_checksum) {
     return out;
 }
 
+namespace {
+
+// The data fields of a line decodeNmea accepted (after the address, up to '*').
+Fields splitFields(std::string_view line) {
+    Fields f;
+    f.base = line.data();
+    const std::size_t star = line.find('*');
+    const std::size_t end = star == std::string_view::npos ? line.size() : star;
+    std::size_t start = line.find(',');
+    if (start == std::string_view::npos || start > end) return f;
+    ++start;
+    for (std::size_t i = start; i <= end && f.n < kMaxNmeaFields; ++i) {
+        if (i == end || line[i] == ',') {
+            f.push(start, i - start);
+            start = i + 1;
+        }
+    }
+    return f;
+}
+
+bool statusA(Decoder& d, std::size_t i, const char* name) { return d.letter(i, name, "AV", false) == 'A'; }
+
+using RouteHandler = bool (*)(Decoder&, const Fields&, RouteData&);
+
+bool decodeXte(Decoder& d, const Fields&, RouteData& out) {
+    // $INXTE,A,A,0.011,L,N,A*hh
+    //   1 A  status (A valid, V warning)   2 A  status (A valid, V warning)
+    //   3 0.011  cross-track error magnitude   4 L  steer L/R   5 N  units nautical miles
+    //   6 A  mode indicator (NMEA 2.3; absent in older talkers)
+    Xte& x = out.emplace<Xte>();
+    const bool a = statusA(d, 0, "status");
+    const bool b = statusA(d, 1, "cycle lock status");
+    x.valid = a && b;
+    x.xte_nm = d.number(2, "cross-track error", 0.0, 999.0);
+    x.steer = d.letter(3, "direction to steer", "LR", true);
+    d.unit(4, "cross-track units", 'N');
+    x.mode = d.letter(5, "mode", "ADEMSNP", true);
+    if (x.valid && (!x.xte_nm || !x.steer)) d.fail(2, "cross-track error", "empty with status A");
+    return !d.failed();
+}
+
+bool decodeApb(Decoder& d, const Fields& f, RouteData& out) {
+    // $INAPB,A,A,0.011,L,N,V,V,45.0,T,HF01B,44.9,T,44.9,T,A*hh
+    //   1, 2  status A/V   3 0.011 cross-track error   4 L steer   5 N nautical miles
+    //   6 V  arrival circle entered (A) or not (V)   7 V  perpendicular passed (A) or not (V)
+    //   8 45.0  bearing origin -> destination   9 T  true (M magnetic)
+    //  10 HF01B  destination waypoint identifier
+    //  11 44.9  bearing present position -> destination   12 T
+    //  13 44.9  heading to steer to the destination   14 T
+    //  15 A  mode indicator (NMEA 2.3)
+    Apb& a = out.emplace<Apb>();
+    const bool s1 = statusA(d, 0, "status");
+    const bool s2 = statusA(d, 1, "cycle lock status");
+    a.valid = s1 && s2;
+    a.xte_nm = d.number(2, "cross-track error", 0.0, 999.0);
+    a.steer = d.letter(3, "direction to steer", "LR", true);
+    d.unit(4, "cross-track units", 'N');
+    a.arrival_circle = d.letter(5, "arrival circle status", "AV", true) == 'A';
+    a.perpendicular = d.letter(6, "perpendicular status", "AV", true) == 'A';
+    a.bearing_origin_dest_deg = d.number(7, "bearing origin to destination", 0.0, 360.0);
+    a.bearing_origin_dest_ref = d.letter(8, "bearing reference", "TM", true);
+    a.dest_id = std::string(f[9]);
+    a.bearing_to_dest_deg = d.number(10, "bearing to destination", 0.0, 360.0);
+    a.bearing_to_dest_ref = d.letter(11, "bearing reference", "TM", true);
+    a.heading_to_steer_deg = d.number(12, "heading to steer", 0.0, 360.0);
+    a.heading_to_steer_ref = d.letter(13, "heading reference", "TM", true);
+    a.mode = d.letter(14, "mode", "ADEMSNP", true);
+    if (a.valid && (!a.xte_nm || !a.steer)) d.fail(2, "cross-track error", "empty with status A");
+    return !d.failed();
+}
+
+bool decodeRmb(Decoder& d, const Fields& f, RouteData& out) {
+    // $INRMB,A,0.011,L,HF01A,HF01B,5211.123,N,00430.000,E,0.30,45.0,,V,A*hh
+    //   1 A  status A valid, V warning   2 0.011  cross-track error, nautical miles   3 L  steer
+    //   4 HF01A  origin waypoint   5 HF01B  destination waypoint
+    //   6, 7  destination latitude, N/S   8, 9  destination longitude, E/W
+    //  10 0.30  range to destination, nautical miles   11 45.0  bearing to destination, true
+    //  12 (empty)  closing velocity, knots   13 V  arrival status (A arrived)
+    //  14 A  mode indicator (NMEA 2.3)
+    Rmb& r = out.emplace<Rmb>();
+    r.valid = statusA(d, 0, "status");
+    r.xte_nm = d.number(1, "cross-track error", 0.0, 999.0);
+    r.steer = d.letter(2, "direction to steer", "LR", true);
+    r.origin_id = std::string(f[3]);
+    r.dest_id = std::string(f[4]);
+    r.dest_lat_deg = d.latitude(5);
+    r.dest_lon_deg = d.longitude(7);
+    r.range_nm = d.number(9, "range to destination", 0.0, 99999.0);
+    r.bearing_to_dest_deg = d.number(10, "bearing to destination", 0.0, 360.0);
+    r.closing_kn = d.number(11, "closing velocity", -999.0, 999.0);
+    r.arrived = d.letter(12, "arrival status", "AV", true) == 'A';
+    r.mode = d.letter(13, "mode", "ADEMSNP", true);
+    if (r.valid && (!r.xte_nm || !r.steer || !r.dest_lat_deg)) d.fail(1, "cross-track error", "empty with status A");
+    return !d.failed();
+}
+
+bool decodeWpl(Decoder& d, const Fields& f, RouteData& out) {
+    // $INWPL,5211.1234,N,00430.0000,E,HF01A*hh
+    //   1, 2  latitude, N/S   3, 4  longitude, E/W   5  waypoint identifier
+    Wpl& w = out.emplace<Wpl>();
+    const auto lat = d.latitude(0);
+    const auto lon = d.longitude(2);
+    if (!lat) d.fail(0, "latitude", "empty");
+    if (!lon) d.fail(2, "longitude", "empty");
+    w.lat_deg = lat.value_or(0.0);
+    w.lon_deg = lon.value_or(0.0);
+    w.id = std::string(f[4]);
+    if (w.id.empty()) d.fail(4, "waypoint identifier", "empty");
+    return !d.failed();
+}
+
+bool decodeRte(Decoder& d, const Fields& f, RouteData& out) {
+    // $INRTE,2,1,c,INFILL,IF-01A,IF-01B,IF-02A*hh
+    //   1 2  total sentences   2 1  this sentence's number   3 c  complete (w working) route
+    //   4 INFILL  route identifier   5..  waypoint identifiers in order
+    Rte& r = out.emplace<Rte>();
+    r.total = d.integer(0, "sentence count", 99).value_or(0);
+    r.number = d.integer(1, "sentence number", 99).value_or(0);
+    if (r.total < 1) d.fail(0, "sentence count", "empty or 0");
+    if (r.number < 1 || r.number > r.total) d.fail(1, "sentence number", "not 1..count");
+    r.mode = d.letter(2, "message mode", "cw", false);
+    r.route_id = std::string(f[3]);
+    for (std::size_t i = 4; i < f.n; ++i) r.waypoints.emplace_back(f[i]);
+    return !d.failed();
+}
+
+struct RouteSpec {
+    std::string_view type;
+    std::size_t min_fields;
+    RouteHandler handler;
+};
+constexpr std::array<RouteSpec, 5> kRouteSentences = {{
+    {"XTE", 5, decodeXte},
+    {"APB", 14, decodeApb},
+    {"RMB", 13, decodeRmb},
+    {"WPL", 5, decodeWpl},
+    {"RTE", 4, decodeRte},
+}};
+
+}  // namespace
+
+RouteSentence decodeRouteNmea(std::string_view line) {
+    while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.remove_suffix(1);
+    const NmeaSentence env = decodeNmea(line);
+    RouteSentence out;
+    out.talker = env.talker;
+    out.type = env.type;
+    out.checksum_ok = env.checksum_ok;
+    out.reason = env.reason;
+    out.detail = env.detail;
+    const RouteSpec* spec = nullptr;
+    for (const auto& s : kRouteSentences)
+        if (s.type == env.type) spec = &s;
+    if (env.reason != Reason::UnknownSentence || env.talker == "P" || line.empty() || line[0] != '$' ||
+        spec == nullptr) {
+        if (env.reason == Reason::Ok || env.reason == Reason::NoChecksum || env.reason == Reason::FieldIgnored) {
+            out.reason = Reason::UnknownSentence;
+            out.detail = "not a steering or route sentence";
+        }
+        return out;
+    }
+    const Fields fields = splitFields(line);
+    if (fields.n < spec->min_fields) {
+        out.reason = Reason::Truncated;
+        out.detail = std::to_string(fields.n) + " fields, " + std::string(spec->type) + " needs " +
+                     std::to_string(spec->min_fields);
+        return out;
+    }
+    Decoder d(fields);
+    if (!spec->handler(d, fields, out.data)) {
+        const FieldError& e = d.error();
+        out.data = std::monostate{};
+        out.reason = Reason::BadField;
+        out.detail = "field " + std::to_string(e.index + 1) + " (" + e.name + "): " + e.what;
+        return out;
+    }
+    out.reason = env.checksum_ok ? Reason::Ok : Reason::NoChecksum;
+    out.detail.clear();
+    return out;
+}
+
 }  // namespace sg::decode

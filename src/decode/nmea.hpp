@@ -10,6 +10,7 @@
 #include <string>
 #include <string_view>
 #include <variant>
+#include <vector>
 
 #include "decode/reason.hpp"
 
@@ -175,6 +176,64 @@ public:
 private:
     bool m_checksummed = false;
 };
+
+// Steering and route sentences: what swathguard sends to the bridge (src/helm, docs/helm-output.md).
+// decodeRouteNmea reads them (tests, tools); acquisition does not: an input that carries them
+// keeps them as unknown_sentence, as before. Distances stay in nautical miles and speeds in knots
+// as sent (these structs describe the sentence, not the core's state).
+struct Xte {
+    bool valid = false;              // both status fields 'A'
+    std::optional<double> xte_nm;    // cross-track error magnitude, nautical miles
+    char steer = 0;                  // 'L' or 'R' (0 when empty)
+    char mode = 0;                   // NMEA 2.3 mode indicator (0 when absent)
+};
+struct Apb {
+    bool valid = false;
+    std::optional<double> xte_nm;
+    char steer = 0;
+    bool arrival_circle = false;     // field 6 'A'
+    bool perpendicular = false;      // field 7 'A'
+    std::optional<double> bearing_origin_dest_deg;
+    char bearing_origin_dest_ref = 0;  // 'T' true, 'M' magnetic
+    std::string dest_id;
+    std::optional<double> bearing_to_dest_deg;
+    char bearing_to_dest_ref = 0;
+    std::optional<double> heading_to_steer_deg;
+    char heading_to_steer_ref = 0;
+    char mode = 0;
+};
+struct Rmb {
+    bool valid = false;              // status 'A'
+    std::optional<double> xte_nm;
+    char steer = 0;
+    std::string origin_id, dest_id;
+    std::optional<double> dest_lat_deg, dest_lon_deg;
+    std::optional<double> range_nm;
+    std::optional<double> bearing_to_dest_deg;  // true
+    std::optional<double> closing_kn;
+    bool arrived = false;            // field 13 'A'
+    char mode = 0;
+};
+struct Wpl {
+    double lat_deg = 0.0, lon_deg = 0.0;
+    std::string id;
+};
+struct Rte {
+    int total = 0, number = 0;       // sentences of the route, this one (1..total)
+    char mode = 0;                   // 'c' complete, 'w' working
+    std::string route_id;
+    std::vector<std::string> waypoints;
+};
+using RouteData = std::variant<std::monostate, Xte, Apb, Rmb, Wpl, Rte>;
+struct RouteSentence {
+    std::string talker, type;
+    RouteData data;                  // monostate unless reason is Ok or NoChecksum
+    Reason reason = Reason::NotNmea; // UnknownSentence for any other well-formed sentence
+    std::string detail;
+    bool checksum_ok = false;
+};
+// Decodes one XTE, APB, RMB, WPL or RTE line (same envelope checks as decodeNmea). Never throws.
+RouteSentence decodeRouteNmea(std::string_view line);
 
 // XOR of all bytes of `bytes` (the NMEA checksum when given the text between '$' and '*').
 std::uint8_t xorChecksum(std::string_view bytes);

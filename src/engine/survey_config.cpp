@@ -36,7 +36,7 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     const config::Section root = cfg.root();
     root.allowOnly({"survey", "log", "import", "input", "fieldmap", "vessel", "tow", "sensor",
                     "geomagnetic", "detection", "target", "plan", "coverage", "gaps", "infill",
-                    "checks"});
+                    "checks", "output"});
     cfg.fieldmaps = decode::parseFieldMaps(root);
     cfg.inputs = config::parseInputs(root, use);
     cfg.log = config::parseLog(root);
@@ -44,6 +44,7 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     cfg.nav = nav::parseVesselConfig(root);
     cfg.detection = detect::parseDetectionConfig(root);
     parseSurveyInfo(root, cfg);
+    cfg.outputs = helm::parseOutputs(root);
     (void)checks::CheckSet::fromConfig(root);  // validates [checks] now, not mid-survey
     return cfg;
 }

@@ -14,6 +14,7 @@
 #include "common/input_config.hpp"
 #include "decode/field_map.hpp"
 #include "detect/target_model.hpp"
+#include "helm/helm_config.hpp"
 #include "nav/nav_config.hpp"
 
 namespace sg::engine {
@@ -36,6 +37,7 @@ struct SurveyConfig {
     config::ImportConfig import;
     nav::NavConfig nav;
     detect::DetectionConfig detection;
+    std::vector<helm::OutputConfig> outputs;  // [[output]]: steering sentences for the bridge
 
     // The parsed TOML, for sections read by later stages ([checks] with limits derived from the
     // detection model, [plan] files resolved against `dir`).

@@ -141,6 +141,9 @@ public:
     void setSampleObserver(std::function<void(const SensorState&)> fn) { m_observer = std::move(fn); }
     // Last antenna fix in the survey CRS and the vessel heading (grid, radians), when known.
     std::optional<coverage::Point> vesselPosition() const { return m_vessel_pos; }
+    // The array reference (mean of the sensors' positions, survey CRS) at the latest sample of
+    // sensor slot 0: the position line runs and the deviation use; empty while poses are bad.
+    std::optional<coverage::Point> arrayReference() const { return m_last_ref_pos; }
 
     // Operator actions (logged as events).
     bool acknowledge(std::uint64_t episode_id, TimeNs t_ns);
