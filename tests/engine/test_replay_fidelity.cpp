@@ -31,6 +31,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     std::vector<sg::checks::Episode> live_episodes;
     std::uint64_t live_lines = 0;
     std::map<std::string, sg::engine::SourceCounters> live_counters;
+    std::string live_picks;  // the pick list as JSON (docs/picks.md)
     {
         sg::io::LogWriter writer(log_path, {200, false},
                                  {{"config_text", cfg.text}, {"config_file", dir + "survey.toml"}});
@@ -45,6 +46,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         live_episodes = live.engine().checks().episodes();
         live_lines = live.linesFed();
         live_counters = live.decoder().counters();
+        live_picks = sg::engine::toJson(sg::engine::summarisePicks(live.engine())).dump();
     }
     ASSERT_GT(live_lines, 30000u);
     ASSERT_FALSE(live_episodes.empty());  // the demo's faults raise alarms in the first 10 min
@@ -55,6 +57,8 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     auto& eng = replay.pipeline().engine();
     eng.flushCoverage();
     EXPECT_EQ(eng.raster().contentHash(), live_hash);
+    // The same picks, to the last digit.
+    EXPECT_EQ(sg::engine::toJson(sg::engine::summarisePicks(eng)).dump(), live_picks);
     const auto& eps = eng.checks().episodes();
     ASSERT_EQ(eps.size(), live_episodes.size());
     for (std::size_t i = 0; i < eps.size(); ++i) {
