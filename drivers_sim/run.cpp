@@ -1,5 +1,6 @@
 // Running a simulation to an output; see run.hpp.
 #include "drivers_sim/run.hpp"
+#include "drivers_sim/planted_field.hpp"
 
 #include <chrono>
 #include <cmath>
@@ -176,6 +177,9 @@ RunResult runSimulation(const Scenario& scenario, const RunOptions& options, std
         truth_nav << "utc,antenna_e_m,antenna_n_m,tow_e_m,tow_n_m,fish_e_m,fish_n_m,"
                      "heading_true_deg,fish_depth_m,fish_altitude_m,cable_out_m,layback_m,"
                      "cross_track_m,line\n";
+        // The truth list of the planted items (simulator's own model; planted_field.hpp).
+        std::ofstream items(options.dir + "/truth_items.csv", std::ios::binary | std::ios::trunc);
+        items << plantedItemsCsv(plantedItems(sim));
     }
 
     const auto wall_start = std::chrono::steady_clock::now();

@@ -21,7 +21,7 @@ struct RunOptions {
     std::string dir = "sim_out";   // files, summary.json, plan GeoJSON, truth, pty symlinks
     int base_port = 47000;         // gnss = base, gyro +1, sounder +2, mag +3, altimeter +4, cable +5
     double speed = 0.0;            // simulated seconds per wall second; 0 = as fast as possible
-    bool truth = false;            // write truth_mag.csv and truth_nav.csv
+    bool truth = false;            // write truth_mag.csv, truth_nav.csv and truth_items.csv
     // Acquisition window (simulated seconds since the start): the world runs from the start as
     // always, but only lines (and truth rows) with from_s <= t < to_s are written; the run ends
     // at to_s. Windows [0, T) and [T, end) together give exactly the lines of the whole run.

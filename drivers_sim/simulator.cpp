@@ -1,13 +1,14 @@
 // The simulated survey; see simulator.hpp. Magnetometer values are
 //   main field + diurnal + sum of the targets' dipole anomalies + heading error + noise,
-// with the anomalies computed by the core's own function (detect/dipole.hpp, Blakely 1995).
+// with the anomalies computed by the simulator's own dipole code (planted_field.hpp, Blakely 1995),
+// independent of the detector's.
 #include "drivers_sim/simulator.hpp"
 
 #include <algorithm>
 #include <cmath>
 #include <stdexcept>
 
-#include "detect/dipole.hpp"
+#include "drivers_sim/planted_field.hpp"
 #include "drivers_sim/sentences.hpp"
 
 namespace sg::sim {
@@ -109,8 +110,10 @@ bool Simulator::activeOn(FaultKind k, Channel c, double t_s, const FaultSpec** w
 }
 
 double Simulator::targetsAnomaly_nT(Vec2 p_m, double depth_m) const {
+    // The simulator's own dipole code (planted_field.hpp), not the detector's: the tests compare
+    // the core against a world it did not compute.
     const auto& g = m_sc.geomag;
-    const detect::Vec3 field = detect::ambientFieldUnitDeg(g.inclination_deg, g.declination_deg);
+    const DirectionCosines field = directionFromAngles(g.inclination_deg, g.declination_deg);
     // The dipole frame is true north-east-down; the grid is rotated from it by the convergence.
     const double c = std::cos(m_convergence_deg * kDeg);
     const double s = std::sin(m_convergence_deg * kDeg);
@@ -118,15 +121,12 @@ double Simulator::targetsAnomaly_nT(Vec2 p_m, double depth_m) const {
     for (const TargetSpec& t : m_sc.targets) {
         const Vec2 d = p_m - t.position_m;
         const double target_depth = m_seabed.depth_m(t.position_m) + t.burial_m;
-        const detect::Vec3 r{-d.e * s + d.n * c, d.e * c + d.n * s, depth_m - target_depth};
-        if (t.moment_inclination_deg) {
-            const detect::Vec3 m = t.moment_Am2 * detect::ambientFieldUnitDeg(
-                                                      *t.moment_inclination_deg,
-                                                      *t.moment_declination_deg);
-            sum += detect::totalFieldAnomaly_nT(m, r, field);
-        } else {
-            sum += detect::inducedTotalFieldAnomaly_nT(t.moment_Am2, r, field);
-        }
+        const DirectionCosines moment =
+            t.moment_inclination_deg
+                ? directionFromAngles(*t.moment_inclination_deg, *t.moment_declination_deg)
+                : field;
+        sum += plantedDipoleAnomaly_nT(-d.e * s + d.n * c, d.e * c + d.n * s, depth_m - target_depth,
+                                       t.moment_Am2, moment, field);
     }
     return sum;
 }

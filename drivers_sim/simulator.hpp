@@ -49,7 +49,7 @@ struct MagTruth {
     double altitude_m = 0.0;   // true height above the seabed below the sensor
     double ambient_nT = 0.0;   // main field + diurnal
     double heading_nT = 0.0;   // heading error term
-    double anomaly_nT = 0.0;   // sum of the targets' dipole anomalies (core's dipole function)
+    double anomaly_nT = 0.0;   // sum of the targets' dipole anomalies (simulator's own dipole code)
     double noise_nT = 0.0;     // noise added
     double field_nT = 0.0;     // value before formatting
     bool sent = false;         // false while a dropout hides it

@@ -501,6 +501,67 @@ void outagePage(PdfDoc& d, const SurveySummary& s) {
               fmt::format("{}", v.noise_warmup), fmt::format("{}", v.noisy), fmt::format("{}", v.low_quality)}});
 }
 
+// Anomaly picks and the verification strip (docs/picks.md): every figure from s.picks.
+void picksPages(PdfDoc& d, const SurveySummary& s) {
+    const auto& p = s.picks;
+    d.newPage();
+    d.heading("Anomaly picks");
+    d.para(std::string("Caution: ") + engine::kPicksCaution + ".", 9, true);
+    d.para(std::string("Method: ") + engine::kPicksMethod + fmt::format(" (trend window {:g} s; {} single-sensor peaks).",
+                                                                      p.settings.trend_window_s, p.peaks),
+           8.5);
+    if (!p.enabled) {
+        d.para("Picking is switched off ([picks] enabled = false).", 9);
+        return;
+    }
+    std::vector<std::vector<std::string>> rows;
+    constexpr std::size_t kMaxRows = 150;
+    const auto opt = [](const std::optional<double>& v, const char* f) {
+        return v ? fmt::format(fmt::runtime(f), *v) : std::string("-");
+    };
+    for (std::size_t i = 0; i < p.picks.size() && i < kMaxRows; ++i) {
+        const auto& k = p.picks[i];
+        std::string runs;
+        for (int r : k.runs) runs += (runs.empty() ? "" : ",") + std::to_string(r);
+        rows.push_back({fmt::format("P{}", k.id), fmt::format("{:.1f}", k.easting_m), fmt::format("{:.1f}", k.northing_m),
+                        fmt::format("{:.1f}", k.peak_nT), fmt::format("{:.1f}", k.width_m), opt(k.burial_m, "{:.1f}"),
+                        opt(k.moment_Am2, "{:.3g}"), fmt::format("{:.2f}", k.fit_r2), k.quality, runs});
+    }
+    if (rows.empty()) d.para("No anomaly reached the live threshold on a line run.", 9);
+    else
+        d.table({{"pick", 30}, {"E (m)", 60, true}, {"N (m)", 66, true}, {"peak nT", 48, true}, {"width m", 42, true},
+                 {"burial m", 44, true}, {"moment Am2", 56, true}, {"fit r2", 36, true}, {"quality", 44}, {"runs", 80}},
+                rows);
+    if (p.picks.size() > kMaxRows) d.para(fmt::format("{} more picks in picks.csv.", p.picks.size() - kMaxRows), 8.5);
+
+    d.heading("Verification of the detection model");
+    const auto& v = p.verification;
+    if (v.verdicts.empty()) {
+        d.para("No [[known_item]] is configured: the model is not verified on the water for this survey.", 9);
+        return;
+    }
+    for (const auto& c : v.verdicts) d.bullet(c.text, 9);
+    for (const auto& u : v.unplaced) d.bullet("not placed (no survey CRS): " + u, 8.5);
+    std::vector<std::vector<std::string>> vrows;
+    for (const auto& x : v.passes) {
+        if (x.predicted_nT < 0.1 * x.threshold_nT && x.measured_nT < x.threshold_nT) continue;  // far passes
+        vrows.push_back({x.item, std::to_string(x.run), std::to_string(x.sensor_slot), fmt::format("{:.1f}", x.offset_m),
+                         fmt::format("{:.1f}", x.altitude_m), fmt::format("{:.2f}", x.predicted_nT),
+                         fmt::format("{:.2f}", x.measured_nT), fmt::format("{:.2f}", x.ratio),
+                         x.predicted_detected ? "yes" : "no", x.detected ? "yes" : "no"});
+    }
+    d.table({{"item", 80}, {"run", 28, true}, {"sensor", 36, true}, {"offset m", 44, true}, {"altitude m", 50, true},
+             {"predicted nT", 58, true}, {"measured nT", 58, true}, {"ratio", 36, true}, {"model: seen", 52},
+             {"seen", 34}},
+            vrows);
+    d.para(fmt::format("Verdict over the passes where the model predicts a detection: the median measured/predicted "
+                       "within {:.0f} % of 1 confirms the model; below, the model is too optimistic and the claimed "
+                       "coverage must shrink (the corrected parameter is given); above, it is conservative. A verdict "
+                       "holds for this vessel and this day only. All passes: verification.csv.",
+                       detect::kVerificationTolerance * 100.0),
+           8);
+}
+
 void modelPage(PdfDoc& d, const SurveySummary& s) {
     const auto& det = s.detection;
     d.heading("Detection model and assumptions");
@@ -679,6 +740,7 @@ ReportResult writeSiteReport(const SurveySummary& s, const engine::SurveyEngine&
         gapPages(d, s);
         outagePage(d, s);
         modelPage(d, s);
+        picksPages(d, s);
         res.pdf_pages = d.pages();
         d.finish();
     }

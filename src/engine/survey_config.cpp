@@ -5,6 +5,9 @@
 #include <fstream>
 #include <sstream>
 
+#include "detect/anomaly_picker.hpp"
+#include "detect/verification_strip.hpp"
+
 namespace sg::engine {
 
 namespace {
@@ -36,7 +39,7 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     const config::Section root = cfg.root();
     root.allowOnly({"survey", "log", "import", "input", "fieldmap", "vessel", "tow", "sensor",
                     "geomagnetic", "detection", "target", "plan", "coverage", "gaps", "infill",
-                    "checks", "output"});
+                    "checks", "output", "picks", "known_item"});
     cfg.fieldmaps = decode::parseFieldMaps(root);
     cfg.inputs = config::parseInputs(root, use);
     cfg.log = config::parseLog(root);
@@ -45,6 +48,8 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     cfg.detection = detect::parseDetectionConfig(root);
     parseSurveyInfo(root, cfg);
     cfg.outputs = helm::parseOutputs(root);
+    (void)detect::parsePickSettings(root);                          // [picks]
+    (void)detect::parseKnownItems(root, cfg.detection.targets);     // [[known_item]]
     (void)checks::CheckSet::fromConfig(root);  // validates [checks] now, not mid-survey
     return cfg;
 }

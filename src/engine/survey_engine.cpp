@@ -61,6 +61,14 @@ SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_
         }
     }
 
+    m_pick_settings = detect::parsePickSettings(root);
+    m_strip = detect::VerificationStrip(detect::parseKnownItems(root, m_cfg.detection.targets));
+    if (m_pick_settings.enabled) {
+        m_picker.emplace(m_pick_settings, m_cfg.detection.field, m_cfg.detection.detection.mass_rule_C,
+                         m_cfg.nav.sensors.size());
+        m_picker->setDetrendedObserver([this](const detect::DetrendedSample& d) { m_strip.add(d); });
+    }
+
     for (const auto& s : m_cfg.nav.sensors) {
         m_sensor_slot[s.index] = m_sensors.size();
         SensorState st;
@@ -336,8 +344,56 @@ void SurveyEngine::processPending(const PendingSample& p) {
     ++s.samples;
     s.noise_nT = p.noise_nT;
     processSample(s, p.t_ns, p.warmed_up);
+    if (m_picker) feedPicker(s, p.slot);
     if (p.slot == 0) updateChecks(p.t_ns);
     if (m_observer) m_observer(s);
+}
+
+void SurveyEngine::feedPicker(const SensorState& s, std::size_t slot) {
+    if (!s.field_nT) return;
+    if (!m_strip_placed && m_crs) {
+        // Known items are placed in the survey grid once the CRS is known.
+        for (std::size_t i = 0; i < m_strip.items().size(); ++i) {
+            const auto& it = m_strip.items()[i];
+            if (it.grid_e_m) {
+                m_strip.place(i, *it.grid_e_m, *it.grid_n_m);
+            } else {
+                const auto en = m_crs->forward(*it.lon_deg, *it.lat_deg);
+                if (std::isfinite(en.easting_m) && std::isfinite(en.northing_m))
+                    m_strip.place(i, en.easting_m, en.northing_m);
+            }
+        }
+        m_strip_placed = true;
+    }
+    detect::PickSample ps;
+    ps.t_ns = s.t_ns;
+    ps.slot = static_cast<int>(slot);
+    ps.field_nT = *s.field_nT;
+    ps.threshold_nT = s.threshold_nT;
+    ps.easting_m = s.pose.easting_m;
+    ps.northing_m = s.pose.northing_m;
+    ps.altitude_m = s.pose.altitude_m;
+    ps.heading_grid_rad = s.pose.heading_grid_rad;
+    ps.convergence_rad = s.pose.heading_true_rad - s.pose.heading_grid_rad;
+    ps.run = m_run_of_last_sample;
+    // Picks are made on line runs only (turns and run-ins change the heading error faster than
+    // the trend window follows), from samples that painted coverage.
+    ps.usable = s.valid && s.pose.ok() && s.pose.altitude_source != nav::AltitudeSource::None &&
+                ps.run != coverage::kRunNone;
+    m_picker->add(ps);
+}
+
+SurveyEngine::PicksNow SurveyEngine::picksNow() const {
+    PicksNow out;
+    if (!m_picker) return out;
+    detect::AnomalyPicker picker = *m_picker;
+    detect::VerificationStrip strip = m_strip;
+    picker.setDetrendedObserver([&strip](const detect::DetrendedSample& d) { strip.add(d); });
+    picker.finish();
+    out.picks = picker.picks();
+    out.peaks = picker.peaks();
+    out.verification = strip.result(m_models);
+    return out;
 }
 
 void SurveyEngine::releasePending(TimeNs up_to_ns, bool by_fix) {

@@ -26,8 +26,10 @@
 #include "coverage/survey_plan.hpp"
 #include "coverage/survey_coverage.hpp"
 #include "coverage/swath_painter.hpp"
+#include "detect/anomaly_picker.hpp"
 #include "detect/fourth_difference_noise.hpp"
 #include "detect/target_model.hpp"
+#include "detect/verification_strip.hpp"
 #include "engine/site_history.hpp"
 #include "engine/survey_config.hpp"
 #include "log/log_schema.hpp"
@@ -217,6 +219,19 @@ public:
     // Predicted detectable half-width of the coverage class at the planned altitude (m).
     double plannedHalfWidth_m() const;
 
+    // Anomaly picks and the verification strip (docs/picks.md) as they stand now: the picker's
+    // state is copied and its last samples detrended with the window they have, so asking (the
+    // screen does, every few seconds) never changes what a later question gets; live and replay
+    // therefore agree. Empty when [picks] enabled = false.
+    struct PicksNow {
+        std::vector<detect::AnomalyPick> picks;
+        detect::VerificationResult verification;
+        std::uint64_t peaks = 0;  // single-sensor peaks found
+    };
+    PicksNow picksNow() const;
+    bool picksEnabled() const { return m_picker.has_value(); }
+    const detect::PickSettings& pickSettings() const { return m_pick_settings; }
+
     // Gaps in the area now, and the infill lines that close them.
     // (Both need a plan: without one the report is empty.)
     // `final`: the survey is over (a finished log): the open run counts as ended.
@@ -325,6 +340,13 @@ private:
     bool m_crs_refused = false;
     std::string m_crs_problem;
     std::vector<coverage::Point> m_track;
+
+    // Anomaly picks and the verification strip.
+    void feedPicker(const SensorState& s, std::size_t slot);
+    detect::PickSettings m_pick_settings;
+    std::optional<detect::AnomalyPicker> m_picker;
+    detect::VerificationStrip m_strip;
+    bool m_strip_placed = false;
 };
 
 }  // namespace sg::engine

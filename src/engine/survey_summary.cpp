@@ -166,6 +166,7 @@ std::string lineName(const SurveySummary& s, int line) {
 SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, const LogContext& log) {
     engine.finishPending();  // magnetometer samples still waiting for a fix after their time
     SurveySummary s;
+    s.picks = summarisePicks(engine);
     s.log_path = log.path;
     s.first_ns = log.first_ns;
     s.last_ns = log.last_ns;
@@ -441,6 +442,8 @@ nlohmann::json toJson(const SurveySummary& s) {
                             {"pose_no_sensor_depth", s.invalid.pose_no_sensor_depth},
                             {"pose_other", s.invalid.pose_other}};
     j["field_samples"] = s.field_samples;
+    j["picks"] = toJson(s.picks);
+    j["verification"] = verificationJson(s.picks);
     return j;
 }
 
@@ -488,7 +491,10 @@ std::vector<std::string> writeExports(const SurveySummary& s, const SurveyEngine
         put("gaps.geojson", coverage::gapsGeoJson(s.gaps, to_lonlat));
         put("infill.geojson", coverage::infillGeoJson(s.infill.plan, to_lonlat));
         put("infill.gpx", coverage::infillGpx(s.infill.plan, to_lonlat));
+        put("picks.geojson", picksGeoJson(s.picks));
     }
+    put("picks.csv", picksCsv(s.picks));
+    put("verification.csv", verificationCsv(s.picks));
     return written;
 }
 

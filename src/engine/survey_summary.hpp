@@ -11,6 +11,7 @@
 
 #include "coverage/gaps.hpp"
 #include "coverage/survey_coverage.hpp"
+#include "engine/picks_summary.hpp"
 #include "engine/survey_engine.hpp"
 #include "log/log_schema.hpp"
 
@@ -105,6 +106,9 @@ struct SurveySummary {
     std::vector<SessionInfo> sessions;
     std::size_t vessels = 0;                  // distinct vessel names among the sessions
     std::vector<std::string> site_messages;   // logs skipped, recomputed, ... (for people)
+    // Anomaly picks and the verification strip of the samples this engine processed (a site's
+    // earlier logs are not re-picked: docs/picks.md).
+    PicksSummary picks;
 };
 
 // The alarm episodes and data outages of the engine's own session (no site history).
@@ -129,7 +133,8 @@ std::optional<std::string> nothingCoveredProblem(SurveyEngine& engine);
 // A few lines for the terminal: coverage, gaps, infill.
 std::string toText(const SurveySummary& s);
 
-// Writes gaps.geojson, gaps.csv, infill.geojson, infill.gpx and infill.csv into `dir` (created
+// Writes gaps.geojson, gaps.csv, infill.geojson, infill.gpx, infill.csv, picks.csv,
+// picks.geojson and verification.csv into `dir` (created
 // if missing); returns the paths written. Needs the survey CRS for lon/lat.
 std::vector<std::string> writeExports(const SurveySummary& s, const SurveyEngine& engine,
                                       const std::string& dir);

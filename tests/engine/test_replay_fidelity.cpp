@@ -34,6 +34,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     std::vector<int> live_gap_ids;  // stable gap numbers (issue #12), in report order
     std::size_t live_commits = 0;
     int live_next = 0;
+    std::string live_picks;  // the pick list as JSON (docs/picks.md)
     {
         sg::io::LogWriter writer(log_path, {200, false},
                                  {{"config_text", cfg.text}, {"config_file", dir + "survey.toml"}});
@@ -51,6 +52,7 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
         for (const auto& g : live.engine().gapReport().gaps) live_gap_ids.push_back(g.id);
         live_commits = live.engine().gapNamer().commits();
         live_next = live.engine().gapNamer().nextNumber();
+        live_picks = sg::engine::toJson(sg::engine::summarisePicks(live.engine())).dump();
     }
     ASSERT_GT(live_lines, 30000u);
     ASSERT_FALSE(live_episodes.empty());  // the demo's faults raise alarms in the first 10 min
@@ -61,6 +63,9 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     auto& eng = replay.pipeline().engine();
     eng.flushCoverage();
     EXPECT_EQ(eng.raster().contentHash(), live_hash);
+    // The same picks, to the last digit (the first run passes shells B and E: not an empty list).
+    EXPECT_GT(nlohmann::json::parse(live_picks)["count"].get<int>(), 0);
+    EXPECT_EQ(sg::engine::toJson(sg::engine::summarisePicks(eng)).dump(), live_picks);
     const auto& eps = eng.checks().episodes();
     ASSERT_EQ(eps.size(), live_episodes.size());
     for (std::size_t i = 0; i < eps.size(); ++i) {
