@@ -360,7 +360,6 @@ public:
         // ---- labels (after the tracks so they stay readable; placed without overlap) ----
         const Rect legend = legendRect(rect, sc), scale_bar = scaleBarRect(rect, sc);
         placeLabels(dl, rect, pal, *s, sc, {legend, scale_bar, controlsRect(rect, sc), northArrowRect(rect, sc)});
-        const ImU32 label_bg = withAlpha(pal.background, 190);
 
         // ---- forming gap: a ring with a cross where it forms, while its alarm is active ----
         if (s->forming_gap.active) {
@@ -370,9 +369,6 @@ public:
             dl->AddCircle(c, r, pal.gap, 24, 2.5f * sc);
             dl->AddLine({c.x - 1.6f * r, c.y}, {c.x + 1.6f * r, c.y}, pal.gap, 2.0f * sc);
             dl->AddLine({c.x, c.y - 1.6f * r}, {c.x, c.y + 1.6f * r}, pal.gap, 2.0f * sc);
-            char buf[96];
-            std::snprintf(buf, sizeof buf, "forming gap %.1f m", s->forming_gap.width_m);
-            drawLabel(dl, {c.x + 1.8f * r, c.y - 1.8f * r}, pal.gap, label_bg, buf);
         }
 
         // ---- live swath, sensors, vessel ----
@@ -516,6 +512,19 @@ private:
         const std::vector<LabelSpot> around{LabelSpot::kRight,      LabelSpot::kLeft,       LabelSpot::kAbove,
                                             LabelSpot::kBelow,      LabelSpot::kAboveRight, LabelSpot::kBelowRight,
                                             LabelSpot::kAboveLeft,  LabelSpot::kBelowLeft};
+        // The forming gap first (its marker is drawn after the labels, so keep its ring clear).
+        if (s.forming_gap.active) {
+            const ImVec2 c = m_t.toScreen(s.forming_gap.at);
+            const float r = 1.6f * 11.0f * sc;
+            placer.block({{c.x - r, c.y - r}, {c.x + r, c.y + r}});
+            char buf[96];
+            std::snprintf(buf, sizeof buf, "forming gap %.1f m", s.forming_gap.width_m);
+            const ImVec2 ts = ImGui::CalcTextSize(buf);
+            if (const auto at = placer.place(c, {ts.x + 2 * px, ts.y + 2 * py}, around, r + gap)) {
+                dl->AddRectFilled(at->min, at->max, pal.background);
+                dl->AddText({at->min.x + px, at->min.y + py}, pal.gap, buf);
+            }
+        }
         auto lineLabel = [&](std::size_t i) {
             const auto& line = s.lines[i];
             const bool is_active = static_cast<int>(i) == s.active_line;

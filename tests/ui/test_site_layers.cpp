@@ -4,6 +4,7 @@
 // survey (invented), fed straight into two pipelines.
 #include <gtest/gtest.h>
 
+#include <functional>
 #include <map>
 #include <utility>
 
@@ -60,8 +61,10 @@ TEST(SiteLayers, SessionTilesHoldOnlyThisSessionsCoverageAndThePlanCanShowThem) 
     sg::engine::SessionInfo earlier;
     earlier.log = "earlier.sglog";
     seed.sessions.push_back(earlier);
-    seed.merge_into = [&raster_a](sg::coverage::CoverageRaster& site, std::vector<sg::engine::SessionInfo>&) {
+    seed.merge_into = [&raster_a](sg::coverage::CoverageRaster& site, std::vector<sg::engine::SessionInfo>&,
+                                  const std::function<void(std::size_t)>& joined) {
         site.mergeFrom(raster_a, 0);
+        if (joined) joined(0);
     };
     // The world runs from the start; only its lines from 400 s on are fed (as `demo --from`).
     sg::sim::SimOptions second;
