@@ -22,7 +22,6 @@
 
 #include <fcntl.h>
 #include <spawn.h>
-#include <stb_image.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
@@ -31,6 +30,7 @@
 #include "ui/layout.hpp"
 #include "ui/plan_view.hpp"
 #include "ui/screen.hpp"
+#include "png_image.hpp"
 
 extern char** environ;
 
@@ -91,32 +91,9 @@ const std::string& demoLog20x() {
     return log;
 }
 
-struct Image {
-    int w = 0, h = 0;
-    std::vector<unsigned char> rgb;
-    ImU32 at(int x, int y) const {
-        const auto i = (static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)) * 3;
-        return IM_COL32(rgb[i], rgb[i + 1], rgb[i + 2], 255);
-    }
-};
-
-Image loadPng(const std::string& path) {
-    Image img;
-    int n = 0;
-    unsigned char* data = stbi_load(path.c_str(), &img.w, &img.h, &n, 3);
-    if (!data) return img;
-    img.rgb.assign(data, data + static_cast<std::size_t>(img.w) * static_cast<std::size_t>(img.h) * 3);
-    stbi_image_free(data);
-    return img;
-}
-
-bool near(ImU32 a, ImU32 b, int tol) {
-    for (int shift : {0, 8, 16}) {
-        const int x = static_cast<int>((a >> shift) & 0xFF), y = static_cast<int>((b >> shift) & 0xFF);
-        if (std::abs(x - y) > tol) return false;
-    }
-    return true;
-}
+using sg::testui::Image;
+using sg::testui::loadPng;
+using sg::testui::near;
 
 class ReplayScreen : public ::testing::Test {
 protected:
