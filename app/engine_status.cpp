@@ -35,9 +35,10 @@ std::string engineStatus(const engine::SurveyEngine& e) {
         out += " |";
         for (const auto* ep : active) {
             const auto& c = e.checks().check(ep->check);
-            out += fmt::format(" {}{} {} {:.2f} {}", ep->ack_ns ? "" : "*",
-                               c.level() == checks::Level::kAlarm ? "ALARM" : "warn", ep->check,
-                               c.lastValue().value_or(0.0), c.unit());
+            // Words a surveyor reads, the value rounded to what it means (one table, src/checks).
+            out += fmt::format(" {}{} {}: {}", ep->ack_ns ? "" : "*",
+                               c.level() == checks::Level::kAlarm ? "ALARM" : "warn", checks::checkWords(ep->check),
+                               checks::checkValueText(ep->check, c.lastValue().value_or(0.0)));
         }
     }
     return out;
