@@ -22,6 +22,7 @@
 #include <nlohmann/json.hpp>
 
 #include "log/log_reader.hpp"
+#include "../demo_on_ports.hpp"
 
 extern char** environ;
 
@@ -43,12 +44,7 @@ TEST(LoopbackRecord, EverySentLineIsInTheRawTable) {
     fs::create_directories(dir);
     // Ports of our own (parallel test runs must not share them), plan files by absolute path.
     const int base = 41000 + static_cast<int>(::getpid() % 400) * 10;
-    std::string cfg = readFile(src + "/replay_logs/demo/survey.toml");
-    for (int i = 0; i < 6; ++i)
-        cfg = std::regex_replace(cfg, std::regex("127\\.0\\.0\\.1:4700" + std::to_string(i)),
-                                 "127.0.0.1:" + std::to_string(base + i));
-    cfg = std::regex_replace(cfg, std::regex("\"plan_(area|lines)\\.geojson\""),
-                             "\"" + src + "/replay_logs/demo/plan_$1.geojson\"");
+    std::string cfg = sg::testdata::demoConfigOnPorts(base);
     std::ofstream(dir / "survey.toml") << cfg;
     const std::string log = (dir / "loop.sglog").string();
 
@@ -103,12 +99,7 @@ TEST(LoopbackRecord, AWrongSensorIndexRaisesUnknownSensorAndEndsWithExitFive) {
     fs::remove_all(dir);
     fs::create_directories(dir);
     const int base = 45000 + static_cast<int>(::getpid() % 400) * 10;
-    std::string cfg = readFile(src + "/replay_logs/demo/survey.toml");
-    for (int i = 0; i < 6; ++i)
-        cfg = std::regex_replace(cfg, std::regex("127\\.0\\.0\\.1:4700" + std::to_string(i)),
-                                 "127.0.0.1:" + std::to_string(base + i));
-    cfg = std::regex_replace(cfg, std::regex("\"plan_(area|lines)\\.geojson\""),
-                             "\"" + src + "/replay_logs/demo/plan_$1.geojson\"");
+    std::string cfg = sg::testdata::demoConfigOnPorts(base);
     cfg = std::regex_replace(cfg, std::regex("\nindex = ([0-3])\n"), "\nindex = 1$1\n");
     ASSERT_NE(cfg.find("index = 13"), std::string::npos);
     std::ofstream(dir / "survey.toml") << cfg;

@@ -16,7 +16,6 @@
 #include <filesystem>
 #include <fstream>
 #include <mutex>
-#include <regex>
 #include <sstream>
 #include <thread>
 
@@ -31,6 +30,7 @@
 #include "ui/plan_view.hpp"
 #include "ui/screen.hpp"
 #include "png_image.hpp"
+#include "../demo_on_ports.hpp"
 
 extern char** environ;
 
@@ -38,13 +38,6 @@ namespace {
 
 namespace fs = std::filesystem;
 constexpr double kFrom_s = 1130.0, kTo_s = 1560.0;  // simulated seconds since the demo's start
-
-std::string readFile(const std::string& path) {
-    std::ifstream in(path);
-    std::stringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
 
 // Records the demo window at 20x through the real binaries, once per test process.
 const std::string& demoLog20x() {
@@ -58,12 +51,7 @@ const std::string& demoLog20x() {
         fs::create_directories(dir);
         // Ports of our own (parallel test runs must not share them), plan files by absolute path.
         const int base = 43000 + static_cast<int>(::getpid() % 400) * 10;
-        std::string cfg = readFile(src + "/replay_logs/demo/survey.toml");
-        for (int i = 0; i < 6; ++i)
-            cfg = std::regex_replace(cfg, std::regex("127\\.0\\.0\\.1:4700" + std::to_string(i)),
-                                     "127.0.0.1:" + std::to_string(base + i));
-        cfg = std::regex_replace(cfg, std::regex("\"plan_(area|lines)\\.geojson\""),
-                                 "\"" + src + "/replay_logs/demo/plan_$1.geojson\"");
+        std::string cfg = sg::testdata::demoConfigOnPorts(base);
         std::ofstream(dir / "survey.toml") << cfg;
         const std::string path = (dir / "demo20x.sglog").string();
         const std::string rec_bin = bin + "/app/swathguard";
