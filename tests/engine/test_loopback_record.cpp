@@ -23,6 +23,7 @@
 
 #include "log/log_reader.hpp"
 #include "../demo_on_ports.hpp"
+#include "../port_block.hpp"
 
 extern char** environ;
 
@@ -43,7 +44,8 @@ TEST(LoopbackRecord, EverySentLineIsInTheRawTable) {
     fs::remove_all(dir);
     fs::create_directories(dir);
     // Ports of our own (parallel test runs must not share them), plan files by absolute path.
-    const int base = 41000 + static_cast<int>(::getpid() % 400) * 10;
+    const sg::testdata::PortBlock ports(6);
+    const int base = ports.base();
     std::string cfg = sg::testdata::demoConfigOnPorts(base);
     std::ofstream(dir / "survey.toml") << cfg;
     const std::string log = (dir / "loop.sglog").string();
@@ -98,7 +100,8 @@ TEST(LoopbackRecord, AWrongSensorIndexRaisesUnknownSensorAndEndsWithExitFive) {
     const fs::path dir = fs::temp_directory_path() / ("sg_wrongsensor_" + std::to_string(::getpid()));
     fs::remove_all(dir);
     fs::create_directories(dir);
-    const int base = 45000 + static_cast<int>(::getpid() % 400) * 10;
+    const sg::testdata::PortBlock ports(6);
+    const int base = ports.base();
     std::string cfg = sg::testdata::demoConfigOnPorts(base);
     cfg = std::regex_replace(cfg, std::regex("\nindex = ([0-3])\n"), "\nindex = 1$1\n");
     ASSERT_NE(cfg.find("index = 13"), std::string::npos);

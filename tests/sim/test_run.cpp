@@ -22,6 +22,7 @@
 
 #include "drivers_sim/run.hpp"
 #include "sim_test_util.hpp"
+#include "../port_block.hpp"
 
 namespace sg::sim::test {
 namespace {
@@ -95,9 +96,10 @@ TEST(Run, SummaryCountsEqualTheLinesInTheFiles) {
 }
 
 int basePort() {
-    // A block of 24 ports per process (tests use +0..+17), unlikely to collide with another
-    // test process on the machine (ctest may run them in parallel).
-    return 20000 + static_cast<int>(::getpid() % 1500) * 24;
+    // A block of 24 ports held by this process (tests use +0..+17): ctest runs test processes
+    // in parallel, and the block's lock keeps them apart.
+    static const sg::testdata::PortBlock block(24);
+    return block.base();
 }
 
 TEST(Run, UdpLoopbackCountsMatch) {

@@ -30,6 +30,7 @@
 #include <nlohmann/json.hpp>
 
 #include "site/run_command.hpp"
+#include "../port_block.hpp"
 
 extern char** environ;
 
@@ -204,7 +205,8 @@ TEST(SiteSessions, TwoRecordSessionsOverUdpContinueTheSite) {
     const auto& one = singleLog();
     ASSERT_FALSE(one.is_null());
     const auto site = newSite("record");
-    const int base = 43000 + static_cast<int>(::getpid() % 300) * 10;
+    const sg::testdata::PortBlock ports(6);  // parallel test processes must not share them
+    const int base = ports.base();
     std::string cfg = readFile(kDemo + "/survey.toml");
     for (int i = 0; i < 6; ++i)
         cfg = std::regex_replace(cfg, std::regex("127\\.0\\.0\\.1:4700" + std::to_string(i)),

@@ -31,6 +31,7 @@
 #include "ui/screen.hpp"
 #include "png_image.hpp"
 #include "../demo_on_ports.hpp"
+#include "../port_block.hpp"
 
 extern char** environ;
 
@@ -50,7 +51,8 @@ const std::string& demoLog20x() {
         fs::remove_all(dir);
         fs::create_directories(dir);
         // Ports of our own (parallel test runs must not share them), plan files by absolute path.
-        const int base = 43000 + static_cast<int>(::getpid() % 400) * 10;
+        static const sg::testdata::PortBlock ports(6);
+        const int base = ports.base();
         std::string cfg = sg::testdata::demoConfigOnPorts(base);
         std::ofstream(dir / "survey.toml") << cfg;
         const std::string path = (dir / "demo20x.sglog").string();
