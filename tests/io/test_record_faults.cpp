@@ -15,7 +15,6 @@
 #include <unistd.h>
 
 #include <fstream>
-#include <random>
 #include <sstream>
 #include <thread>
 
@@ -23,6 +22,7 @@
 #include <boost/asio/ip/udp.hpp>
 #include <boost/asio/write.hpp>
 
+#include "../port_block.hpp"
 #include "io_test_util.hpp"
 
 extern char** environ;
@@ -112,17 +112,11 @@ std::uint16_t freePort(bool udp) {
         return s.local_endpoint().port();
     }
     // Below the ephemeral range (32768..60999 on Linux): a client retrying a port in that range
-    // can be handed the same port as its own and connect to itself (TCP simultaneous open).
-    std::random_device rd;
-    for (int i = 0; i < 100; ++i) {
-        const auto p = static_cast<std::uint16_t>(20000 + rd() % 12000);
-        asio::ip::tcp::acceptor a(io);
-        boost::system::error_code ec;
-        a.open(asio::ip::tcp::v4(), ec);
-        a.bind({asio::ip::make_address("127.0.0.1"), p}, ec);
-        if (!ec) return p;
-    }
-    return 0;
+    // can be handed the same port as its own and connect to itself (TCP simultaneous open). From
+    // this process's locked block, so no parallel test process draws the same port.
+    static const sg::testdata::PortBlock block(8);
+    static int next = 0;
+    return static_cast<std::uint16_t>(block.base() + next++ % 8);
 }
 
 // A record config with one NMEA input; the core needs a field and a target class.
