@@ -3,6 +3,8 @@
 
 #include <algorithm>
 #include <chrono>
+#include <iterator>
+#include <type_traits>
 
 #include <fmt/format.h>
 #include <spdlog/spdlog.h>
@@ -41,6 +43,44 @@ log::EventRow lossEvent(Shared& s) {
                            "its limit of {} bytes",
                            s.loss_count, s.options.queue_limit_bytes);
     return e;
+}
+
+// Cuts the first `n_raw` raw lines off `b` with the decoded rows that refer to them, and returns
+// them as a batch of their own; events, event ends, acks and extension rows go with this first
+// piece. `b` keeps the rest, its raw_index references rebased. The pieces, written in order,
+// give the same rows as the whole batch.
+log::Batch takeFront(log::Batch& b, std::size_t n_raw) {
+    log::Batch head;
+    n_raw = std::min(n_raw, b.raw.size());
+    head.raw.assign(std::make_move_iterator(b.raw.begin()),
+                    std::make_move_iterator(b.raw.begin() + static_cast<std::ptrdiff_t>(n_raw)));
+    b.raw.erase(b.raw.begin(), b.raw.begin() + static_cast<std::ptrdiff_t>(n_raw));
+    auto split = [n_raw](auto& src, auto& dst) {
+        std::remove_reference_t<decltype(src)> rest;
+        for (auto& r : src) {
+            if (r.raw_index < n_raw) {
+                dst.push_back(std::move(r));
+            } else {
+                r.raw_index -= n_raw;
+                rest.push_back(std::move(r));
+            }
+        }
+        src = std::move(rest);
+    };
+    split(b.fixes, head.fixes);
+    split(b.headings, head.headings);
+    split(b.depths, head.depths);
+    split(b.mags, head.mags);
+    split(b.aux, head.aux);
+    head.events = std::move(b.events);
+    head.event_ends = std::move(b.event_ends);
+    head.event_acks = std::move(b.event_acks);
+    head.extra = std::move(b.extra);
+    b.events.clear();
+    b.event_ends.clear();
+    b.event_acks.clear();
+    b.extra.clear();
+    return head;
 }
 
 }  // namespace
@@ -202,6 +242,18 @@ void LogWriter::run(std::shared_ptr<Shared> sp) {
         bool failed = false;
         std::size_t done = 0;
         while (done < pending.size()) {
+            // A batch larger than the chunk (a capture file read at once, a burst) is cut at line
+            // boundaries, so that a chunk is never more than chunk_rows rows plus one line's.
+            if (pending[done].rowCount() > chunk_rows && pending[done].raw.size() > 1) {
+                auto& big = pending[done];
+                const std::size_t n_raw = std::clamp<std::size_t>(
+                    chunk_rows * big.raw.size() / big.rowCount(), 1, big.raw.size() - 1);
+                const std::size_t head_bytes = pending_bytes[done] * n_raw / big.raw.size();
+                log::Batch head = takeFront(big, n_raw);
+                pending_bytes[done] -= head_bytes;  // the pieces' bytes add up to the whole's
+                pending.insert(pending.begin() + static_cast<std::ptrdiff_t>(done), std::move(head));
+                pending_bytes.insert(pending_bytes.begin() + static_cast<std::ptrdiff_t>(done), head_bytes);
+            }
             std::size_t end = done, rows = 0;
             while (end < pending.size() && (end == done || rows + pending[end].rowCount() <= chunk_rows))
                 rows += pending[end++].rowCount();
