@@ -4,8 +4,9 @@
 //
 // When the disk fails or stalls (docs/log-schema.md, "When the disk fails"):
 // - Writes go in transactions of at most `chunk_rows` rows; after a failure (disk full) the chunk
-//   is halved down to one batch, and retried every commit interval, so logging resumes as soon as
-//   any space returns, oldest rows first.
+//   is halved down to one line (a batch larger than the chunk is cut at line boundaries), and
+//   retried every commit interval, so logging resumes as soon as space for one chunk returns,
+//   oldest rows first.
 // - The backlog is bounded by `queue_limit_bytes`: above half of it, decoded rows are no longer
 //   queued (replay recomputes them from the raw lines); above all of it, raw lines are not
 //   queued either and are counted as lost, with the receive times of the first and last lost

@@ -432,8 +432,8 @@ TEST(RecordFaults, StoppingWhileTheDiskIsFullReportsTheLostLinesExactly) {
 }
 
 // Issue #14: the space that returns is enough for a chunk but far less than the backlog needs as
-// one transaction (8,000 lines, about 2 MB of WAL frames as one transaction (measured,
-// docs/faults.md); 256 KB come back). A writer that retries the whole backlog at once never
+// one transaction (8,000 lines: between 1 and 1.5 MB on this tmpfs, measured with the old
+// writer, docs/faults.md; 256 KB come back). A writer that retries the whole backlog at once never
 // commits again; the chunked writer logs the oldest lines that fit within a second, then counts
 // the rest exactly when stopped. Judge: the sqlite3 shell (what the log holds, in order).
 TEST(RecordFaults, SpaceForAChunkButNotTheWholeBacklogResumesLoggingAndCountsTheRestExactly) {
