@@ -127,6 +127,7 @@ int runDemo(const DemoOptions& opts) {
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()},
                           {"origin", "swathguard demo (simulated instruments)"}});
+    helm.setEventIds([&writer] { return writer.nextEventId(); });  // output_outage events
     engine::Pipeline pipeline(cfg, [&writer] { return writer.nextEventId(); });
     if (site) {
         pipeline.engine().seedSite(site::siteSeed(*site));

@@ -110,6 +110,7 @@ int runRecord(RecordOptions o) {
     io::LogWriter writer(log_path, wopt,
                          {{"config_text", cfg.text},
                           {"config_file", std::filesystem::absolute(o.config).string()}});
+    helm.setEventIds([&writer] { return writer.nextEventId(); });  // output_outage events
     int exit_code = 0;
     try {
     const int rc = runWithScreen(o.screen, "swathguard record", [&](ScreenLink& link) {

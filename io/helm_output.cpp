@@ -8,15 +8,18 @@
 #include <stdexcept>
 
 #include <fcntl.h>
+#include <termios.h>
 #include <unistd.h>
 
 #include <boost/asio/io_context.hpp>
 #include <boost/asio/ip/udp.hpp>
 #include <boost/asio/serial_port.hpp>
 #include <fmt/format.h>
+#include <spdlog/spdlog.h>
 
 #include "engine/helm_steering.hpp"
 #include "engine/survey_engine.hpp"
+#include "io/sources.hpp"
 #include "log/log_store.hpp"
 
 namespace sg::io {
@@ -104,16 +107,31 @@ private:
         if (!ec) m_port.set_option(sp::parity(sp::parity::none), ec);
         if (!ec) m_port.set_option(sp::stop_bits(sp::stop_bits::one), ec);
         if (!ec) m_port.set_option(sp::flow_control(sp::flow_control::none), ec);
+        std::string why;
         if (!ec) {
             const int fd = m_port.native_handle();
+            // Ours alone (like a serial input): a second program writing to the bridge's port
+            // would interleave its bytes with our sentences.
+            bool busy = false;
+            why = takeSerialExclusive(fd, &busy);
+            if (busy) why = "held by another process (locked); is another program writing to it?";
+            // Raw output: no output processing (OPOST off), so CR LF goes out as sent, never
+            // CR CR LF (termios(3): ONLCR maps NL to CR NL when OPOST is set). Asio's open already
+            // makes the port raw (cfmakeraw in reactive_serial_port_service.ipp); set here so the sink
+            // does not rest on that.
+            termios tio{};
+            if (why.empty() && ::tcgetattr(fd, &tio) == 0) {
+                tio.c_oflag &= ~static_cast<tcflag_t>(OPOST);
+                if (::tcsetattr(fd, TCSANOW, &tio) != 0) why = std::string("tcsetattr: ") + std::strerror(errno);
+            }
             const int flags = ::fcntl(fd, F_GETFL, 0);
-            if (flags < 0 || ::fcntl(fd, F_SETFL, flags | O_NONBLOCK) < 0)
+            if (why.empty() && (flags < 0 || ::fcntl(fd, F_SETFL, flags | O_NONBLOCK) < 0))
                 ec = boost::system::error_code(errno, boost::system::system_category());
         }
-        if (ec) {
+        if (ec || !why.empty()) {
             boost::system::error_code ignore;
             m_port.close(ignore);
-            return ec.message();
+            return ec ? ec.message() : why;
         }
         return {};
     }
@@ -165,6 +183,8 @@ HelmOutputs::HelmOutputs(const std::vector<helm::OutputConfig>& outputs) : m_out
     for (const auto& o : m_outputs) m_sinks.push_back(openLineSink(o));
     m_counts.resize(m_outputs.size());
     m_next_due_ns.assign(m_outputs.size(), 0);
+    m_outage_event.assign(m_outputs.size(), 0);
+    m_outage_start_ns.assign(m_outputs.size(), 0);
 }
 
 HelmOutputs::HelmOutputs(const std::vector<helm::OutputConfig>& outputs, std::vector<std::unique_ptr<LineSink>> sinks)
@@ -172,6 +192,8 @@ HelmOutputs::HelmOutputs(const std::vector<helm::OutputConfig>& outputs, std::ve
     if (m_sinks.size() != m_outputs.size()) throw std::invalid_argument("HelmOutputs: one sink per output");
     m_counts.resize(m_outputs.size());
     m_next_due_ns.assign(m_outputs.size(), 0);
+    m_outage_event.assign(m_outputs.size(), 0);
+    m_outage_start_ns.assign(m_outputs.size(), 0);
 }
 
 HelmOutputs::~HelmOutputs() = default;
@@ -181,11 +203,38 @@ void HelmOutputs::send(std::size_t k, const std::string& sentence, TimeNs survey
     const std::string bytes = sentence + "\r\n";
     const bool ok = m_sinks[k]->send(bytes, error);
     auto& c = m_counts[k];
+    const auto& name = m_outputs[k].name;
     if (ok) {
         ++c.sent;
+        if (c.in_outage) {
+            // The outage ends at the first good send (for a serial port: after the reopen).
+            c.in_outage = false;
+            const double secs = static_cast<double>(recv_utc_ns - m_outage_start_ns[k]) * 1e-9;
+            spdlog::info("output '{}': sending again after {:.1f} s", name, secs);
+            if (m_outage_event[k] != 0) m_event_ends.push_back({m_outage_event[k], recv_utc_ns, secs});
+            m_outage_event[k] = 0;
+        }
     } else {
         ++c.failed;
         c.last_error = error;
+        if (!c.in_outage) {
+            // Reported once per outage; every failed sentence is still a helm_sent row.
+            c.in_outage = true;
+            ++c.outages;
+            m_outage_start_ns[k] = recv_utc_ns;
+            spdlog::warn("output '{}': sending failed: {} (retried every sentence; the port is reopened)", name,
+                         error);
+            if (m_next_event_id) {
+                log::EventRow e;
+                e.id = m_next_event_id();
+                e.kind = "output_outage";
+                e.source = name;
+                e.start_utc_ns = recv_utc_ns;
+                e.detail = error;
+                m_outage_event[k] = e.id;
+                m_events.push_back(std::move(e));
+            }
+        }
     }
     if (!m_rows) m_rows = std::make_unique<Rows>();
     m_rows->rows.push_back({m_outputs[k].name, survey_ns, recv_utc_ns, sentence, ok, error});
@@ -223,8 +272,9 @@ std::string HelmOutputs::summaryText(std::string_view cmd) const {
         const auto& c = m_counts[k];
         const std::string where = o.transport == "udp" ? fmt::format("udp {}:{}", o.host, o.port)
                                                        : fmt::format("serial {} {} baud", o.device, o.baud);
-        out += fmt::format("{}: output '{}' ({}): {} sentences sent, {} failed{}\n", cmd, o.name, where, c.sent,
-                           c.failed, c.failed > 0 ? fmt::format(" (last error: {})", c.last_error) : "");
+        out += fmt::format("{}: output '{}' ({}): {} sentences sent, {} failed{}{}\n", cmd, o.name, where, c.sent,
+                           c.failed, c.outages > 0 ? fmt::format(" in {} outage(s)", c.outages) : "",
+                           c.failed > 0 ? fmt::format(" (last error: {})", c.last_error) : "");
     }
     return out;
 }
@@ -232,6 +282,10 @@ std::string HelmOutputs::summaryText(std::string_view cmd) const {
 void HelmOutputs::takeRows(log::Batch& batch) {
     if (m_rows && !m_rows->rows.empty()) batch.extra.push_back(std::move(m_rows));
     m_rows.reset();
+    for (auto& e : m_events) batch.events.push_back(std::move(e));
+    for (auto& e : m_event_ends) batch.event_ends.push_back(e);
+    m_events.clear();
+    m_event_ends.clear();
 }
 
 }  // namespace sg::io

@@ -2,11 +2,13 @@
 // APB / RMB sentences at rate_hz on the survey clock, over UDP (one datagram per sentence) or a
 // serial port; and, on request, the infill plan as a route (WPL + RTE). Every sentence sent is
 // logged (table helm_sent, docs/log-schema.md); a failed send is logged with its error and
-// counted, never fatal. Single-threaded: call from the thread that feeds the Pipeline.
+// counted, never fatal. An output whose sends fail is in an outage from its first failed send to
+// its next good one: logged once (stderr, and an event `output_outage` when event ids are given). Single-threaded: call from the thread that feeds the Pipeline.
 // The steering data are advisory: the master decides on navigation.
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <string>
 #include <string_view>
@@ -38,6 +40,8 @@ struct HelmCounts {
     std::uint64_t sent = 0;    // sentences handed to the transport
     std::uint64_t failed = 0;  // sentences the transport refused (logged with the error)
     std::string last_error;
+    std::uint64_t outages = 0;  // runs of failed sends (each ended by a good send, or not yet)
+    bool in_outage = false;     // the last send failed
 };
 
 class HelmOutputs {
@@ -49,13 +53,17 @@ public:
     ~HelmOutputs();
 
     bool empty() const { return m_outputs.empty(); }
+    // Ids for the `output_outage` events (LogWriter::nextEventId). Without them an outage is
+    // still counted and reported on stderr, but not put in the log's events.
+    void setEventIds(std::function<std::int64_t()> next_event_id) { m_next_event_id = std::move(next_event_id); }
     // Sends each output's steering sentences when the survey clock has reached its next due time
     // (whole multiples of 1/rate_hz of survey time), at most once per due time. `recv_utc_ns`
     // is the wall (receive) clock, logged beside the survey time.
     void update(const engine::SurveyEngine& engine, TimeNs recv_utc_ns);
     // Sends `sentences` (e.g. helm::buildRoute) to every output now; returns how many failed.
     std::uint64_t sendNow(const std::vector<std::string>& sentences, TimeNs survey_ns, TimeNs recv_utc_ns);
-    // The helm_sent rows since the last call (a RowSet in batch.extra; nothing when none).
+    // The helm_sent rows since the last call (a RowSet in batch.extra; nothing when none), and the
+    // output_outage events started or ended since (batch.events, batch.event_ends).
     void takeRows(log::Batch& batch);
 
     const std::vector<helm::OutputConfig>& outputs() const { return m_outputs; }
@@ -73,6 +81,11 @@ private:
     std::vector<HelmCounts> m_counts;
     std::vector<TimeNs> m_next_due_ns;  // per output, survey time of the next send (0: first)
     std::unique_ptr<Rows> m_rows;
+    std::function<std::int64_t()> m_next_event_id;
+    std::vector<std::int64_t> m_outage_event;  // per output: the open outage's event id (0: none)
+    std::vector<TimeNs> m_outage_start_ns;     // per output: the open outage's start (wall clock)
+    std::vector<log::EventRow> m_events;
+    std::vector<log::EventEnd> m_event_ends;
 };
 
 }  // namespace sg::io

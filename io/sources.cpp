@@ -34,8 +34,9 @@ std::string deviceBusyMessage(const std::string& input, const std::string& devic
                        input, device, how);
 }
 
-// Takes the device for this descriptor alone. Empty when taken, else why not (busy: *busy).
-std::string takeExclusive(int fd, bool* busy) {
+}  // namespace
+
+std::string takeSerialExclusive(int fd, bool* busy) {
     *busy = false;
     if (::flock(fd, LOCK_EX | LOCK_NB) != 0) {
         *busy = errno == EWOULDBLOCK;
@@ -44,8 +45,6 @@ std::string takeExclusive(int fd, bool* busy) {
     if (::ioctl(fd, TIOCEXCL) != 0) return std::string("TIOCEXCL: ") + std::strerror(errno);
     return {};
 }
-
-}  // namespace
 
 void checkSerialDevicesFree(const std::vector<config::InputConfig>& inputs) {
     for (const auto& in : inputs) {
@@ -80,7 +79,7 @@ void SerialSource::reopen() {
     if (ec) return markLost(fmt::format("open {}: {}", m_settings.device, ec.message()));
     {
         bool busy = false;
-        const std::string why = takeExclusive(m_port.native_handle(), &busy);
+        const std::string why = takeSerialExclusive(m_port.native_handle(), &busy);
         if (!why.empty()) {
             error_code ignore;
             m_port.close(ignore);

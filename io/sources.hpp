@@ -84,6 +84,11 @@ private:
 // Fails (UdpSource::PortInUse) when a UDP input's listen address is held by another socket;
 // run before the log is created so a second recorder leaves nothing behind.
 void checkUdpPortsFree(const std::vector<config::InputConfig>& inputs);
+// Takes a serial device for descriptor `fd` alone: flock(LOCK_EX | LOCK_NB), then TIOCEXCL.
+// Empty when taken, else why not (*busy: another process holds the lock). Used by the serial
+// readers and by the helm's serial outputs.
+std::string takeSerialExclusive(int fd, bool* busy);
+
 // Fails (SerialSource::DeviceBusy) when a serial input's device is held by another process
 // (opened exclusively, or locked with flock); a device that does not exist (yet) passes: the
 // source waits for it.
