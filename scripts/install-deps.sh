@@ -13,7 +13,7 @@ pkgs=(
   socat libgeos-dev gdal-bin libxml2-utils poppler-utils libcairo2-dev libgdal-dev fonts-dejavu-core
   clang libclang-rt-14-dev
   gpsd-clients libxxhash-dev
-  nodejs
+  nodejs python3-nmea2
 )
 missing=()
 for p in "${pkgs[@]}"; do
