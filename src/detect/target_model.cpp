@@ -5,6 +5,7 @@
 #include <array>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 #include <utility>
 
 #include "common/config_section.hpp"
@@ -378,23 +379,94 @@ PeakTable::PeakTable(Orientation orientation, double inclination_rad, double rem
                 const double v = halfWidthSquaredFromG(mid, src);
                 (std::fabs(v - col[i]) < std::fabs(v - col[i + 1]) ? lo : hi) = mid;
             }
-            jump[i] = hi;
+            // A steep but continuous stretch also steps by more than kJumpWidth2 between
+            // nodes; only a step that stays when bisected is a jump.
+            const double below = halfWidthSquaredFromG(lo, src);
+            const double above = halfWidthSquaredFromG(hi, src);
+            if (std::fabs(above - below) > 0.5 * kJumpWidth2) jump[i] = hi;
         }
     }
-    // For each cell, the nearest cell holding a jump within kJumpBand cells (-1: none).
-    m_near_jump.assign(rows * kHeadingSteps, -1);
+    // Cells where bilinear interpolation is not trusted, because the half-width jumps (or bends
+    // sharply) next to them: in h (a jump found above in either heading column of the cell) or
+    // in heading (a second difference of (d/R_T)^2 across the heading columns above kJumpWidth2
+    // at one of the cell's corners: a step between columns, or a sharp kink, that a linear
+    // reading would carry into the cell). The nodes place a jump only to within about a cell
+    // (g is interpolated in depression), so the flag is widened by kJumpGuard cells every way;
+    // a flagged cell is read as the smallest node of the block of cells kJumpGuard around it:
+    // the lower branch, the safe side. tests/detect/test_swath_direct.cpp states the band.
+    auto w2At = [&](int j, int i) {
+        return m_width2[static_cast<std::size_t>((j + kHeadingSteps) % kHeadingSteps) * rows +
+                        static_cast<std::size_t>(std::clamp(i, 0, kHeightSteps))];
+    };
+    // A step between heading columns j and j + 1: the difference across the cell is large and
+    // not between the differences across the cells either side (at a kink, where the slope
+    // changes once, it lies between them; at a step or a narrow notch it does not).
+    auto headingStep = [&](int j, int i) {
+        const double dl = w2At(j, i) - w2At(j - 1, i);
+        const double dm = w2At(j + 1, i) - w2At(j, i);
+        const double dr = w2At(j + 2, i) - w2At(j + 1, i);
+        const double slack = 0.25 * std::fabs(dm);
+        return std::fabs(dm) > kJumpWidth2 &&
+               (dm < std::min(dl, dr) - slack || dm > std::max(dl, dr) + slack);
+    };
+    // A kink in heading next to the cell: a second difference above kKinkWidth2 at one of its
+    // columns. Read there as the two lines from the cells either side meeting (kinkRead).
+    auto headingKink = [&](int j, int i) {
+        return std::fabs(w2At(j - 1, i) - 2.0 * w2At(j, i) + w2At(j + 1, i)) > kKinkWidth2;
+    };
+    // The swath closing (the target straight below no longer detectable) between two nodes
+    // while the open node is still wide: the half-width drops to 0 at once there, while the
+    // stored negative continuation would interpolate it down gradually.
+    auto closing = [&](double a, double b) {
+        return (a <= 0.0 && b > 0.25 * kJumpWidth2) || (b <= 0.0 && a > 0.25 * kJumpWidth2);
+    };
+    auto closesInCell = [&](int j, int i) {
+        return closing(w2At(j, i), w2At(j + 1, i)) || closing(w2At(j, i + 1), w2At(j + 1, i + 1)) ||
+               closing(w2At(j, i), w2At(j, i + 1)) || closing(w2At(j + 1, i), w2At(j + 1, i + 1));
+    };
+    const auto at = [&](int jj, int ii) {
+        return static_cast<std::size_t>((jj + kHeadingSteps) % kHeadingSteps) * rows +
+               static_cast<std::size_t>(ii);
+    };
+    std::vector<std::uint8_t> jump_cell(rows * kHeadingSteps, 0);
+    m_kink_cell.assign(rows * kHeadingSteps, 0);
     for (int j = 0; j < kHeadingSteps; ++j) {
-        const double* jump = &m_jump_h[static_cast<std::size_t>(j) * rows];
-        std::int16_t* near = &m_near_jump[static_cast<std::size_t>(j) * rows];
         for (int i = 0; i < kHeightSteps; ++i) {
-            int best = -1;
-            for (int n = std::max(i - kJumpBand, 0); n <= std::min(i + kJumpBand, kHeightSteps - 1);
-                 ++n) {
-                if (jump[n] > 0.0 && (best < 0 || std::abs(n - i) < std::abs(best - i))) best = n;
-            }
-            near[i] = static_cast<std::int16_t>(best);
+            jump_cell[at(j, i)] = m_jump_h[at(j, i)] > 0.0 || m_jump_h[at(j + 1, i)] > 0.0 ||
+                                  headingStep(j, i) || headingStep(j, i + 1) ||
+                                  closesInCell(j, i);
+            m_kink_cell[at(j, i)] = headingKink(j, i) || headingKink(j + 1, i) ||
+                                    headingKink(j, i + 1) || headingKink(j + 1, i + 1);
         }
     }
+    m_cell_low.assign(rows * kHeadingSteps, std::numeric_limits<double>::quiet_NaN());
+    m_flagged_share = 0.0;
+    for (int j = 0; j < kHeadingSteps; ++j) {
+        for (int i = 0; i < kHeightSteps; ++i) {
+            bool near = false;
+            for (int dj = -kJumpGuard; dj <= kJumpGuard && !near; ++dj) {
+                for (int di = std::max(-kJumpGuard, -i); di <= kJumpGuard && i + di < kHeightSteps;
+                     ++di) {
+                    if (jump_cell[at(j + dj, i + di)]) {
+                        near = true;
+                        break;
+                    }
+                }
+            }
+            if (!near) continue;
+            double low = std::numeric_limits<double>::infinity();
+            for (int dj = -kJumpGuard; dj <= kJumpGuard + 1; ++dj) {
+                for (int di = -kJumpGuard; di <= kJumpGuard + 1; ++di) {
+                    low = std::min(low, w2At(j + dj, i + di));
+                }
+            }
+            m_cell_low[at(j, i)] = low;
+            m_flagged_share += 1.0;
+        }
+    }
+    m_flagged_share /= static_cast<double>(kHeightSteps * kHeadingSteps);
+    m_jump_h.clear();
+    m_jump_h.shrink_to_fit();
 }
 
 double PeakTable::peakFactor(double depression_rad, double heading_mag_rad, bool starboard) const {
@@ -445,6 +517,23 @@ double PeakTable::halfWidthSquaredFromG(double h, int heading_index) const {
     return d * d;
 }
 
+namespace {
+
+// Reading between nodes b (t = 0) and c (t = 1) of four equally spaced nodes a, b, c, d across a
+// kink: the line through a, b and the line through c, d, extended into the cell, meet at the
+// kink. Where the slope rises across the cell (a V) the true curve is the larger of the two
+// lines, where it falls (a peak) the smaller; each bounded by the straight line b-c, which is
+// the right reading when the lines do not meet inside the cell.
+double kinkRead(double a, double b, double c, double d, double t) {
+    const double lin = b + (c - b) * t;
+    const double left = b + (b - a) * t;
+    const double right = c - (d - c) * (1.0 - t);
+    if (d - c >= b - a) return std::min(lin, std::max(left, right));
+    return std::max(lin, std::min(left, right));
+}
+
+}  // namespace
+
 double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, bool starboard) const {
     if (!(h_norm >= 0.0) || h_norm >= kMaxHeightNorm) return 0.0;
     double hp = wrapTwoPi(starboard ? heading_mag_rad : heading_mag_rad + kPi) / kTwoPi *
@@ -459,45 +548,20 @@ double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, boo
     constexpr auto rows = static_cast<std::size_t>(kHeightSteps + 1);
     const std::size_t b0 = static_cast<std::size_t>(j0) * rows;
     const std::size_t b1 = static_cast<std::size_t>(j1) * rows;
-    const int n0 = m_near_jump[b0 + static_cast<std::size_t>(i0)];
-    const int n1 = m_near_jump[b1 + static_cast<std::size_t>(i0)];
-    if (n0 < 0 && n1 < 0) {  // the usual case: bilinear in (d/R_T)^2
-        const double* r0 = &m_width2[b0 + static_cast<std::size_t>(i0)];
-        const double* r1 = &m_width2[b1 + static_cast<std::size_t>(i0)];
-        const double w2 = (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) +
-                          wj * ((1 - wi) * r1[0] + wi * r1[1]);
-        return w2 > 0.0 ? std::sqrt(w2) : 0.0;
-    }
-    // A jump of the half-width (a dip of the peak along the offset crossing the threshold) lies
-    // within kJumpBand cells. Each column is read on one branch, before (pre) or after (post) the
-    // jump, extending that branch linearly past the jump where needed; the branch is chosen by
-    // the jump height interpolated between the columns.
-    auto branch = [&](std::size_t base, int n, bool pre) {
-        const double* c = &m_width2[base];
-        const double* jh = &m_jump_h[base];
-        if (n < 0 || (pre && n > i0) || (!pre && n < i0)) {
-            return (1 - wi) * c[i0] + wi * c[i0 + 1];
-        }
-        if (pre) {  // last node before the jump is n; slope of the cell below it
-            const double slope = n > 0 && !(jh[n - 1] > 0.0) ? c[n] - c[n - 1] : 0.0;
-            return c[n] + slope * (ip - n);
-        }
-        // first node after the jump is n + 1; slope of the cell above it
-        const double slope = n + 2 <= kHeightSteps && !(jh[n + 1] > 0.0) ? c[n + 2] - c[n + 1] : 0.0;
-        return c[n + 1] + slope * (ip - (n + 1));
-    };
-    double w2;
-    if (n0 >= 0 && n1 >= 0) {
-        const double h_jump = (1 - wj) * m_jump_h[b0 + static_cast<std::size_t>(n0)] +
-                              wj * m_jump_h[b1 + static_cast<std::size_t>(n1)];
-        const bool pre = h_norm < h_jump;
-        w2 = (1 - wj) * branch(b0, n0, pre) + wj * branch(b1, n1, pre);
-    } else {
-        // Only one column has the jump nearby: each column on its own side; where they differ by
-        // a jump's size it is not known which side this heading is on: the smaller (safe side).
-        const double v0 = branch(b0, n0, n0 >= 0 && h_norm < m_jump_h[b0 + static_cast<std::size_t>(n0)]);
-        const double v1 = branch(b1, n1, n1 >= 0 && h_norm < m_jump_h[b1 + static_cast<std::size_t>(n1)]);
-        w2 = std::fabs(v1 - v0) > kJumpWidth2 ? std::min(v0, v1) : (1 - wj) * v0 + wj * v1;
+    const double* r0 = &m_width2[b0 + static_cast<std::size_t>(i0)];
+    const double* r1 = &m_width2[b1 + static_cast<std::size_t>(i0)];
+    double w2 = m_cell_low[b0 + static_cast<std::size_t>(i0)];
+    if (!std::isnan(w2)) {
+        // next to a jump: the lowest node around (lower branch, safe side)
+    } else if (m_kink_cell[b0 + static_cast<std::size_t>(i0)] == 0) {  // the usual case: bilinear
+        w2 = (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) + wj * ((1 - wi) * r1[0] + wi * r1[1]);
+    } else {  // a kink in heading: per row, the lines of the columns either side meeting
+        const double* rm = &m_width2[static_cast<std::size_t>((j0 + kHeadingSteps - 1) % kHeadingSteps) * rows +
+                                     static_cast<std::size_t>(i0)];
+        const double* r2 = &m_width2[static_cast<std::size_t>((j1 + 1) % kHeadingSteps) * rows +
+                                     static_cast<std::size_t>(i0)];
+        w2 = (1 - wi) * kinkRead(rm[0], r0[0], r1[0], r2[0], wj) +
+             wi * kinkRead(rm[1], r0[1], r1[1], r2[1], wj);
     }
     return w2 > 0.0 ? std::sqrt(w2) : 0.0;
 }

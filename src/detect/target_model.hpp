@@ -119,6 +119,8 @@ public:
     Orientation orientation() const { return m_orientation; }
     double inclination_rad() const { return m_inclination_rad; }
     double remanence_ratio() const { return m_remanence_ratio; }
+    // Share of the (height x heading) cells read on the lower branch next to a jump, [0, 1].
+    double lowerBranchShare() const { return m_flagged_share; }
 
     // g at (depression, heading), target to starboard; port = starboard at heading + pi.
     double peakFactor(double depression_rad, double heading_mag_rad, bool starboard) const;
@@ -137,7 +139,8 @@ private:
     static constexpr int kHeightSteps = 560;   // 0 .. kMaxHeightNorm, steps of 0.0025
     static constexpr double kMaxHeightNorm = 1.4;  // > 2^(1/3): g <= 2 for any geometry
     static constexpr double kJumpWidth2 = 0.02;    // step between nodes marking a jump, (d/R_T)^2
-    static constexpr int kJumpBand = 24;           // cells around a height searched for a jump
+    static constexpr int kJumpGuard = 1;           // cells around a jump read on the lower branch
+    static constexpr double kKinkWidth2 = 0.004;   // second difference in heading marking a kink
 
     double halfWidthSquaredFromG(double h_norm, int heading_index) const;
 
@@ -146,9 +149,15 @@ private:
     double m_remanence_ratio;
     std::vector<double> m_g;       // (kDeprSteps + 1) x kHeadingSteps, starboard
     std::vector<double> m_width2;  // (kHeightSteps + 1) x kHeadingSteps, (d/R_T)^2, starboard
-    // Same layout: the normalised height of the jump in the cell [i, i+1], 0 when none.
+    // Same layout, during the build only: the normalised height of a jump in the cell [i, i+1]
+    // of one heading column, 0 when none.
     std::vector<double> m_jump_h;
-    std::vector<std::int16_t> m_near_jump;  // same layout: nearest cell with a jump, -1: none
+    // Same layout, per cell [i, i+1] x [j, j+1]: NaN (read bilinearly), or, within kJumpGuard
+    // cells of a jump in h or heading, the smallest (d/R_T)^2 of the nodes around, read instead.
+    std::vector<double> m_cell_low;
+    double m_flagged_share = 0.0;
+    // Same layout: 1 where a kink in heading lies next to the cell (read by kinkRead).
+    std::vector<std::uint8_t> m_kink_cell;
 };
 
 // One target class ready for per-sample use.
