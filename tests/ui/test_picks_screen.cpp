@@ -1,0 +1,330 @@
+// The screen's anomaly picks (docs/picks.md, docs/screen.md "Anomalies"): the pick marker drawn
+// where a pick of a synthetic snapshot projects, and not when the operator hides picks; the
+// "Anomalies" tab's row texts rounded as the figures mean; the conversion from the engine's pick
+// list to the snapshot; the marker's contrast. The display tests use the Xvfb environment of
+// test_screen.cpp (one test_ui binary).
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <string>
+
+#include "engine/snapshot_picks.hpp"
+#include "png_image.hpp"
+#include "synthetic_snapshot.hpp"
+#include "ui/layout.hpp"
+#include "ui/palette.hpp"
+#include "ui/picks_panel.hpp"
+#include "ui/plan_view.hpp"
+#include "ui/screen.hpp"
+
+namespace {
+
+namespace fs = std::filesystem;
+using sg::testdata::kOriginE;
+using sg::testdata::kOriginN;
+using sg::testui::Image;
+using sg::testui::near;
+
+// TEST DATA ONLY: three invented picks and a verification strip with one item passed three times.
+sg::engine::PicksView testPicks() {
+    sg::engine::PicksView v;
+    v.enabled = true;
+    v.caution = "a pick list is not a clearance; the project's risk assessment, local regulations and licensed "
+                "specialists decide";
+    auto pick = [](int id, double e, double n, const char* quality) {
+        sg::engine::PickView p;
+        p.id = id;
+        p.first_s = sg::testdata::kStartS + 600.0 * id + 0.6;
+        p.at = {kOriginE + e, kOriginN + n};
+        p.peak_nT = id == 2 ? -7.349 : 23.46;
+        p.width_m = 6.0;
+        p.altitude_m = 3.04;
+        p.burial_m = 1.249;
+        p.depth_below_sensor_m = 4.289;
+        p.moment_Am2 = 2.149;
+        p.mass_rule_kg = 46.6;
+        p.moment_model = "dipole, induced";
+        p.fit_r2 = 0.934;
+        p.snr = 4.06;
+        p.quality = quality;
+        p.runs = {"L02 run 1", "L03 run 1"};
+        return p;
+    };
+    v.picks = {pick(1, 820.0, 120.0, "strong"), pick(2, 300.0, 250.0, "fair"), pick(3, 150.0, 420.0, "weak")};
+    for (int k = 0; k < 3; ++k) {
+        sg::engine::VerificationPassView p;
+        p.item = "test item A";
+        p.target_class = "shell 155";
+        p.run = "L0" + std::to_string(k + 1) + " run 1";
+        p.sensor_slot = k;
+        p.offset_m = -1.5 + 1.5 * k;
+        p.altitude_m = 3.0;
+        p.threshold_nT = 2.0;
+        p.predicted_nT = 10.0 - k;
+        p.measured_nT = 7.0 - 0.7 * k;
+        p.ratio = p.measured_nT / p.predicted_nT;
+        p.predicted_detected = true;
+        p.detected = true;
+        v.passes.push_back(p);
+    }
+    v.verdicts.push_back({"shell 155", "too_optimistic",
+                          "shell 155: model too optimistic: measured peaks are 30 % below the prediction (median "
+                          "ratio 0.70 over 3 passes); the coverage claimed for this class must shrink: set "
+                          "moment_Am2 = 2.1 (was 3)",
+                          3, 3, 0.70});
+    return v;
+}
+
+std::shared_ptr<sg::engine::Snapshot> snapshotWithPicks() {
+    auto snap = sg::testdata::makeSyntheticSnapshot({});
+    snap->picks = std::make_shared<const sg::engine::PicksView>(testPicks());
+    return snap;
+}
+
+double fractionNear(const Image& img, ImVec2 c, int r, ImU32 colour, int tol) {
+    int hit = 0, all = 0;
+    for (int y = static_cast<int>(c.y) - r; y <= static_cast<int>(c.y) + r; ++y)
+        for (int x = static_cast<int>(c.x) - r; x <= static_cast<int>(c.x) + r; ++x) {
+            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
+            ++all;
+            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
+        }
+    return all ? static_cast<double>(hit) / all : 0.0;
+}
+
+// Pixels of `colour` in the square of half-side `outer` around c but outside the half-side `inner`.
+int countInRing(const Image& img, ImVec2 c, int inner, int outer, ImU32 colour, int tol) {
+    int hit = 0;
+    for (int y = static_cast<int>(c.y) - outer; y <= static_cast<int>(c.y) + outer; ++y)
+        for (int x = static_cast<int>(c.x) - outer; x <= static_cast<int>(c.x) + outer; ++x) {
+            if (std::abs(x - static_cast<int>(c.x)) <= inner && std::abs(y - static_cast<int>(c.y)) <= inner) continue;
+            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
+            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
+        }
+    return hit;
+}
+
+class PicksScreenTest : public ::testing::Test {
+protected:
+    Image render(std::shared_ptr<const sg::engine::Snapshot> snap, const std::string& name, const std::string& ini_text) {
+        const fs::path dir = fs::path(SG_BINARY_DIR) / "test_ui_out";
+        fs::create_directories(dir);
+        const std::string ini = (dir / (name + ".ini")).string();
+        std::ofstream(ini, std::ios::trunc) << ini_text;
+        sg::ui::SnapshotBox box;
+        sg::ui::CommandQueue commands;
+        box.publish(std::move(snap));
+        sg::ui::ScreenOptions o;
+        o.width = 1600;
+        o.height = 1000;
+        o.settings_path = ini;
+        o.screenshot_path = (dir / (name + ".png")).string();
+        o.after_frames = 4;
+        o.max_fps = 200;
+        EXPECT_EQ(sg::ui::runScreen(box, commands, o), 0);
+        return sg::testui::loadPng(o.screenshot_path);
+    }
+};
+
+TEST_F(PicksScreenTest, MarkerAtTheProjectedPickAndGoneWhenHidden) {
+    const auto snap = snapshotWithPicks();
+    const auto layout = sg::ui::computeLayout({1600, 1000}, 1.0f, false, /*banner=*/true);
+    const auto t = sg::ui::fitTransform(sg::ui::surveyBounds(*snap), layout.plan);
+    for (bool night : {false, true}) {
+        const auto& pal = sg::ui::paletteFor(night);
+        const std::string base = std::string("[screen]\npalette = ") + (night ? "night" : "day") +
+                                 "\nui_scale = 1.0\nfollow_vessel = false\ntab = Anomalies\n";
+        const std::string tag = night ? "night" : "day";
+        const Image shown = render(snap, "picks_shown_" + tag, base + "show_picks = true\n");
+        const Image hidden = render(snap, "picks_hidden_" + tag, base + "show_picks = false\n");
+        ASSERT_EQ(shown.w, 1600);
+        // Pick 1 (strong, filled) lies in covered ground 30 m south of line L02, away from tracks.
+        const ImVec2 c = t.toScreen(snapshotWithPicks()->picks->picks[0].at);
+        ASSERT_TRUE(layout.plan.contains(c));
+        const int rin = static_cast<int>(sg::ui::pickMarkerRadius(1.0f));  // 7 px
+        EXPECT_GT(fractionNear(shown, c, 2, pal.pick, 3), 0.95) << tag << ": no filled diamond at the pick";
+        // The halo: map background just outside the diamond's tips (tip at r, halo to r + 3).
+        int halo = 0;
+        for (ImVec2 d : {ImVec2{0, -1}, ImVec2{1, 0}, ImVec2{0, 1}, ImVec2{-1, 0}}) {
+            const ImVec2 p{c.x + d.x * (static_cast<float>(rin) + 1.5f), c.y + d.y * (static_cast<float>(rin) + 1.5f)};
+            halo += near(shown.at(static_cast<int>(p.x), static_cast<int>(p.y)), pal.background, 3) ? 1 : 0;
+        }
+        EXPECT_GE(halo, 3) << tag << ": no background halo round the diamond";
+        // Its label "P1" (text in the pick colour on a background plate) lies beside it.
+        // Its label "P1": glyphs in the pick colour on a plate of the map background, beside it in
+        // ground that is otherwise covered (coverage colours).
+        EXPECT_GE(countInRing(shown, c, rin + 4, 60, pal.pick, 30), 4) << tag << ": no label beside the pick";
+        EXPECT_GT(countInRing(shown, c, rin + 4, 60, pal.background, 3), 150) << tag << ": no label plate";
+        EXPECT_LT(countInRing(hidden, c, rin + 4, 60, pal.background, 3), 20) << tag;
+        // Hidden: neither marker nor label; the coverage colour is there instead.
+        EXPECT_LT(fractionNear(hidden, c, 2, pal.pick, 3), 0.01) << tag;
+        EXPECT_EQ(countInRing(hidden, c, rin + 4, 60, pal.pick, 3), 0) << tag;
+        const auto w = t.toWorld(c);
+        const ImU32 cover = pal.marginColour(sg::testdata::expectedMargin(w.e_m - kOriginE, w.n_m - kOriginN));
+        EXPECT_GT(fractionNear(hidden, c, 2, cover, 12), 0.8) << tag;
+        // Pick 3 (weak) is hollow: the pick colour on its outline, not at its centre.
+        const ImVec2 c3 = t.toScreen(snapshotWithPicks()->picks->picks[2].at);
+        EXPECT_LT(fractionNear(shown, c3, 1, pal.pick, 3), 0.2) << tag;
+        EXPECT_GT(countInRing(shown, c3, 3, rin, pal.pick, 3), 6) << tag;
+    }
+}
+
+// ---- rows of the "Anomalies" tab (no display) ------------------------------------------------
+
+TEST(PickRows, RoundedAsTheFiguresMean) {
+    const auto v = testPicks();
+    const sg::ui::PickRow r = sg::ui::pickRow(v.picks[0]);
+    EXPECT_EQ(r.id, "P1");
+    EXPECT_EQ(r.first_seen, "00:10:00");                   // kStartS is midnight UTC; 600.6 s later
+    EXPECT_EQ(r.position, "E 500820.0  N 5700120.0");      // 0.1 m (the report's rounding)
+    EXPECT_EQ(r.peak, "+23.5 nT");                          // signed, 0.1 nT
+    EXPECT_EQ(r.depth, "1.2 m (4.3 m)");                    // burial (depth below the sensor), 0.1 m
+    EXPECT_EQ(r.size, "2.1 A m², ~47 kg");                  // two significant figures
+    EXPECT_EQ(r.quality, "strong, r² 0.93, 4.1x thr");
+    EXPECT_EQ(r.runs, "L02 run 1, L03 run 1");
+    EXPECT_EQ(sg::ui::pickRow(v.picks[1]).peak, "-7.3 nT");
+    // No fit: no depth and no size, said as such.
+    sg::engine::PickView nofit = v.picks[2];
+    nofit.burial_m.reset();
+    nofit.depth_below_sensor_m.reset();
+    nofit.moment_Am2.reset();
+    nofit.mass_rule_kg.reset();
+    EXPECT_EQ(sg::ui::pickRow(nofit).depth, "-");
+    EXPECT_EQ(sg::ui::pickRow(nofit).size, "-");
+}
+
+TEST(PickRows, SignificantFiguresWithoutExponent) {
+    EXPECT_EQ(sg::ui::significant(2.149, 2), "2.1");
+    EXPECT_EQ(sg::ui::significant(1234.0, 2), "1200");
+    EXPECT_EQ(sg::ui::significant(0.04567, 2), "0.046");
+    EXPECT_EQ(sg::ui::significant(96.0, 2), "96");
+    EXPECT_EQ(sg::ui::significant(99.7, 2), "100");
+    EXPECT_EQ(sg::ui::significant(-3.05e-5, 1), "-0.00003");
+}
+
+TEST(PickRows, VerificationRowsAndTheReportsVerdictWords) {
+    const auto v = testPicks();
+    const auto r = sg::ui::verificationRow(v.passes[1]);
+    EXPECT_EQ(r.run, "L02 run 1");
+    EXPECT_EQ(r.offset, "+0.0 m");
+    EXPECT_EQ(r.predicted, "9.00 nT");
+    EXPECT_EQ(r.measured, "6.30 nT");
+    EXPECT_EQ(r.ratio, "0.70");
+    EXPECT_EQ(r.seen, "yes");
+    // The words of the report's sentences (detect/verification_strip.cpp: "model too optimistic").
+    EXPECT_EQ(sg::ui::verdictWords("too_optimistic"), "too optimistic");
+    EXPECT_NE(v.verdicts[0].text.find("model " + sg::ui::verdictWords(v.verdicts[0].verdict)), std::string::npos);
+    EXPECT_EQ(sg::ui::verdictWords("confirmed"), "confirmed");
+    EXPECT_EQ(sg::ui::verdictWords("not_enough_passes"), "not enough passes");
+    // A far pass (prediction under a tenth of the threshold, nothing measured) is not listed.
+    sg::engine::VerificationPassView far = v.passes[0];
+    far.predicted_nT = 0.15;
+    far.measured_nT = 1.0;
+    EXPECT_FALSE(sg::ui::verificationPassShown(far));
+    far.measured_nT = 2.5;
+    EXPECT_TRUE(sg::ui::verificationPassShown(far));
+}
+
+// ---- engine pick list -> snapshot -----------------------------------------------------------
+
+TEST(SnapshotPicks, CopiesTheEnginesFiguresAndNamesTheRuns) {
+    sg::engine::SurveyEngine::PicksNow now;
+    sg::detect::AnomalyPick k;
+    k.id = 4;
+    k.easting_m = 500010.25;
+    k.northing_m = 5700020.5;
+    k.peak_nT = -12.5;
+    k.burial_m = 0.8;
+    k.depth_below_sensor_m = 3.9;
+    k.moment_Am2 = 1.5;
+    k.quality = "fair";
+    k.runs = {1, 7};
+    k.first_t_ns = 1'767'225'600'500'000'000;
+    now.picks.push_back(k);
+    sg::detect::VerificationPass x;
+    x.item = "ring A";
+    x.run = 0;
+    x.predicted_nT = 4.0;
+    x.measured_nT = 5.0;
+    x.ratio = 1.25;
+    now.verification.passes.push_back(x);
+    sg::detect::ClassVerdict cv;
+    cv.target_class = "ring";
+    cv.verdict = "not_enough_passes";
+    cv.text = "ring: 1 pass(es) ...";
+    now.verification.verdicts.push_back(cv);
+    std::vector<sg::engine::RunView> runs(2);
+    runs[0].name = "L01 run 1";
+    runs[1].name = "L02 run 1";
+    const auto v = sg::engine::makePicksView(now, true, runs);
+    ASSERT_EQ(v.picks.size(), 1u);
+    const auto& p = v.picks[0];
+    EXPECT_EQ(p.id, 4);
+    EXPECT_DOUBLE_EQ(p.at.e_m, 500010.25);
+    EXPECT_DOUBLE_EQ(p.at.n_m, 5700020.5);
+    EXPECT_DOUBLE_EQ(p.first_s, 1767225600.5);
+    EXPECT_EQ(*p.burial_m, 0.8);
+    EXPECT_FALSE(p.mass_rule_kg.has_value());
+    // Run 1 is named from the snapshot's runs; run 7 is beyond them and numbered as the runs are.
+    ASSERT_EQ(p.runs.size(), 2u);
+    EXPECT_EQ(p.runs[0], "L02 run 1");
+    EXPECT_EQ(p.runs[1], "run 8");
+    ASSERT_EQ(v.passes.size(), 1u);
+    EXPECT_EQ(v.passes[0].run, "L01 run 1");
+    EXPECT_DOUBLE_EQ(v.passes[0].ratio, 1.25);
+    ASSERT_EQ(v.verdicts.size(), 1u);
+    EXPECT_EQ(v.verdicts[0].verdict, "not_enough_passes");
+    EXPECT_NE(v.caution.find("not a clearance"), std::string::npos);
+}
+
+// ---- contrast of the marker ----------------------------------------------------------------
+// WCAG 2.1 "relative luminance" and "contrast ratio" (https://www.w3.org/TR/WCAG21/), sRGB
+// linearisation from IEC 61966-2-1; CIE76 Delta E*ab from CIE 15:2004 (D65). Implemented here,
+// apart from tests/ui/test_palette.cpp and the code under test.
+
+double linear(std::uint8_t c8) {
+    const double c = c8 / 255.0;
+    return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4);
+}
+double luminance(sg::colour::Rgb8 c) { return 0.2126 * linear(c.r) + 0.7152 * linear(c.g) + 0.0722 * linear(c.b); }
+double contrast(sg::colour::Rgb8 a, sg::colour::Rgb8 b) {
+    const double la = luminance(a), lb = luminance(b);
+    return (std::max(la, lb) + 0.05) / (std::min(la, lb) + 0.05);
+}
+std::array<double, 3> lab(sg::colour::Rgb8 c) {
+    const double r = linear(c.r), g = linear(c.g), b = linear(c.b);
+    const double x = (0.4124 * r + 0.3576 * g + 0.1805 * b) / 0.95047;
+    const double y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
+    const double z = (0.0193 * r + 0.1192 * g + 0.9505 * b) / 1.08883;
+    auto f = [](double t) { return t > 216.0 / 24389.0 ? std::cbrt(t) : (24389.0 / 27.0 * t + 16.0) / 116.0; };
+    return {116.0 * f(y) - 16.0, 500.0 * (f(x) - f(y)), 200.0 * (f(y) - f(z))};
+}
+double deltaE76(sg::colour::Rgb8 a, sg::colour::Rgb8 b) {
+    const auto p = lab(a), q = lab(b);
+    return std::sqrt((p[0] - q[0]) * (p[0] - q[0]) + (p[1] - q[1]) * (p[1] - q[1]) + (p[2] - q[2]) * (p[2] - q[2]));
+}
+
+TEST(PickMarkerContrast, DayAndNightOnItsHaloAndApartFromGaps) {
+    for (bool dark : {false, true}) {
+        const auto& s = sg::colour::scheme(dark);
+        // The diamond and its label sit on the map background (halo, label plate): >= 3:1
+        // (WCAG 2.1 SC 1.4.11 for graphical objects).
+        EXPECT_GE(contrast(s.pick, s.background), 3.0) << s.name;
+        // Distinct in colour from the gap outline and the forming-gap ring (both the gap colour)
+        // and from the infill lines: >= 20 Delta E76 (the colour code's rule).
+        EXPECT_GE(deltaE76(s.pick, s.gap), 20.0) << s.name;
+        EXPECT_GE(deltaE76(s.pick, s.infill), 20.0) << s.name;
+        std::printf("%s: pick on background %.2f:1, Delta E76 to gap %.1f\n", s.name, contrast(s.pick, s.background),
+                    deltaE76(s.pick, s.gap));
+    }
+    // The palettes carry the shared colours unchanged.
+    EXPECT_EQ(sg::ui::dayPalette().pick, sg::ui::toImU32(sg::colour::kLight.pick));
+    EXPECT_EQ(sg::ui::nightPalette().pick, sg::ui::toImU32(sg::colour::kDark.pick));
+}
+
+}  // namespace
