@@ -59,6 +59,7 @@ PickRow pickRow(const engine::PickView& p) {
 VerificationRow verificationRow(const engine::VerificationPassView& p) {
     VerificationRow r;
     char buf[64];
+    r.time = formatUtcTime(p.t_s);
     r.item = p.item;
     r.run = p.run;
     r.sensor = std::to_string(p.sensor_slot);
@@ -79,6 +80,53 @@ VerificationRow verificationRow(const engine::VerificationPassView& p) {
 
 bool verificationPassShown(const engine::VerificationPassView& p) {
     return !(p.predicted_nT < 0.1 * p.threshold_nT && p.measured_nT < p.threshold_nT);
+}
+
+std::vector<const engine::VerificationPassView*> shownPassesNewestFirst(const engine::PicksView& v) {
+    std::vector<const engine::VerificationPassView*> out;
+    for (const auto& p : v.passes)
+        if (verificationPassShown(p)) out.push_back(&p);
+    // A pass is one line run by one item, seen by each sensor at nearly the same moment: group the
+    // sensors of a pass under the pass's latest time, the sensor with the largest prediction
+    // (the nearest) first.
+    const auto passTime = [&](const engine::VerificationPassView* p) {
+        double t = p->t_s;
+        for (const auto* q : out)
+            if (q->item == p->item && q->run == p->run) t = std::max(t, q->t_s);
+        return t;
+    };
+    std::stable_sort(out.begin(), out.end(), [&](const auto* a, const auto* b) {
+        const double ta = passTime(a), tb = passTime(b);
+        if (ta != tb) return ta > tb;
+        if (a->item != b->item) return a->item < b->item;
+        return a->predicted_nT > b->predicted_nT;
+    });
+    return out;
+}
+
+std::string latestPassText(const engine::PicksView& v) {
+    const auto shown = shownPassesNewestFirst(v);
+    if (shown.empty()) return {};
+    const engine::VerificationPassView& p = *shown.front();
+    const VerificationRow r = verificationRow(p);
+    return "latest pass " + r.time + "  " + r.item + ", " + r.run + ", sensor " + r.sensor + " at " + r.offset + ", " +
+           r.altitude + " up: predicted " + r.predicted + ", measured " + r.measured + ", ratio " + r.ratio + ", " +
+           (p.detected ? "seen" : "not seen") + " (model: " + (p.predicted_detected ? "seen" : "not seen") + ")";
+}
+
+std::string verificationHeadline(const engine::PicksView& v) {
+    std::string h = "Known-item check: ";
+    if (v.verdicts.empty()) return h + "no known item";
+    char buf[64];
+    for (std::size_t i = 0; i < v.verdicts.size(); ++i) {
+        const auto& c = v.verdicts[i];
+        h += (i ? "; " : "") + c.target_class + " " + verdictWords(c.verdict);
+        if (c.passes_used > 0) {
+            std::snprintf(buf, sizeof buf, ", ratio %.2f", c.median_ratio);
+            h += buf;
+        }
+    }
+    return h + " (" + std::to_string(v.passes.size()) + (v.passes.size() == 1 ? " pass)" : " passes)");
 }
 
 std::string verdictWords(const std::string& verdict) {
@@ -128,8 +176,8 @@ public:
             char head[64];
             std::snprintf(head, sizeof head, "Picks (%zu)###picks", v->picks.size());
             if (ImGui::CollapsingHeader(head, ImGuiTreeNodeFlags_DefaultOpen)) drawPicks(ctx, *v);
-            std::snprintf(head, sizeof head, "Known-item check (%zu passes)###known", v->passes.size());
-            if (ImGui::CollapsingHeader(head, ImGuiTreeNodeFlags_DefaultOpen)) drawVerification(pal, *v);
+            const std::string known = verificationHeadline(*v) + "###known";
+            if (ImGui::CollapsingHeader(known.c_str(), ImGuiTreeNodeFlags_DefaultOpen)) drawVerification(pal, *v);
         }
         ImGui::EndChild();
     }
@@ -190,24 +238,30 @@ private:
             ImGui::TextWrapped("%s", c.text.c_str());
         }
         for (const auto& u : v.unplaced) ImGui::TextWrapped("not placed (no survey CRS): %s", u.c_str());
-        std::size_t hidden = 0;
-        for (const auto& p : v.passes) hidden += verificationPassShown(p) ? 0 : 1;
         if (v.passes.empty()) {
             ImGui::TextDisabled("No pass near a known item yet.");
             return;
         }
-        const std::size_t shown = v.passes.size() - hidden;
-        if (shown > 0 && ImGui::BeginTable("verification", 10, kTableFlags, tableSize(shown))) {
-            for (const char* h : {"item", "run", "sensor", "offset", "altitude", "predicted", "measured", "ratio",
-                                  "model: seen", "seen"})
+        // Newest first: the pass just run is the top row and the line above the table.
+        const auto shown = shownPassesNewestFirst(v);
+        const std::size_t hidden = v.passes.size() - shown.size();
+        if (!shown.empty()) {
+            // Warning colour when the model said the item would be seen and it was not.
+            const bool missed = shown.front()->predicted_detected && !shown.front()->detected;
+            ImGui::PushStyleColor(ImGuiCol_Text, missed ? pal.warn : pal.text);
+            ImGui::TextWrapped("%s", latestPassText(v).c_str());
+            ImGui::PopStyleColor();
+        }
+        if (!shown.empty() && ImGui::BeginTable("verification", 11, kTableFlags, tableSize(shown.size()))) {
+            for (const char* h : {"passed", "item", "run", "sensor", "offset", "altitude", "predicted", "measured",
+                                  "ratio", "model: seen", "seen"})
                 ImGui::TableSetupColumn(h);
             ImGui::TableSetupScrollFreeze(1, 1);
             ImGui::TableHeadersRow();
-            for (const auto& p : v.passes) {
-                if (!verificationPassShown(p)) continue;
-                const VerificationRow r = verificationRow(p);
+            for (const auto* p : shown) {
+                const VerificationRow r = verificationRow(*p);
                 ImGui::TableNextRow();
-                for (const std::string* t : {&r.item, &r.run, &r.sensor, &r.offset, &r.altitude, &r.predicted,
+                for (const std::string* t : {&r.time, &r.item, &r.run, &r.sensor, &r.offset, &r.altitude, &r.predicted,
                                              &r.measured, &r.ratio, &r.model_sees, &r.seen}) {
                     ImGui::TableNextColumn();
                     ImGui::TextUnformatted(t->c_str());

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <string>
+#include <vector>
 
 #include <imgui.h>
 
@@ -32,12 +33,27 @@ std::string pickLabel(const engine::PickView& p);
 std::string significant(double v, int digits);
 
 struct VerificationRow {
+    std::string time;  // closest approach, survey clock "hh:mm:ss" UTC
     std::string item, run, sensor, offset, altitude, predicted, measured, ratio, model_sees, seen;
 };
 VerificationRow verificationRow(const engine::VerificationPassView& p);
 // The report's table skips passes far from the item (prediction under a tenth of the threshold
 // and nothing measured); the screen does the same.
 bool verificationPassShown(const engine::VerificationPassView& p);
+
+// The passes the screen lists, newest first (closest approach on the survey clock), so a pass
+// just run is the top row while the passes are run; the sensors of one pass (one item, one line
+// run) together, the one with the largest prediction (nearest the item) first.
+std::vector<const engine::VerificationPassView*> shownPassesNewestFirst(const engine::PicksView& v);
+
+// One line for the newest listed pass: "latest pass 08:12:03  shell B, HF03 run 1, sensor 2 at
+// -1.2 m, 8.7 m up: predicted 9.00 nT, measured 6.30 nT, ratio 0.70, seen (model: seen)".
+// Empty when no pass is listed.
+std::string latestPassText(const engine::PicksView& v);
+
+// The known-item check's header, readable while collapsed: "Known-item check: small shell too
+// optimistic, ratio 0.70 (6 passes)"; one entry per class, "; " between them.
+std::string verificationHeadline(const engine::PicksView& v);
 
 // "confirmed", "too optimistic", "conservative", "not enough passes": the words the report's
 // verdict sentences use (detect/verification_strip.cpp).
