@@ -107,7 +107,9 @@ std::vector<const engine::VerificationPassView*> shownPassesNewestFirst(const en
 std::string latestPassText(const engine::PicksView& v) {
     const auto shown = shownPassesNewestFirst(v);
     if (shown.empty()) return {};
-    const engine::VerificationPassView& p = *shown.front();
+    // The newest pass the verdict counts (the model predicts a detection there), else the newest.
+    const auto counted = std::find_if(shown.begin(), shown.end(), [](const auto* q) { return q->predicted_detected; });
+    const engine::VerificationPassView& p = counted != shown.end() ? **counted : *shown.front();
     const VerificationRow r = verificationRow(p);
     return "latest pass " + r.time + "  " + r.item + ", " + r.run + ", sensor " + r.sensor + " at " + r.offset + ", " +
            r.altitude + " up: predicted " + r.predicted + ", measured " + r.measured + ", ratio " + r.ratio + ", " +
@@ -171,8 +173,9 @@ public:
         } else if (!v->enabled) {
             ImGui::TextDisabled("Picking is switched off ([picks] enabled = false).");
         } else {
-            if (ctx.settings && ImGui::Checkbox("Show picks on the plan", &ctx.settings->show_picks))
-                ctx.settings_changed = true;
+            // What changes as the passes are run comes first, readable without scrolling at large
+            // UI scales; the lists follow. (Picks on the plan: the plan view's "Picks" toggle.)
+            drawVerificationStatus(pal, *v);
             char head[64];
             std::snprintf(head, sizeof head, "Picks (%zu)###picks", v->picks.size());
             if (ImGui::CollapsingHeader(head, ImGuiTreeNodeFlags_DefaultOpen)) drawPicks(ctx, *v);
@@ -223,35 +226,49 @@ private:
         ImGui::EndTable();
     }
 
-    static void drawVerification(const Palette& pal, const engine::PicksView& v) {
+    static ImU32 verdictColour(const Palette& pal, const std::string& verdict) {
+        return verdict == "too_optimistic" ? pal.alarm : verdict == "confirmed" ? pal.ok : pal.text;
+    }
+
+    // One line per class with its verdict (in the verdict's colour), then the latest pass.
+    static void drawVerificationStatus(const Palette& pal, const engine::PicksView& v) {
         if (v.verdicts.empty()) {
             ImGui::TextDisabled("No [[known_item]] configured: the detection model is not checked on the water.");
             return;
         }
         for (const auto& c : v.verdicts) {
-            const ImU32 colour = c.verdict == "too_optimistic" ? pal.alarm
-                                 : c.verdict == "confirmed"    ? pal.ok
-                                                               : pal.text;
-            ImGui::PushStyleColor(ImGuiCol_Text, colour);
-            ImGui::Text("%s: %s", c.target_class.c_str(), verdictWords(c.verdict).c_str());
+            ImGui::PushStyleColor(ImGuiCol_Text, verdictColour(pal, c.verdict));
+            if (c.passes_used > 0)
+                ImGui::TextWrapped("Known items, %s: %s (median ratio %.2f over %d passes)", c.target_class.c_str(),
+                                   verdictWords(c.verdict).c_str(), c.median_ratio, c.passes_used);
+            else
+                ImGui::TextWrapped("Known items, %s: %s", c.target_class.c_str(), verdictWords(c.verdict).c_str());
             ImGui::PopStyleColor();
-            ImGui::TextWrapped("%s", c.text.c_str());
         }
+        const auto shown = shownPassesNewestFirst(v);
+        if (shown.empty()) {
+            ImGui::TextDisabled("No pass near a known item yet.");
+            return;
+        }
+        // Alarm colour when the model said the item would be seen and it was not.
+        const auto counted = std::find_if(shown.begin(), shown.end(), [](const auto* q) { return q->predicted_detected; });
+        const bool missed = counted != shown.end() && !(*counted)->detected;
+        ImGui::PushStyleColor(ImGuiCol_Text, missed ? pal.alarm : pal.text);
+        ImGui::TextWrapped("%s", latestPassText(v).c_str());
+        ImGui::PopStyleColor();
+    }
+
+    static void drawVerification(const Palette&, const engine::PicksView& v) {
+        if (v.verdicts.empty()) return;
+        for (const auto& c : v.verdicts) ImGui::TextWrapped("%s", c.text.c_str());
         for (const auto& u : v.unplaced) ImGui::TextWrapped("not placed (no survey CRS): %s", u.c_str());
         if (v.passes.empty()) {
             ImGui::TextDisabled("No pass near a known item yet.");
             return;
         }
-        // Newest first: the pass just run is the top row and the line above the table.
+        // Newest first: the pass just run is the top row.
         const auto shown = shownPassesNewestFirst(v);
         const std::size_t hidden = v.passes.size() - shown.size();
-        if (!shown.empty()) {
-            // Warning colour when the model said the item would be seen and it was not.
-            const bool missed = shown.front()->predicted_detected && !shown.front()->detected;
-            ImGui::PushStyleColor(ImGuiCol_Text, missed ? pal.warn : pal.text);
-            ImGui::TextWrapped("%s", latestPassText(v).c_str());
-            ImGui::PopStyleColor();
-        }
         if (!shown.empty() && ImGui::BeginTable("verification", 11, kTableFlags, tableSize(shown.size()))) {
             for (const char* h : {"passed", "item", "run", "sensor", "offset", "altitude", "predicted", "measured",
                                   "ratio", "model: seen", "seen"})

@@ -46,9 +46,10 @@ bool verificationPassShown(const engine::VerificationPassView& p);
 // run) together, the one with the largest prediction (nearest the item) first.
 std::vector<const engine::VerificationPassView*> shownPassesNewestFirst(const engine::PicksView& v);
 
-// One line for the newest listed pass: "latest pass 08:12:03  shell B, HF03 run 1, sensor 2 at
-// -1.2 m, 8.7 m up: predicted 9.00 nT, measured 6.30 nT, ratio 0.70, seen (model: seen)".
-// Empty when no pass is listed.
+// One line for the newest pass the verdict counts (the model predicts a detection there; else
+// the newest listed pass): "latest pass 08:12:03  shell B, HF03 run 1, sensor 2 at -1.2 m, 8.7 m
+// up: predicted 9.00 nT, measured 6.30 nT, ratio 0.70, seen (model: seen)". Empty when no pass
+// is listed.
 std::string latestPassText(const engine::PicksView& v);
 
 // The known-item check's header, readable while collapsed: "Known-item check: small shell too

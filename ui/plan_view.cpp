@@ -523,6 +523,15 @@ private:
         const std::vector<LabelSpot> around{LabelSpot::kRight,      LabelSpot::kLeft,       LabelSpot::kAbove,
                                             LabelSpot::kBelow,      LabelSpot::kAboveRight, LabelSpot::kBelowRight,
                                             LabelSpot::kAboveLeft,  LabelSpot::kBelowLeft};
+        // Pick markers are drawn after the labels: no label may cover one (halo included), so
+        // they are blocked before any label is placed.
+        if (show_picks) {
+            const float r = pickMarkerRadius(sc) + 3 * sc;
+            for (const auto& p : s.picks->picks) {
+                const ImVec2 c = m_t.toScreen(p.at);
+                if (rect.contains(c)) placer.block({{c.x - r, c.y - r}, {c.x + r, c.y + r}});
+            }
+        }
         // The forming gap first (its marker is drawn after the labels, so keep its ring clear).
         if (s.forming_gap.active) {
             const ImVec2 c = m_t.toScreen(s.forming_gap.at);
@@ -553,12 +562,7 @@ private:
             put(m_t.toScreen(gap_view.centroid), text, pal.gap, around);
         }
         if (show_picks) {
-            // Pick markers are drawn after the labels: no label may cover one (halo included).
             const float r = pickMarkerRadius(sc) + 3 * sc;
-            for (const auto& p : s.picks->picks) {
-                const ImVec2 c = m_t.toScreen(p.at);
-                if (rect.contains(c)) placer.block({{c.x - r, c.y - r}, {c.x + r, c.y + r}});
-            }
             for (const auto& p : s.picks->picks) {
                 const ImVec2 c = m_t.toScreen(p.at);
                 if (!rect.contains(c)) continue;

@@ -19,6 +19,7 @@
 #include "engine/pipeline.hpp"
 #include "engine/snapshot_builder.hpp"
 #include "engine/snapshot_picks.hpp"
+#include "colour_measure.hpp"
 #include "png_image.hpp"
 #include "synthetic_snapshot.hpp"
 #include "ui/layout.hpp"
@@ -298,7 +299,17 @@ TEST_F(PicksScreenTest, VerificationShownLiveAsPassesAreRun) {
             before = snap;
         } else {
             if (first_pass_s < 0) first_pass_s = t + 60.0;
-            EXPECT_NE(sg::ui::latestPassText(v).find(sg::ui::verificationRow(*shown.front()).time), std::string::npos);
+            // The latest pass line names the newest pass the verdict counts, else the newest.
+            const auto* expect = shown.front();
+            for (const auto* q : shown)
+                if (q->predicted_detected) {
+                    expect = q;
+                    break;
+                }
+            const auto row = sg::ui::verificationRow(*expect);
+            EXPECT_NE(sg::ui::latestPassText(v).find(row.time + "  " + row.item + ", " + row.run + ", sensor " + row.sensor),
+                      std::string::npos)
+                << sg::ui::latestPassText(v);
         }
         if (v.verdicts[0].verdict == "too_optimistic") {
             after = snap;
@@ -434,6 +445,52 @@ TEST(PickRows, VerificationRowsAndTheReportsVerdictWords) {
     EXPECT_TRUE(sg::ui::verificationPassShown(far));
 }
 
+TEST(PickRows, LatestPassAndHeadlineWhilePassesAreRun) {
+    auto v = testPicks();
+    // Three passes of "test item A", one per line run, 10 minutes apart; the middle one is the newest.
+    v.passes[0].t_s = sg::testdata::kStartS + 600.0;
+    v.passes[1].t_s = sg::testdata::kStartS + 1800.0;
+    v.passes[2].t_s = sg::testdata::kStartS + 1200.0;
+    const auto shown = sg::ui::shownPassesNewestFirst(v);
+    ASSERT_EQ(shown.size(), 3u);
+    EXPECT_EQ(shown[0]->run, "L02 run 1");
+    EXPECT_EQ(shown[1]->run, "L03 run 1");
+    EXPECT_EQ(shown[2]->run, "L01 run 1");
+    EXPECT_EQ(sg::ui::latestPassText(v),
+              "latest pass 00:30:00  test item A, L02 run 1, sensor 1 at +0.0 m, 3.0 m up: predicted 9.00 nT, "
+              "measured 6.30 nT, ratio 0.70, seen (model: seen)");
+    EXPECT_EQ(sg::ui::verificationHeadline(v), "Known-item check: shell 155 too optimistic, ratio 0.70 (3 passes)");
+    // A newer pass where the model predicts nothing is listed first but the line keeps the
+    // newest pass the verdict counts; a missed one reads "not seen".
+    sg::engine::VerificationPassView far = v.passes[0];
+    far.t_s = sg::testdata::kStartS + 2400.0;
+    far.run = "L04 run 1";
+    far.predicted_nT = 1.0;  // half the threshold: listed, not counted
+    far.predicted_detected = false;
+    far.measured_nT = 0.5;
+    far.detected = false;
+    v.passes.push_back(far);
+    v.passes[1].detected = false;
+    EXPECT_EQ(sg::ui::shownPassesNewestFirst(v).front()->run, "L04 run 1");
+    EXPECT_NE(sg::ui::latestPassText(v).find("L02 run 1"), std::string::npos);
+    EXPECT_NE(sg::ui::latestPassText(v).find("not seen (model: seen)"), std::string::npos);
+    // The sensors of one pass together, the nearest (largest prediction) first.
+    sg::engine::VerificationPassView other = v.passes[1];
+    other.sensor_slot = 3;
+    other.predicted_nT = 12.0;
+    other.t_s -= 2.0;
+    v.passes.push_back(other);
+    const auto again = sg::ui::shownPassesNewestFirst(v);
+    ASSERT_EQ(again.size(), 5u);
+    EXPECT_EQ(again[1]->run, "L02 run 1");
+    EXPECT_EQ(again[1]->sensor_slot, 3);
+    EXPECT_EQ(again[2]->sensor_slot, 1);
+    v.passes.clear();
+    EXPECT_EQ(sg::ui::latestPassText(v), "");
+    v.verdicts.clear();
+    EXPECT_EQ(sg::ui::verificationHeadline(v), "Known-item check: no known item");
+}
+
 // ---- engine pick list -> snapshot -----------------------------------------------------------
 
 TEST(SnapshotPicks, CopiesTheEnginesFiguresAndNamesTheRuns) {
@@ -486,57 +543,57 @@ TEST(SnapshotPicks, CopiesTheEnginesFiguresAndNamesTheRuns) {
     EXPECT_NE(v.caution.find("not a clearance"), std::string::npos);
 }
 
-// ---- contrast of the marker ----------------------------------------------------------------
-// WCAG 2.1 "relative luminance" and "contrast ratio" (https://www.w3.org/TR/WCAG21/), sRGB
-// linearisation from IEC 61966-2-1; CIE76 Delta E*ab from CIE 15:2004 (D65). Implemented here,
-// apart from tests/ui/test_palette.cpp and the code under test.
+// ---- contrast of the marker and of the tab's text ---------------------------------------------
+// Measured as tests/ui/test_palette.cpp measures the colour code: WCAG 2.1 contrast ratio and CIE76
+// Delta E*ab, the formulas of colour_measure.hpp.
 
-double linear(std::uint8_t c8) {
-    const double c = c8 / 255.0;
-    return c <= 0.04045 ? c / 12.92 : std::pow((c + 0.055) / 1.055, 2.4);
-}
-double luminance(sg::colour::Rgb8 c) { return 0.2126 * linear(c.r) + 0.7152 * linear(c.g) + 0.0722 * linear(c.b); }
-double contrast(sg::colour::Rgb8 a, sg::colour::Rgb8 b) {
-    const double la = luminance(a), lb = luminance(b);
-    return (std::max(la, lb) + 0.05) / (std::min(la, lb) + 0.05);
-}
-std::array<double, 3> lab(sg::colour::Rgb8 c) {
-    const double r = linear(c.r), g = linear(c.g), b = linear(c.b);
-    const double x = (0.4124 * r + 0.3576 * g + 0.1805 * b) / 0.95047;
-    const double y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
-    const double z = (0.0193 * r + 0.1192 * g + 0.9505 * b) / 1.08883;
-    auto f = [](double t) { return t > 216.0 / 24389.0 ? std::cbrt(t) : (24389.0 / 27.0 * t + 16.0) / 116.0; };
-    return {116.0 * f(y) - 16.0, 500.0 * (f(x) - f(y)), 200.0 * (f(y) - f(z))};
-}
-double deltaE76(sg::colour::Rgb8 a, sg::colour::Rgb8 b) {
-    const auto p = lab(a), q = lab(b);
-    return std::sqrt((p[0] - q[0]) * (p[0] - q[0]) + (p[1] - q[1]) * (p[1] - q[1]) + (p[2] - q[2]) * (p[2] - q[2]));
-}
+using sg::testui::contrastRatio;
+using sg::testui::deltaE76;
+using sg::testui::rgb8;
 
-double contrastOnImage(ImU32 a, ImU32 b) {
-    const auto rgb = [](ImU32 c) {
-        return sg::colour::Rgb8{static_cast<std::uint8_t>(c >> IM_COL32_R_SHIFT), static_cast<std::uint8_t>(c >> IM_COL32_G_SHIFT),
-                                static_cast<std::uint8_t>(c >> IM_COL32_B_SHIFT)};
-    };
-    return contrast(rgb(a), rgb(b));
-}
+double contrastOnImage(ImU32 a, ImU32 b) { return contrastRatio(rgb8(a), rgb8(b)); }
 
 TEST(PickMarkerContrast, DayAndNightOnItsHaloAndApartFromGaps) {
     for (bool dark : {false, true}) {
         const auto& s = sg::colour::scheme(dark);
         // The diamond and its label sit on the map background (halo, label plate): >= 3:1
         // (WCAG 2.1 SC 1.4.11 for graphical objects).
-        EXPECT_GE(contrast(s.pick, s.background), 3.0) << s.name;
+        EXPECT_GE(contrastRatio(s.pick, s.background), 3.0) << s.name;
         // Distinct in colour from the gap outline and the forming-gap ring (both the gap colour)
         // and from the infill lines: >= 20 Delta E76 (the colour code's rule).
         EXPECT_GE(deltaE76(s.pick, s.gap), 20.0) << s.name;
         EXPECT_GE(deltaE76(s.pick, s.infill), 20.0) << s.name;
-        std::printf("%s: pick on background %.2f:1, Delta E76 to gap %.1f\n", s.name, contrast(s.pick, s.background),
+        std::printf("%s: pick on background %.2f:1, Delta E76 to gap %.1f\n", s.name, contrastRatio(s.pick, s.background),
                     deltaE76(s.pick, s.gap));
     }
     // The palettes carry the shared colours unchanged.
     EXPECT_EQ(sg::ui::dayPalette().pick, sg::ui::toImU32(sg::colour::kLight.pick));
     EXPECT_EQ(sg::ui::nightPalette().pick, sg::ui::toImU32(sg::colour::kDark.pick));
+}
+
+}  // namespace
+
+namespace {
+
+// The "Anomalies" tab's text (caution, rows, the verdict and the latest pass) on the tab's window
+// background, day and night: each colour it uses >= 3:1, the rule of the colour code
+// (test_palette.cpp). Measured against the style's window colour (ui::applyPaletteToStyle).
+TEST(PickMarkerContrast, AnomaliesTabTextOnItsWindow) {
+    for (const auto* pal : {&sg::ui::dayPalette(), &sg::ui::nightPalette()}) {
+        ImGuiStyle style;
+        sg::ui::applyPaletteToStyle(*pal, style);
+        const auto bg = rgb8(style.Colors[ImGuiCol_WindowBg]);
+        const std::pair<const char*, ImU32> used[] = {{"text", pal->text},
+                                                      {"secondary text", pal->text_dim},
+                                                      {"caution", pal->caution},
+                                                      {"verdict too optimistic, missed pass", pal->alarm},
+                                                      {"verdict confirmed", pal->ok}};
+        for (const auto& [what, colour] : used) {
+            const double cr = contrastRatio(rgb8(colour), bg);
+            std::printf("  %-5s %-36s %5.2f:1\n", pal->name, what, cr);
+            EXPECT_GE(cr, 3.0) << pal->name << ": " << what;
+        }
+    }
 }
 
 }  // namespace
