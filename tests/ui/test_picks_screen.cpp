@@ -383,6 +383,9 @@ TEST_F(PicksScreenTest, DemoWithKnownItemsScreenshots) {
                 const ImU32 halo = img.at(static_cast<int>(c.x) + r + static_cast<int>(1.5f * scale), static_cast<int>(c.y));
                 if (!near(centre, pal.pick, 3) || !near(halo, pal.background, 3)) continue;  // covered by the vessel
                 EXPECT_GE(contrastOnImage(centre, halo), 3.0) << name << " P" << p.id;
+                if (measured == 0)
+                    std::printf("%s: P%d diamond on its halo %.2f:1 (measured on the image)\n", name, p.id,
+                                contrastOnImage(centre, halo));
                 ++measured;
             }
             EXPECT_GT(measured, 0) << name << ": no pick marker measured on the image";
