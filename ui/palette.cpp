@@ -64,7 +64,7 @@ Palette makeNight() {
     p.vessel = rgb(200, 190, 170);
     p.swath_edge = rgb(90, 150, 200);
     p.warn = rgb(160, 115, 20);
-    p.alarm = rgb(170, 30, 24);
+    p.alarm = rgb(205, 55, 45);  // text too (alarm lists, limits, verdicts): >= 3:1 on the window
     p.banner = rgb(150, 24, 20);
     p.banner_stripe = rgb(30, 8, 8);
     p.banner_text = rgb(230, 210, 190);

@@ -85,6 +85,7 @@ std::unique_ptr<Panel> makeTimePlots();
 std::unique_ptr<Panel> makeAlarmsPanel();
 std::unique_ptr<Panel> makeRunsPanel();
 std::unique_ptr<Panel> makeProfilesPanel();
+std::unique_ptr<Panel> makePicksPanel();
 std::unique_ptr<Panel> makeReplayBar();
 std::unique_ptr<Panel> makeStatusBar();
 std::unique_ptr<Panel> makeAlarmBanner();

@@ -13,6 +13,7 @@ std::vector<std::unique_ptr<Panel>> makePanels() {
     p.push_back(makeAlarmsPanel());
     p.push_back(makeRunsPanel());
     p.push_back(makeProfilesPanel());
+    p.push_back(makePicksPanel());
     p.push_back(makeReplayBar());
     p.push_back(makeStatusBar());
     p.push_back(makeAlarmBanner());  // last: drawn above everything

@@ -12,6 +12,7 @@
 
 #include "ui/label_placer.hpp"
 #include "ui/panel.hpp"
+#include "ui/picks_panel.hpp"
 #include "ui/plot_draw.hpp"
 
 namespace sg::ui {
@@ -359,7 +360,8 @@ public:
 
         // ---- labels (after the tracks so they stay readable; placed without overlap) ----
         const Rect legend = legendRect(rect, sc), scale_bar = scaleBarRect(rect, sc);
-        placeLabels(dl, rect, pal, *s, sc, {legend, scale_bar, controlsRect(rect, sc), northArrowRect(rect, sc)});
+        const bool show_picks = ctx.settings && ctx.settings->show_picks && s->picks;
+        placeLabels(dl, rect, pal, *s, sc, show_picks, {legend, scale_bar, controlsRect(rect, sc), northArrowRect(rect, sc)});
 
         // ---- forming gap: a ring with a cross where it forms, while its alarm is active ----
         if (s->forming_gap.active) {
@@ -370,6 +372,11 @@ public:
             dl->AddLine({c.x - 1.6f * r, c.y}, {c.x + 1.6f * r, c.y}, pal.gap, 2.0f * sc);
             dl->AddLine({c.x, c.y - 1.6f * r}, {c.x, c.y + 1.6f * r}, pal.gap, 2.0f * sc);
         }
+
+        // ---- anomaly picks: diamonds (ui/picks_panel.hpp), hollow when weak ----
+        if (show_picks)
+            for (const auto& p : s->picks->picks)
+                drawPickMarker(dl, m_t.toScreen(p.at), sc, pal, p.quality != "weak");
 
         // ---- live swath, sensors, vessel ----
         for (std::size_t i = 0; i < s->sensors.size(); ++i) {
@@ -405,6 +412,8 @@ public:
         if (ImGui::SmallButton("Fit")) m_t = fitTransform(surveyBounds(*s), rect);
         ImGui::SameLine();
         if (ImGui::Checkbox("Follow vessel", &ctx.settings->follow_vessel)) ctx.settings_changed = true;
+        ImGui::SameLine();
+        if (ImGui::Checkbox("Picks", &ctx.settings->show_picks)) ctx.settings_changed = true;
     }
 
 private:
@@ -412,7 +421,9 @@ private:
     static Rect controlsRect(const Rect& r, float sc) {
         const ImGuiStyle& st = ImGui::GetStyle();
         const float w = ImGui::CalcTextSize("Fit").x + ImGui::CalcTextSize("Follow vessel").x + ImGui::GetFrameHeight() +
-                        4 * st.FramePadding.x + st.ItemSpacing.x + st.ItemInnerSpacing.x;
+                        4 * st.FramePadding.x + st.ItemSpacing.x + st.ItemInnerSpacing.x +
+                        // the "Picks" checkbox
+                        st.ItemSpacing.x + ImGui::GetFrameHeight() + st.ItemInnerSpacing.x + ImGui::CalcTextSize("Picks").x;
         return {r.min, {r.min.x + 6 * sc + w + 6 * sc, r.min.y + 6 * sc + ImGui::GetFrameHeight() + 4 * sc}};
     }
     static Rect northArrowRect(const Rect& r, float sc) {
@@ -492,10 +503,10 @@ private:
         }
     }
 
-    // Greedy placement (ui/label_placer.hpp), most important first: the active line, gaps,
+    // Greedy placement (ui/label_placer.hpp), most important first: the active line, gaps, picks,
     // infill, then the other planned lines. What does not fit is not drawn.
     void placeLabels(ImDrawList* dl, const Rect& rect, const Palette& pal, const engine::Snapshot& s, float sc,
-                     std::initializer_list<Rect> blocked) const {
+                     bool show_picks, std::initializer_list<Rect> blocked) const {
         const float inset = 2 * sc;
         LabelPlacer placer({{rect.min.x + inset, rect.min.y + inset}, {rect.max.x - inset, rect.max.y - inset}},
                            3 * sc);
@@ -512,6 +523,15 @@ private:
         const std::vector<LabelSpot> around{LabelSpot::kRight,      LabelSpot::kLeft,       LabelSpot::kAbove,
                                             LabelSpot::kBelow,      LabelSpot::kAboveRight, LabelSpot::kBelowRight,
                                             LabelSpot::kAboveLeft,  LabelSpot::kBelowLeft};
+        // Pick markers are drawn after the labels: no label may cover one (halo included), so
+        // they are blocked before any label is placed.
+        if (show_picks) {
+            const float r = pickMarkerRadius(sc) + 3 * sc;
+            for (const auto& p : s.picks->picks) {
+                const ImVec2 c = m_t.toScreen(p.at);
+                if (rect.contains(c)) placer.block({{c.x - r, c.y - r}, {c.x + r, c.y + r}});
+            }
+        }
         // The forming gap first (its marker is drawn after the labels, so keep its ring clear).
         if (s.forming_gap.active) {
             const ImVec2 c = m_t.toScreen(s.forming_gap.at);
@@ -540,6 +560,19 @@ private:
         for (const auto& gap_view : s.gaps) {
             const std::string text = (gap_view.name.empty() ? "gap " + std::to_string(gap_view.id) : gap_view.name) + "  " + roundedArea(gap_view.area_m2);
             put(m_t.toScreen(gap_view.centroid), text, pal.gap, around);
+        }
+        if (show_picks) {
+            const float r = pickMarkerRadius(sc) + 3 * sc;
+            for (const auto& p : s.picks->picks) {
+                const ImVec2 c = m_t.toScreen(p.at);
+                if (!rect.contains(c)) continue;
+                const std::string text = pickLabel(p);
+                const ImVec2 ts = ImGui::CalcTextSize(text.c_str());
+                if (const auto at = placer.place(c, {ts.x + 2 * px, ts.y + 2 * py}, around, r + gap)) {
+                    dl->AddRectFilled(at->min, at->max, pal.background);
+                    dl->AddText({at->min.x + px, at->min.y + py}, pal.pick, text.c_str());
+                }
+            }
         }
         for (const auto& inf : s.infill) {
             ImVec2 first{}, first_dir{}, last{}, last_dir{};

@@ -91,6 +91,9 @@ ScreenSettings loadSettings(const std::string& path, std::vector<std::string>& w
         } else if (key == "follow_vessel") {
             if (value == "true" || value == "false") s.follow_vessel = value == "true";
             else warn(key, "must be 'true' or 'false', got '" + value + "'");
+        } else if (key == "show_picks") {
+            if (value == "true" || value == "false") s.show_picks = value == "true";
+            else warn(key, "must be 'true' or 'false', got '" + value + "'");
         } else if (key == "tab") {
             s.tab = value;  // an unknown name simply selects no saved tab
         } else if (key == "hidden_plots") {
@@ -125,6 +128,7 @@ bool saveSettings(const std::string& path, const ScreenSettings& s, std::string&
             << "font_file = " << s.font_file << "\n"
             << "plot_minutes = " << s.plot_minutes << "\n"
             << "follow_vessel = " << (s.follow_vessel ? "true" : "false") << "\n"
+            << "show_picks = " << (s.show_picks ? "true" : "false") << "\n"
             << "tab = " << s.tab << "\n"
             << "hidden_plots = ";
         for (std::size_t i = 0; i < s.hidden_plots.size(); ++i) out << (i ? ", " : "") << s.hidden_plots[i];

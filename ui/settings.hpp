@@ -22,6 +22,7 @@ struct ScreenSettings {
     std::string font_file = kDefaultFontFile;  // a TrueType font file; missing -> built-in font + message
     int plot_minutes = 10;       // time window of the time plots, 1 .. 720 minutes
     bool follow_vessel = true;   // plan view keeps the vessel in view
+    bool show_picks = true;      // plan view draws the anomaly picks
     std::vector<std::string> hidden_plots;  // titles of time plots the operator switched off
     std::string tab = "Alarms";  // the tab shown under the plots: Alarms, Runs & infill, Profiles
     // A site: show only this session's runs and coverage (not saved: a choice of the moment).

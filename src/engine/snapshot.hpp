@@ -155,6 +155,62 @@ struct InfillView {
     std::vector<std::uint64_t> gap_ids;  // gaps it closes
 };
 
+// ---- anomaly picks and the verification strip (docs/picks.md) -------------------------------
+
+// One pick as the screen shows it (from detect::AnomalyPick; the core's types stay out of here).
+struct PickView {
+    int id = 0;                   // shown as "P<id>"
+    double first_s = 0.0;         // survey clock: first detection
+    PointEN at;                   // survey CRS
+    double peak_nT = 0.0;         // signed
+    double width_m = 0.0;
+    double altitude_m = 0.0;      // sensor altitude at the peak
+    std::optional<double> burial_m;              // below the seabed
+    std::optional<double> depth_below_sensor_m;  // altitude + burial
+    std::optional<double> moment_Am2;
+    std::optional<double> mass_rule_kg;          // equivalent mass by the mass rule
+    std::string moment_model;     // "dipole, induced", "dipole, free direction" or "" (no fit)
+    double fit_r2 = 0.0;
+    double snr = 0.0;             // |peak| / threshold
+    std::string quality;          // "strong", "fair", "weak"
+    std::vector<std::string> runs;  // names of the line runs that saw it ("L03 run 1")
+};
+
+// One pass of one sensor near a known item.
+struct VerificationPassView {
+    std::string item;
+    std::string target_class;
+    std::string run;              // line run name
+    int sensor_slot = 0;
+    double t_s = 0.0;             // survey clock: closest approach
+    double offset_m = 0.0;        // cross-track, starboard positive
+    double altitude_m = 0.0;
+    double threshold_nT = 0.0;
+    double predicted_nT = 0.0;
+    double measured_nT = 0.0;
+    double ratio = 0.0;           // measured / predicted
+    bool predicted_detected = false;
+    bool detected = false;
+};
+
+struct VerificationVerdictView {
+    std::string target_class;
+    std::string verdict;          // "confirmed", "too_optimistic", "conservative", "not_enough_passes"
+    std::string text;             // the sentence the report prints
+    int passes_used = 0;
+    int passes_detected = 0;
+    double median_ratio = 0.0;
+};
+
+struct PicksView {
+    bool enabled = false;         // [picks] enabled
+    std::string caution;          // engine::kPicksCaution
+    std::vector<PickView> picks;  // by id
+    std::vector<VerificationPassView> passes;
+    std::vector<VerificationVerdictView> verdicts;
+    std::vector<std::string> unplaced;
+};
+
 // ---- time plots and profiles ----------------------------------------------------------------
 
 struct SeriesPoint {
@@ -295,6 +351,9 @@ struct Snapshot {
     std::vector<std::vector<PointEN>> not_run_yet;
     std::string not_run_message;        // "3 of 12 planned lines not run yet: ..."; empty when none
     FormingGapView forming_gap;
+    // Anomaly picks and the verification strip; null before the first computation. Shared from
+    // snapshot to snapshot until the builder recomputes it.
+    std::shared_ptr<const PicksView> picks;
 
     // Time plots and profiles.
     std::vector<PlotGroup> plots;

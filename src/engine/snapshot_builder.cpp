@@ -8,6 +8,8 @@
 #include <fmt/format.h>
 
 #include "coverage/gaps.hpp"
+#include "engine/picks_summary.hpp"
+#include "engine/snapshot_picks.hpp"
 
 namespace sg::engine {
 
@@ -384,6 +386,16 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
             s.runs.push_back(std::move(v));
         }
     }
+    // Anomaly picks and the verification strip (docs/picks.md): recomputed every
+    // kPicksInterval_s of survey time (picksNow() copies the picker), shared in between.
+    if (m_engine.picksEnabled() && (force_gaps || !m_picks_view || s.now_s - m_last_picks_s >= kPicksInterval_s ||
+                                    s.now_s < m_last_picks_s)) {
+        m_picks_view = std::make_shared<const PicksView>(makePicksView(m_engine.picksNow(), true, s.runs));
+        m_last_picks_s = s.now_s;
+    } else if (!m_engine.picksEnabled() && !m_picks_view) {
+        m_picks_view = std::make_shared<const PicksView>(PicksView{false, kPicksCaution, {}, {}, {}, {}});
+    }
+    s.picks = m_picks_view;
     // Profiles: the chosen run, else the current one, else the last.
     int run = m_profile_run;
     if (run < 0 && lines) run = lines->activeRun() >= 0 ? lines->activeRun() : static_cast<int>(lines->runs().size()) - 1;

@@ -99,6 +99,11 @@ private:
     std::vector<InfillView> m_infill_views;
     std::vector<std::vector<PointEN>> m_not_run;
     std::string m_not_run_message;
+
+    // Picks (snapshot_picks.hpp): the last copy and when (survey clock) it was made.
+    static constexpr double kPicksInterval_s = 2.0;
+    std::shared_ptr<const PicksView> m_picks_view;
+    double m_last_picks_s = -1e18;
 };
 
 }  // namespace sg::engine
