@@ -248,12 +248,9 @@ TEST_P(LayoutAtScale, PlanViewTextAndWindowPlacementHold) {
     EXPECT_EQ(n, 0);
 }
 
-// Every panel, every window. DISABLED until the panel work of issue #12 running in parallel
-// (time plots as small multiples with one time axis, alarm list, status bar, toolbar, banner)
-// lands: on this branch it finds overlapping limit/legend labels in the time plots, clipped
-// columns in the alarm list and toolbar/status items beyond the right edge at 1.5 and above.
-// Run it with --gtest_also_run_disabled_tests; enable it when those panels are merged.
-TEST_P(LayoutAtScale, DISABLED_EveryPanelHolds) {
+// Every panel, every window: the helm panel, time plots, tabbed lists (alarm list), toolbar,
+// status bar and banner as well as the plan view.
+TEST_P(LayoutAtScale, EveryPanelHolds) {
     ASSERT_TRUE(s_snap);
     const auto found = inspectLayout(GetParam(), s_snap);
     for (std::size_t i = 0; i < found.size() && i < 40; ++i) ADD_FAILURE() << found[i].what;
