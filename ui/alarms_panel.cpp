@@ -75,8 +75,9 @@ public:
         ImGui::EndDisabled();
 
         // Columns by priority: a narrow column (large UI scale) drops the level words (the symbol
-        // shows the level), then the duration, then the peak; what is shown is elided to its
-        // column with the whole text on hover.
+        // shows the level), then the duration, then the peak; each column but "what" is as wide
+        // as its figures, "what" takes the rest; what is shown is elided to its column with the
+        // whole text on hover.
         const float cw = ImGui::CalcTextSize("0").x;
         // The table scrolls vertically: its scrollbar takes part of the width when the list is long.
         const float room = ImGui::GetContentRegionAvail().x - ImGui::GetStyle().ScrollbarSize;
@@ -99,13 +100,11 @@ public:
         if (!ImGui::BeginTable("alarms", n_cols, flags)) return;
         ImGui::TableSetupScrollFreeze(0, 1);
         const char* heads[kCount] = {"", "what", "level", "start (survey UTC)", "duration", "peak", "ack"};
-        const float weights[kCount] = {0, 3.0f, 1.0f, 1.2f, 1.0f, 1.2f, 1.2f};
         for (int c = 0; c < kCount; ++c) {
             if (!use[static_cast<std::size_t>(c)]) continue;
             if (c == kSymbol) ImGui::TableSetupColumn("", ImGuiTableColumnFlags_WidthFixed, line_h);
-            else if (c == kStart || c == kAck)
-                ImGui::TableSetupColumn(heads[c], ImGuiTableColumnFlags_WidthFixed, cols[static_cast<std::size_t>(c)].width - cell_pad);
-            else ImGui::TableSetupColumn(heads[c], ImGuiTableColumnFlags_WidthStretch, weights[c]);
+            else if (c == kWhat) ImGui::TableSetupColumn(heads[c], ImGuiTableColumnFlags_WidthStretch, 1.0f);
+            else ImGui::TableSetupColumn(heads[c], ImGuiTableColumnFlags_WidthFixed, cols[static_cast<std::size_t>(c)].width - cell_pad);
         }
         // Headers elided to their columns (the whole name on hover).
         ImGui::TableNextRow(ImGuiTableRowFlags_Headers);

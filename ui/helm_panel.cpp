@@ -41,19 +41,22 @@ void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float
         put(big, pal.text_dim, "No active line", gap);
         return;
     }
-    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc);
+    // A label goes to the next row together with its value (never alone at a row's end).
+    auto w = [&](const std::string& t) { return ImGui::GetFont()->CalcTextSizeA(big, 1e9f, 0.0f, t.c_str()).x; };
+    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc, w(h.line));
     put(big, pal.line_active, h.line, gap);
     if (h.off_line_m) {
         const double d = *h.off_line_m;
         // Starboard of the line positive (LineTracker::crossTrack).
         const std::string side = std::fabs(d) < 0.05 ? "on line" : (d > 0 ? "STARBOARD of line" : "PORT of line");
-        put(big * 0.55f, pal.text_dim, "OFF", 6 * sc);
-        put(big, pal.text, distanceText(std::fabs(d)) + " " + side, gap);
+        const std::string off = distanceText(std::fabs(d)) + " " + side;
+        put(big * 0.55f, pal.text_dim, "OFF", 6 * sc, w(off));
+        put(big, pal.text, off, gap);
     }
     if (h.to_end_m) {
-        put(big * 0.55f, pal.text_dim, "TO END", 6 * sc);
         std::string t = distanceText(*h.to_end_m);
         if (h.to_end_s) t += "  " + minutesText(*h.to_end_s);
+        put(big * 0.55f, pal.text_dim, "TO END", 6 * sc, w(t));
         put(big, pal.text, t, gap);
     }
 }
@@ -73,18 +76,22 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     float x = amin.x;
     bool measure = false;  // a dry run measures the large row, so it can be made to fit
     float row_h = base;
-    auto put = [&](float size, ImU32 colour, const std::string& text, float gap_after) {
+    // `with_next`: the width of what must stay on the same row after this text (a label's value).
+    auto put = [&](float size, ImU32 colour, const std::string& text, float gap_after, float with_next = 0.0f) {
         float w = font->CalcTextSizeA(size, 1e9f, 0.0f, text.c_str()).x;
         // A field wider than the whole panel is shortened (never cut at the edge).
         const std::string shown = !measure && w > amax.x - amin.x ? elideToWidth(text, amax.x - amin.x, font, size) : text;
         if (shown.size() != text.size()) w = font->CalcTextSizeA(size, 1e9f, 0.0f, shown.c_str()).x;
         // Rows wrap rather than run off the panel (large UI scales, narrow windows).
-        if (!measure && x > amin.x && x + w > amax.x) {
+        const float glued = with_next > 0.0f ? w + gap_after + with_next : w;
+        if (!measure && x > amin.x && x + std::min(glued, amax.x - amin.x) > amax.x) {
             x = amin.x;
             y += row_h + 2 * sc;
         }
-        // Text that would run below the panel is left out (never cut): the last rows go first.
-        if (!measure && (!dl || y + size <= amax.y + 0.5f)) {
+        // Text that would run below the panel is left out (never cut): the last rows go first. A
+        // label is left out with its value (the value may be taller: the row's height counts).
+        const float needs = with_next > 0.0f ? std::max(size, row_h) : size;
+        if (!measure && (!dl || y + needs <= amax.y + 0.5f)) {
             if (dl && !shown.empty()) dl->AddText(font, size, {x, y}, colour, shown.c_str());
             bottom = std::max(bottom, y + size);
         }
@@ -110,7 +117,8 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     char buf[160];
     if (h.speed_mps) std::snprintf(buf, sizeof buf, "%.1f kn  %.2f m/s", *h.speed_mps * kKnotPerMps, *h.speed_mps);
     else std::snprintf(buf, sizeof buf, "-- kn");
-    put(mid, pal.text_dim, "speed", 5 * sc);
+    auto wm = [&](const std::string& t) { return font->CalcTextSizeA(mid, 1e9f, 0.0f, t.c_str()).x; };
+    put(mid, pal.text_dim, "speed", 5 * sc, wm(buf));
     put(mid, pal.text, buf, gap);
     std::string alt;
     for (const auto& sv : s->sensors) {
@@ -118,15 +126,17 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
         std::snprintf(buf, sizeof buf, "%s%s %.1f", alt.empty() ? "" : "  ", sv.name.c_str(), *sv.altitude_m);
         alt += buf;
     }
-    put(mid, pal.text_dim, "altitude", 5 * sc);
-    put(mid, pal.text, alt.empty() ? "--" : alt + " m", gap);
-    put(mid, pal.text_dim, "layback", 5 * sc);
-    put(mid, pal.text, h.layback_m ? distanceText(*h.layback_m) : "--", gap);
-    put(mid, pal.text_dim, "cable out", 5 * sc);
-    put(mid, pal.text, h.cable_out_m ? distanceText(*h.cable_out_m) : "--", gap);
+    const std::string alt_text = alt.empty() ? "--" : alt + " m";
+    put(mid, pal.text_dim, "altitude", 5 * sc, wm(alt_text));
+    put(mid, pal.text, alt_text, gap);
+    const std::string layback = h.layback_m ? distanceText(*h.layback_m) : "--";
+    put(mid, pal.text_dim, "layback", 5 * sc, wm(layback));
+    put(mid, pal.text, layback, gap);
+    const std::string cable = h.cable_out_m ? distanceText(*h.cable_out_m) : "--";
+    put(mid, pal.text_dim, "cable out", 5 * sc, wm(cable));
+    put(mid, pal.text, cable, gap);
     y += mid + 3 * sc;
     x = amin.x;
-    put(mid, pal.text_dim, "GNSS", 5 * sc);
     const bool fix_poor = !h.fix_quality || *h.fix_quality == 0 || *h.fix_quality == 6;
     std::string fix = h.fix_name.empty() ? "--" : h.fix_name;
     if (h.satellites) fix += "  " + std::to_string(*h.satellites) + " satellites";
@@ -134,10 +144,11 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
         std::snprintf(buf, sizeof buf, "  HDOP %.1f", *h.hdop);
         fix += buf;
     }
+    put(mid, pal.text_dim, "GNSS", 5 * sc, wm(fix));
     put(mid, fix_poor ? pal.warn : pal.text, fix, gap);
-    put(mid, pal.text_dim, "area covered", 5 * sc);
     if (h.coverage_pct) std::snprintf(buf, sizeof buf, "%.1f %%", *h.coverage_pct);
     else std::snprintf(buf, sizeof buf, "--");
+    put(mid, pal.text_dim, "area covered", 5 * sc, wm(buf));
     put(mid, pal.text, buf, gap);
     y += mid + 3 * sc;
 
@@ -166,7 +177,9 @@ public:
 
     void draw(FrameContext& ctx, ImVec2 amin, ImVec2 amax) override {
         ImDrawList* dl = ImGui::GetWindowDrawList();
-        dl->PushClipRect(amin, amax, true);
+        // The clip reaches a little left of the text (into the window padding): a row starting
+        // with a glyph of negative left bearing ("T") is not cut.
+        dl->PushClipRect({amin.x - ImGui::GetStyle().WindowPadding.x * 0.5f, amin.y}, amax, true);
         layoutHelm(ctx.snapshot, *ctx.palette, ctx.scale, dl, amin, amax);
         dl->PopClipRect();
     }

@@ -62,8 +62,10 @@ private:
         // stretch weights are those widths), and every cell is elided to its column, whole on
         // hover.
         enum Col { kRun, kLog, kCovered, kMeanAlt, kWorstAlt, kWorstDev, kAlarms, kStart, kCount };
-        const char* heads[kCount] = {"run", "log", "covered", "mean alt m", "worst alt m", "worst dev m", "alarms",
-                                     "start, duration"};
+        const char* heads[kCount] = {"run", "log", "covered", "alt m", "max alt", "max dev", "alarms", "start, duration"};
+        // Header words in full, on hover.
+        const char* tips[kCount] = {"run", "log", "covered", "mean altitude (m)", "worst (highest) altitude (m)",
+                                    "worst deviation from the line (m)", "alarms", "start (survey UTC), duration"};
         const float cell_pad = ImGui::GetStyle().CellPadding.x * 2 + 1;
         auto tw = [](const char* t) { return ImGui::CalcTextSize(t).x; };
         float run_w = tw("run");
@@ -72,9 +74,9 @@ private:
             {std::min(run_w, tw("00000000 (now)")) + cell_pad, 100},
             {tw("log_000") + cell_pad, 10},
             {tw("100.0 %") + ImGui::GetStyle().FramePadding.x * 2 + cell_pad, 100},
-            {tw("000.0") + cell_pad, 30},
-            {tw("000.0") + cell_pad, 35},
-            {tw("000.0") + cell_pad, 40},
+            {std::max(tw("000.0"), tw(heads[kMeanAlt])) + cell_pad, 30},
+            {std::max(tw("000.0"), tw(heads[kWorstAlt])) + cell_pad, 35},
+            {std::max(tw("-00.0"), tw(heads[kWorstDev])) + cell_pad, 40},
             {tw("alarms") + cell_pad, 60},
             {tw("00:00:00, 00m00s") + cell_pad, 80},
         };
@@ -92,7 +94,8 @@ private:
             const std::string shown = elideToWidth(heads[c], ImGui::GetContentRegionAvail().x);
             ImGui::PushID(c);
             ImGui::TableHeader((shown + "##h").c_str());
-            if (shown != heads[c] && ImGui::IsItemHovered()) ImGui::SetTooltip("%s", heads[c]);
+            if (ImGui::IsItemHovered() && (shown != heads[c] || std::string(tips[c]) != heads[c]))
+                ImGui::SetTooltip("%s", tips[c]);
             ImGui::PopID();
         }
         char buf[64];
