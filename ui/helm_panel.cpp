@@ -10,6 +10,7 @@
 #include <string>
 
 #include "ui/panel.hpp"
+#include "ui/text_fit.hpp"
 
 namespace sg::ui {
 
@@ -40,21 +41,133 @@ void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float
         put(big, pal.text_dim, "No active line", gap);
         return;
     }
-    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc);
+    // A label goes to the next row together with its value (never alone at a row's end).
+    auto w = [&](const std::string& t) { return ImGui::GetFont()->CalcTextSizeA(big, 1e9f, 0.0f, t.c_str()).x; };
+    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc, w(h.line));
     put(big, pal.line_active, h.line, gap);
     if (h.off_line_m) {
         const double d = *h.off_line_m;
         // Starboard of the line positive (LineTracker::crossTrack).
         const std::string side = std::fabs(d) < 0.05 ? "on line" : (d > 0 ? "STARBOARD of line" : "PORT of line");
-        put(big * 0.55f, pal.text_dim, "OFF", 6 * sc);
-        put(big, pal.text, distanceText(std::fabs(d)) + " " + side, gap);
+        const std::string off = distanceText(std::fabs(d)) + " " + side;
+        put(big * 0.55f, pal.text_dim, "OFF", 6 * sc, w(off));
+        put(big, pal.text, off, gap);
     }
     if (h.to_end_m) {
-        put(big * 0.55f, pal.text_dim, "TO END", 6 * sc);
         std::string t = distanceText(*h.to_end_m);
         if (h.to_end_s) t += "  " + minutesText(*h.to_end_s);
+        put(big * 0.55f, pal.text_dim, "TO END", 6 * sc, w(t));
         put(big, pal.text, t, gap);
     }
+}
+
+// Lays the panel out in amin..amax, drawing into `dl`, or only measuring when `dl` is null.
+// Returns the height used.
+float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDrawList* dl, ImVec2 amin, ImVec2 amax) {
+    ImFont* font = ImGui::GetFont();
+    const float base = ImGui::GetFontSize();
+    float y = amin.y;
+    float bottom = amin.y;  // the lowest text drawn (or measured)
+    if (!s) {
+        if (dl) dl->AddText(font, base * 1.4f, {amin.x, y}, pal.text_dim, "Waiting for survey data");
+        return base * 1.4f;
+    }
+    const auto& h = s->helm;
+    float x = amin.x;
+    bool measure = false;  // a dry run measures the large row, so it can be made to fit
+    float row_h = base;
+    // `with_next`: the width of what must stay on the same row after this text (a label's value).
+    auto put = [&](float size, ImU32 colour, const std::string& text, float gap_after, float with_next = 0.0f) {
+        float w = font->CalcTextSizeA(size, 1e9f, 0.0f, text.c_str()).x;
+        // A field wider than the whole panel is shortened (never cut at the edge).
+        const std::string shown = !measure && w > amax.x - amin.x ? elideToWidth(text, amax.x - amin.x, font, size) : text;
+        if (shown.size() != text.size()) w = font->CalcTextSizeA(size, 1e9f, 0.0f, shown.c_str()).x;
+        // Rows wrap rather than run off the panel (large UI scales, narrow windows).
+        const float glued = with_next > 0.0f ? w + gap_after + with_next : w;
+        if (!measure && x > amin.x && x + std::min(glued, amax.x - amin.x) > amax.x) {
+            x = amin.x;
+            y += row_h + 2 * sc;
+        }
+        // Text that would run below the panel is left out (never cut): the last rows go first. A
+        // label is left out with its value (the value may be taller: the row's height counts).
+        const float needs = with_next > 0.0f ? std::max(size, row_h) : size;
+        if (!measure && (!dl || y + needs <= amax.y + 0.5f)) {
+            if (dl && !shown.empty()) dl->AddText(font, size, {x, y}, colour, shown.c_str());
+            bottom = std::max(bottom, y + size);
+        }
+        x += w + gap_after;
+    };
+    const float gap = 22 * sc;
+    // Row 1, large: line, off line with side, to the end; as large as fits (at most 2x).
+    float big = base * 2.0f;
+    for (int pass = 0; pass < 2; ++pass) {
+        measure = pass == 0;
+        x = amin.x;
+        row_h = big;
+        drawLineRow(h, pal, big, gap, sc, put);
+        if (measure && x - gap > amax.x)
+            big = std::max(base * 1.2f, big * (amax.x - amin.x) / (x - gap - amin.x));
+    }
+    y += big + 4 * sc;
+    x = amin.x;
+    row_h = base * 1.15f;
+    // Row 2: speed, altitude, layback and cable, GNSS, coverage.
+    const float mid = base * 1.15f;
+    x = amin.x;
+    char buf[160];
+    if (h.speed_mps) std::snprintf(buf, sizeof buf, "%.1f kn  %.2f m/s", *h.speed_mps * kKnotPerMps, *h.speed_mps);
+    else std::snprintf(buf, sizeof buf, "-- kn");
+    auto wm = [&](const std::string& t) { return font->CalcTextSizeA(mid, 1e9f, 0.0f, t.c_str()).x; };
+    put(mid, pal.text_dim, "speed", 5 * sc, wm(buf));
+    put(mid, pal.text, buf, gap);
+    std::string alt;
+    for (const auto& sv : s->sensors) {
+        if (!sv.altitude_m) continue;
+        std::snprintf(buf, sizeof buf, "%s%s %.1f", alt.empty() ? "" : "  ", sv.name.c_str(), *sv.altitude_m);
+        alt += buf;
+    }
+    const std::string alt_text = alt.empty() ? "--" : alt + " m";
+    put(mid, pal.text_dim, "altitude", 5 * sc, wm(alt_text));
+    put(mid, pal.text, alt_text, gap);
+    const std::string layback = h.layback_m ? distanceText(*h.layback_m) : "--";
+    put(mid, pal.text_dim, "layback", 5 * sc, wm(layback));
+    put(mid, pal.text, layback, gap);
+    const std::string cable = h.cable_out_m ? distanceText(*h.cable_out_m) : "--";
+    put(mid, pal.text_dim, "cable out", 5 * sc, wm(cable));
+    put(mid, pal.text, cable, gap);
+    y += mid + 3 * sc;
+    x = amin.x;
+    const bool fix_poor = !h.fix_quality || *h.fix_quality == 0 || *h.fix_quality == 6;
+    std::string fix = h.fix_name.empty() ? "--" : h.fix_name;
+    if (h.satellites) fix += "  " + std::to_string(*h.satellites) + " satellites";
+    if (h.hdop) {
+        std::snprintf(buf, sizeof buf, "  HDOP %.1f", *h.hdop);
+        fix += buf;
+    }
+    put(mid, pal.text_dim, "GNSS", 5 * sc, wm(fix));
+    put(mid, fix_poor ? pal.warn : pal.text, fix, gap);
+    if (h.coverage_pct) std::snprintf(buf, sizeof buf, "%.1f %%", *h.coverage_pct);
+    else std::snprintf(buf, sizeof buf, "--");
+    put(mid, pal.text_dim, "area covered", 5 * sc, wm(buf));
+    put(mid, pal.text, buf, gap);
+    y += mid + 3 * sc;
+
+    // Row 3: input health (receive clock).
+    x = amin.x;
+    const float small = base;
+    row_h = small;
+    for (const auto& in : s->inputs) {
+        const bool stale = in.in_outage || in.age_s < 0 || in.age_s > 2.0;
+        char rate[24];
+        if (in.rate_hz >= 0) std::snprintf(rate, sizeof rate, "%.0f Hz", in.rate_hz);
+        else std::snprintf(rate, sizeof rate, "-- Hz");
+        if (in.age_s >= 0)
+            std::snprintf(buf, sizeof buf, "%s %s, %.1f s ago, %llu errors%s", in.name.c_str(), rate, in.age_s,
+                          static_cast<unsigned long long>(in.errors), in.in_outage ? ", LINK DOWN" : "");
+        else std::snprintf(buf, sizeof buf, "%s: nothing received", in.name.c_str());
+        put(small, stale ? pal.warn : (in.errors > 0 ? pal.text : pal.text_dim), buf, 16 * sc);
+    }
+    return bottom - amin.y;
 }
 
 class HelmPanel final : public Panel {
@@ -63,99 +176,11 @@ public:
     Slot slot() const override { return Slot::kHelm; }
 
     void draw(FrameContext& ctx, ImVec2 amin, ImVec2 amax) override {
-        const engine::Snapshot* s = ctx.snapshot;
-        const Palette& pal = *ctx.palette;
-        const float sc = ctx.scale;
         ImDrawList* dl = ImGui::GetWindowDrawList();
-        dl->PushClipRect(amin, amax, true);
-        ImFont* font = ImGui::GetFont();
-        const float base = ImGui::GetFontSize();
-        float y = amin.y;
-        if (!s) {
-            dl->AddText(font, base * 1.4f, {amin.x, y}, pal.text_dim, "Waiting for survey data");
-            dl->PopClipRect();
-            return;
-        }
-        const auto& h = s->helm;
-        float x = amin.x;
-        bool measure = false;  // a dry run measures the large row, so it can be made to fit
-        float row_h = base;
-        auto put = [&](float size, ImU32 colour, const std::string& text, float gap_after) {
-            const float w = font->CalcTextSizeA(size, 1e9f, 0.0f, text.c_str()).x;
-            // Rows wrap rather than run off the panel (large UI scales, narrow windows).
-            if (!measure && x > amin.x && x + w > amax.x) {
-                x = amin.x;
-                y += row_h + 2 * sc;
-            }
-            if (!measure) dl->AddText(font, size, {x, y}, colour, text.c_str());
-            x += w + gap_after;
-        };
-        const float gap = 22 * sc;
-        // Row 1, large: line, off line with side, to the end; as large as fits (at most 2x).
-        float big = base * 2.0f;
-        for (int pass = 0; pass < 2; ++pass) {
-            measure = pass == 0;
-            x = amin.x;
-            row_h = big;
-            drawLineRow(h, pal, big, gap, sc, put);
-            if (measure && x - gap > amax.x)
-                big = std::max(base * 1.2f, big * (amax.x - amin.x) / (x - gap - amin.x));
-        }
-        y += big + 4 * sc;
-        x = amin.x;
-        row_h = base * 1.15f;
-        // Row 2: speed, altitude, layback and cable, GNSS, coverage.
-        const float mid = base * 1.15f;
-        x = amin.x;
-        char buf[160];
-        if (h.speed_mps) std::snprintf(buf, sizeof buf, "%.1f kn  %.2f m/s", *h.speed_mps * kKnotPerMps, *h.speed_mps);
-        else std::snprintf(buf, sizeof buf, "-- kn");
-        put(mid, pal.text_dim, "speed", 5 * sc);
-        put(mid, pal.text, buf, gap);
-        std::string alt;
-        for (const auto& sv : s->sensors) {
-            if (!sv.altitude_m) continue;
-            std::snprintf(buf, sizeof buf, "%s%s %.1f", alt.empty() ? "" : "  ", sv.name.c_str(), *sv.altitude_m);
-            alt += buf;
-        }
-        put(mid, pal.text_dim, "altitude", 5 * sc);
-        put(mid, pal.text, alt.empty() ? "--" : alt + " m", gap);
-        put(mid, pal.text_dim, "layback", 5 * sc);
-        put(mid, pal.text, h.layback_m ? distanceText(*h.layback_m) : "--", gap);
-        put(mid, pal.text_dim, "cable out", 5 * sc);
-        put(mid, pal.text, h.cable_out_m ? distanceText(*h.cable_out_m) : "--", gap);
-        y += mid + 3 * sc;
-        x = amin.x;
-        put(mid, pal.text_dim, "GNSS", 5 * sc);
-        const bool fix_poor = !h.fix_quality || *h.fix_quality == 0 || *h.fix_quality == 6;
-        std::string fix = h.fix_name.empty() ? "--" : h.fix_name;
-        if (h.satellites) fix += "  " + std::to_string(*h.satellites) + " satellites";
-        if (h.hdop) {
-            std::snprintf(buf, sizeof buf, "  HDOP %.1f", *h.hdop);
-            fix += buf;
-        }
-        put(mid, fix_poor ? pal.warn : pal.text, fix, gap);
-        put(mid, pal.text_dim, "area covered", 5 * sc);
-        if (h.coverage_pct) std::snprintf(buf, sizeof buf, "%.1f %%", *h.coverage_pct);
-        else std::snprintf(buf, sizeof buf, "--");
-        put(mid, pal.text, buf, gap);
-        y += mid + 3 * sc;
-
-        // Row 3: input health (receive clock).
-        x = amin.x;
-        const float small = base;
-        row_h = small;
-        for (const auto& in : s->inputs) {
-            const bool stale = in.in_outage || in.age_s < 0 || in.age_s > 2.0;
-            char rate[24];
-            if (in.rate_hz >= 0) std::snprintf(rate, sizeof rate, "%.0f Hz", in.rate_hz);
-            else std::snprintf(rate, sizeof rate, "-- Hz");
-            if (in.age_s >= 0)
-                std::snprintf(buf, sizeof buf, "%s %s, %.1f s ago, %llu errors%s", in.name.c_str(), rate, in.age_s,
-                              static_cast<unsigned long long>(in.errors), in.in_outage ? ", LINK DOWN" : "");
-            else std::snprintf(buf, sizeof buf, "%s: nothing received", in.name.c_str());
-            put(small, stale ? pal.warn : (in.errors > 0 ? pal.text : pal.text_dim), buf, 16 * sc);
-        }
+        // The clip reaches a little left of the text (into the window padding): a row starting
+        // with a glyph of negative left bearing ("T") is not cut.
+        dl->PushClipRect({amin.x - ImGui::GetStyle().WindowPadding.x * 0.5f, amin.y}, amax, true);
+        layoutHelm(ctx.snapshot, *ctx.palette, ctx.scale, dl, amin, amax);
         dl->PopClipRect();
     }
 };
@@ -164,7 +189,12 @@ public:
 
 std::unique_ptr<Panel> makeHelmPanel() { return std::make_unique<HelmPanel>(); }
 
-// Height the helm panel needs at font size `font_px` (the screen carves it off the plots).
-float helmPanelHeight(float font_px, float scale) { return font_px * (2.0f + 1.15f * 2.0f + 2.2f) + 26.0f * scale; }
+// Height the helm panel needs for `s` at `width` pixels of content and the current font (the
+// screen carves it off the plots): the rows as they wrap at this width, plus the window padding.
+float helmPanelHeight(const engine::Snapshot* s, float width, float scale) {
+    const ImVec2 pad = ImGui::GetStyle().WindowPadding;
+    const float inner = std::max(1.0f, width - 2 * pad.x);
+    return layoutHelm(s, paletteFor(false), scale, nullptr, {0, 0}, {inner, 1e6f}) + 2 * pad.y + 2 * scale;
+}
 
 }  // namespace sg::ui

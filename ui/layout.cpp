@@ -18,7 +18,10 @@ Layout computeLayout(ImVec2 display, float scale, bool replay, bool banner) {
     const float toolbar_h = std::round(std::max(row, 32.0f) * scale);
     const float status_h = std::round(std::max(kBaseFontPx + 2 * 8.0f + 4.0f, 32.0f) * scale);
     const float replay_h = replay ? std::round(std::max(row + 4.0f, 36.0f) * scale) : 0.0f;
-    const float banner_h = std::round(86.0f * scale);
+    // The alert strip grows with the scale up to a fifth of the window height (never below its
+    // scale-1 height): at 2.5 on 1280x800 it would otherwise take over a quarter of the screen. A
+    // fifth still holds the two acknowledge buttons stacked at 2.5 (2 x 50 px and the stripes).
+    const float banner_h = std::round(std::min(86.0f * scale, std::max(86.0f, 0.2f * h)));
     const float body_top = toolbar_h + (banner ? banner_h : 0.0f);
     const float body_bottom = std::max(body_top + 10.0f, h - status_h - replay_h);
     // The right column (plots, lists, their toggles) needs more of a narrow window as text grows.

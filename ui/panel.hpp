@@ -90,8 +90,9 @@ std::unique_ptr<Panel> makeReplayBar();
 std::unique_ptr<Panel> makeStatusBar();
 std::unique_ptr<Panel> makeAlarmBanner();
 std::unique_ptr<Panel> makeHelmPanel();
-// Height (pixels) the helm panel needs at this font size and UI scale.
-float helmPanelHeight(float font_px, float scale);
+// Height (pixels) the helm panel's window needs to show `s` whole at `width` pixels (window
+// width) with the current font and this UI scale (its rows wrap when narrow).
+float helmPanelHeight(const engine::Snapshot* s, float width, float scale);
 
 // The screen's keys (GLFW key codes, which the GLFW backend uses to fill io.KeysDown), in one table
 // for the keyboard handler and the help overlay (screen_ui.cpp).

@@ -4,9 +4,11 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <string>
 
 #include "ui/panel.hpp"
 #include "ui/plot_draw.hpp"
+#include "ui/text_fit.hpp"
 
 namespace sg::ui {
 namespace {
@@ -22,7 +24,10 @@ public:
         const float sc = ctx.scale;
         if (!s) return;
         const auto& prof = s->profiles;
-        ImGui::SetNextItemWidth(220 * sc);
+        // The run choice takes at most the row; the lane scale goes beside it while the row has room.
+        const ImGuiStyle& st = ImGui::GetStyle();
+        const float row_w = ImGui::GetContentRegionAvail().x;
+        ImGui::SetNextItemWidth(std::max(ImGui::GetFrameHeight() * 2, std::min(220 * sc, row_w - ImGui::CalcTextSize("run").x - st.ItemInnerSpacing.x)));
         const char* preview = prof.run_name.empty() ? "(no run)" : prof.run_name.c_str();
         if (ImGui::BeginCombo("run", preview)) {
             if (ImGui::Selectable("current run", false))
@@ -35,8 +40,11 @@ public:
             }
             ImGui::EndCombo();
         }
-        ImGui::SameLine();
-        ImGui::SetNextItemWidth(120 * sc);
+        const float scale_w = ImGui::CalcTextSize("+/-100 nT").x + ImGui::GetFrameHeight() + st.FramePadding.x * 2;
+        if (ImGui::GetItemRectMax().x + st.ItemSpacing.x + scale_w + st.ItemInnerSpacing.x + ImGui::CalcTextSize("lane scale").x <=
+            ImGui::GetWindowPos().x + ImGui::GetWindowContentRegionMax().x)
+            ImGui::SameLine();
+        ImGui::SetNextItemWidth(scale_w);
         ImGui::Combo("lane scale", &m_scale_choice, "auto\0+/-2 nT\0+/-5 nT\0+/-20 nT\0+/-100 nT\0");
         if (prof.traces.empty()) {
             ImGui::TextDisabled("No profile for this run yet.");
@@ -55,7 +63,16 @@ public:
 
         const ImVec2 p0 = ImGui::GetCursorScreenPos();
         const ImVec2 avail = ImGui::GetContentRegionAvail();
-        const float left = 60 * sc, bottom = ImGui::GetTextLineHeight() + 4;
+        const float line_h = ImGui::GetTextLineHeight();
+        char buf[64];
+        std::snprintf(buf, sizeof buf, "+/-%.3g nT", static_cast<double>(amp));
+        const std::string amp_label = buf;
+        // The left margin holds the lane names and the lane scale (up to 40 % of the width; longer
+        // names are elided, whole on hover).
+        float left = std::max(60 * sc, ImGui::CalcTextSize(amp_label.c_str()).x);
+        for (const auto& t : prof.traces) left = std::max(left, ImGui::CalcTextSize(t.sensor.c_str()).x);
+        left = std::min(left + 8 * sc, avail.x * 0.4f);
+        const float bottom = line_h + 4 * sc;
         const Rect area{{p0.x + left, p0.y}, {p0.x + avail.x - 6 * sc, p0.y + avail.y - bottom}};
         if (area.width() < 20 || area.height() < 20) return;
         ImDrawList* dl = ImGui::GetWindowDrawList();
@@ -63,13 +80,22 @@ public:
         const auto lanes = static_cast<float>(prof.traces.size());
         const float lane_h = area.height() / lanes;
         const int cols = std::max(1, static_cast<int>(area.width()));
-        char buf[64];
 
-        for (double d : niceTicks(0.0, x_max, std::max(2, static_cast<int>(area.width() / (90 * sc))))) {
+        // Distance ticks: as many as their labels allow; a label right of its line, or left of it
+        // at the right edge; one that would touch its neighbour is left out.
+        std::snprintf(buf, sizeof buf, "%g m", static_cast<double>(x_max));
+        const float label_w = ImGui::CalcTextSize(buf).x;
+        float prev_end = -1e9f;
+        for (double d : niceTicks(0.0, x_max, std::max(2, static_cast<int>(area.width() / (label_w + 24 * sc))))) {
             const float x = area.min.x + static_cast<float>(d / x_max) * area.width();
             dl->AddLine({x, area.min.y}, {x, area.max.y}, pal.grid);
             std::snprintf(buf, sizeof buf, "%g m", d);
-            dl->AddText({x + 2, area.max.y + 2}, pal.text_dim, buf);
+            const float w = ImGui::CalcTextSize(buf).x;
+            float lx = x + 2 * sc;
+            if (lx + w > area.max.x) lx = x - 2 * sc - w;
+            if (lx < prev_end + 6 * sc || lx < p0.x) continue;
+            prev_end = lx + w;
+            dl->AddText({lx, area.max.y + 2 * sc}, pal.text_dim, buf);
         }
         dl->PushClipRect(area.min, area.max, true);
         for (std::size_t k = 0; k < prof.traces.size(); ++k) {
@@ -102,12 +128,26 @@ public:
             drawPolylineChunked(dl, m_pts, pal.seriesColour(k), 1.2f * sc);
         }
         dl->PopClipRect();
+        // Lane names in the left margin, centred on their lane while lanes are tall enough; the
+        // lane scale under each name when there is room, else once under the lanes. A name that
+        // would lie on the one above is left out (its trace keeps its colour).
+        const bool amp_per_lane = lane_h >= 2 * line_h;
+        float prev_bottom = -1e9f;
         for (std::size_t k = 0; k < prof.traces.size(); ++k) {
             const float mid = area.min.y + lane_h * (static_cast<float>(k) + 0.5f);
-            dl->AddText({p0.x + 2, mid - ImGui::GetTextLineHeight()}, pal.seriesColour(k), prof.traces[k].sensor.c_str());
-            std::snprintf(buf, sizeof buf, "+/-%.3g nT", static_cast<double>(amp));
-            dl->AddText({p0.x + 2, mid}, pal.text_dim, buf);
+            const float y = std::clamp(amp_per_lane ? mid - line_h : mid - line_h * 0.5f, area.min.y, area.max.y - line_h);
+            if (y < prev_bottom) continue;
+            const std::string& name = prof.traces[k].sensor;
+            const std::string shown = elideToWidth(name, left - 6 * sc);
+            dl->AddText({p0.x + 2 * sc, y}, pal.seriesColour(k), shown.c_str());
+            if (shown != name && ImGui::IsMouseHoveringRect({p0.x, y}, {p0.x + left, y + line_h})) ImGui::SetTooltip("%s", name.c_str());
+            prev_bottom = y + line_h;
+            if (amp_per_lane) {
+                dl->AddText({p0.x + 2 * sc, y + line_h}, pal.text_dim, elideToWidth(amp_label, left - 6 * sc).c_str());
+                prev_bottom += line_h;
+            }
         }
+        if (!amp_per_lane) dl->AddText({p0.x + 2 * sc, area.max.y + 2 * sc}, pal.text_dim, elideToWidth(amp_label, left - 6 * sc).c_str());
         dl->AddRect(area.min, area.max, pal.axis);
         ImGui::Dummy(avail);
     }

@@ -166,8 +166,10 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
     // The alert strip's space is always reserved: an alarm coming or going never moves a panel.
     m_layout = computeLayout(display, scale, s && s->replay.is_replay, /*banner=*/true);
     // The helm panel takes the top of the right column.
-    const float helm_h = std::min(std::round(helmPanelHeight(ImGui::GetFontSize(), scale)),
-                                  m_layout.plots.height() * 0.5f);
+    // Its height follows its rows as they wrap at this width, up to 60 % of the column's upper
+    // part (what does not fit then is left out by the panel, last rows first).
+    const float helm_h = std::min(std::round(helmPanelHeight(s, m_layout.plots.width(), scale)),
+                                  std::round(m_layout.plots.height() * 0.6f));
     const Rect helm{m_layout.plots.min, {m_layout.plots.max.x, m_layout.plots.min.y + helm_h}};
     m_layout.plots.min.y += helm_h;
 

@@ -64,8 +64,12 @@ public:
                         sensors.push_back(n);
                 }
         std::sort(sensors.begin(), sensors.end());
-        ImGui::SameLine();
-        ImGui::SetNextItemWidth(ImGui::CalcTextSize("every sensor").x + ImGui::GetFrameHeight() + 8 * sc);
+        // Beside the window choice when the column has room for it, else under it.
+        const float sensor_w = ImGui::CalcTextSize("every sensor").x + ImGui::GetFrameHeight() + 8 * sc;
+        if (ImGui::GetItemRectMax().x + ImGui::GetStyle().ItemSpacing.x * 2 + sensor_w + ImGui::CalcTextSize("sensor").x <=
+            ImGui::GetWindowPos().x + ImGui::GetWindowContentRegionMax().x)
+            ImGui::SameLine();
+        ImGui::SetNextItemWidth(sensor_w);
         if (ImGui::BeginCombo("sensor", m_sensor.empty() ? "every sensor" : m_sensor.c_str())) {
             if (ImGui::Selectable("every sensor", m_sensor.empty())) m_sensor.clear();
             for (const auto& n : sensors)
@@ -190,7 +194,9 @@ private:
         std::snprintf(buf, sizeof buf, "%s (%s)", g.title.c_str(), g.unit.c_str());
         dl->AddText({x, box.min.y}, pal.text, buf);
         x += ImGui::CalcTextSize(buf).x + 12 * sc;
-        const bool lanes = shown.size() > 1;
+        // One lane per sensor while each lane has room for its name and a trace; a short plot
+        // (large UI scale, small window) draws the sensors in one lane, named in the title row.
+        const bool lanes = shown.size() > 1 && area.height() / static_cast<float>(shown.size()) >= line_h * 1.5f;
         for (std::size_t i : shown) {
             const auto& sr = *g.series[i];
             const engine::SeriesPoint* latest = nullptr;
@@ -228,14 +234,18 @@ private:
                 dl->AddLine({tx, r.min.y}, {tx, r.max.y}, pal.grid);
             }
             // Value ticks: a few per lane when it has room, else its top and bottom values.
+            // Their labels stay inside the lane's height and apart from each other.
             const int max_ticks = std::max(1, static_cast<int>(r.height() / (line_h * 1.6f)));
             const auto ticks = niceTicks(y_lo, y_hi, max_ticks);
+            std::vector<float> tick_ys;
             for (double v : ticks) {
                 const float y = Y(v);
                 dl->AddLine({r.min.x, y}, {r.max.x, y}, pal.grid);
                 if (r.height() < line_h * 1.2f) continue;
                 std::snprintf(buf, sizeof buf, "%g", v);
-                const float ty = std::clamp(y - line_h * 0.5f, r.min.y - line_h * 0.3f, r.max.y - line_h * 0.7f);
+                const float ty = std::clamp(y - line_h * 0.5f, r.min.y, r.max.y - line_h);
+                if (std::any_of(tick_ys.begin(), tick_ys.end(), [&](float p) { return std::fabs(p - ty) < line_h; })) continue;
+                tick_ys.push_back(ty);
                 dl->AddText({r.min.x - ImGui::CalcTextSize(buf).x - 4 * sc, ty}, pal.text_dim, buf);
             }
             dl->AddRect(r.min, r.max, pal.axis);
@@ -263,14 +273,19 @@ private:
                 }
             }
             // Limit labels beside their lines, in the right margin, kept apart from each other.
+            // Each label stays inside the lane's height (never in the title row or on the time
+            // axis); one that would lie on another is left out (the line is still drawn).
             if (lane == 0 || !lanes) {
                 std::vector<float> placed;
                 for (const auto& l : g.limits) {
                     const float y = Y(l.value);
-                    if (y < r.min.y - 1 || y > r.max.y + 1) continue;
-                    float ty = y - line_h * 0.5f;
+                    if (y < r.min.y - 1 || y > r.max.y + 1 || r.height() < line_h) continue;
+                    float ty = std::clamp(y - line_h * 0.5f, r.min.y, r.max.y - line_h);
                     for (float p : placed)
                         if (std::fabs(ty - p) < line_h) ty = p + (ty >= p ? line_h : -line_h);
+                    if (ty < r.min.y - 0.5f || ty + line_h > r.max.y + 0.5f) continue;
+                    if (std::any_of(placed.begin(), placed.end(), [&](float p) { return std::fabs(p - ty) < line_h - 0.5f; }))
+                        continue;
                     placed.push_back(ty);
                     std::snprintf(buf, sizeof buf, "%s %.*f", l.level == checks::Level::kAlarm ? "alarm" : "warn", dec, l.value);
                     dl->AddText({r.max.x + 4 * sc, ty}, l.level == checks::Level::kAlarm ? pal.alarm : pal.warn, buf);
@@ -278,11 +293,14 @@ private:
             }
         }
         if (with_time_axis) {
+            float prev_end = -1e9f;
             for (double t = std::ceil(t0 / tick_s) * tick_s; t <= t1; t += tick_s) {
                 const float tx = static_cast<float>(area.min.x + (t - t0) / span * area.width());
                 const std::string lab = formatUtcTime(t);
                 const float tw = ImGui::CalcTextSize(lab.c_str()).x;
                 const float lx = std::clamp(tx - tw * 0.5f, area.min.x, area.max.x + right - tw);
+                if (lx < prev_end + 4 * sc) continue;  // pushed onto its neighbour at an edge
+                prev_end = lx + tw;
                 dl->AddText({lx, area.max.y + 2 * sc}, pal.text_dim, lab.c_str());
             }
         }

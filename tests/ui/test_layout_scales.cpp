@@ -156,8 +156,10 @@ struct Finding {
     std::string what;
 };
 
-// Draws the demo at the case's size, scale and palette and returns what does not hold.
-std::vector<Finding> inspectLayout(const Case& c, const std::shared_ptr<const sg::engine::Snapshot>& snap) {
+// Draws the demo at the case's size, scale and palette, with `tab` the tab shown under the plots,
+// and returns what does not hold.
+std::vector<Finding> inspectLayout(const Case& c, const std::shared_ptr<const sg::engine::Snapshot>& snap,
+                                   const std::string& tab = "Alarms") {
     std::vector<Finding> found;
     ImGui::CreateContext();
     ImGuiIO& io = ImGui::GetIO();
@@ -171,6 +173,7 @@ std::vector<Finding> inspectLayout(const Case& c, const std::shared_ptr<const sg
     settings.ui_scale = c.scale;
     settings.night = c.night;
     settings.follow_vessel = false;
+    settings.tab = tab;
     {
         sg::ui::ScreenUi ui(settings, commands, textures);
         EXPECT_TRUE(ui.prepareFonts());
@@ -188,6 +191,15 @@ std::vector<Finding> inspectLayout(const Case& c, const std::shared_ptr<const sg
         EXPECT_NE(dd, nullptr);
         if (!dd) return found;
         const FrameText text = collectText(*dd, *io.Fonts->Fonts[0], io.DisplaySize);
+        // The tab asked for is the one drawn (the saved tab is restored over the first frames).
+        std::string selected;
+        ImGuiContext& gc = *ImGui::GetCurrentContext();
+        for (int n = 0; n < gc.TabBars.GetBufSize(); ++n) {
+            ImGuiTabBar* bar = gc.TabBars.GetByIndex(n);
+            for (const ImGuiTabItem& t : bar->Tabs)
+                if (t.ID == bar->VisibleTabId) selected = bar->GetTabName(&t);
+        }
+        EXPECT_EQ(selected, tab);
         // The recorder sees the text at all: many runs, and the plan view's own (labels, legend).
         EXPECT_GE(text.runs.size(), 25u) << "the demo screen has far more text than that";
         EXPECT_GE(std::count_if(text.runs.begin(), text.runs.end(), [](const TextRun& r) { return r.window.rfind("Plan", 0) == 0; }),
@@ -248,16 +260,17 @@ TEST_P(LayoutAtScale, PlanViewTextAndWindowPlacementHold) {
     EXPECT_EQ(n, 0);
 }
 
-// Every panel, every window. DISABLED until the panel work of issue #12 running in parallel
-// (time plots as small multiples with one time axis, alarm list, status bar, toolbar, banner)
-// lands: on this branch it finds overlapping limit/legend labels in the time plots, clipped
-// columns in the alarm list and toolbar/status items beyond the right edge at 1.5 and above.
-// Run it with --gtest_also_run_disabled_tests; enable it when those panels are merged.
-TEST_P(LayoutAtScale, DISABLED_EveryPanelHolds) {
+// Every panel, every window: the helm panel, time plots, each tab under them (alarm list, runs
+// and infill, profiles), toolbar, status bar and banner as well as the plan view.
+TEST_P(LayoutAtScale, EveryPanelHolds) {
     ASSERT_TRUE(s_snap);
-    const auto found = inspectLayout(GetParam(), s_snap);
-    for (std::size_t i = 0; i < found.size() && i < 40; ++i) ADD_FAILURE() << found[i].what;
-    EXPECT_TRUE(found.empty()) << found.size() << " findings";
+    // Each tab under the plots in turn (only the shown one is drawn).
+    for (const char* tab : {"Alarms", "Runs & infill", "Profiles"}) {
+        SCOPED_TRACE(tab);
+        const auto found = inspectLayout(GetParam(), s_snap, tab);
+        for (std::size_t i = 0; i < found.size() && i < 40; ++i) ADD_FAILURE() << found[i].what;
+        EXPECT_TRUE(found.empty()) << found.size() << " findings with tab " << tab;
+    }
 }
 
 std::string caseName(const ::testing::TestParamInfo<Case>& i) {
