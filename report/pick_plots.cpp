@@ -316,7 +316,7 @@ int lineProfilePages(PdfDoc& d, const SurveySummary& s) {
             cairo_set_source_rgb(cr, 0.1, 0.1, 0.1);
             d.text(d.left(), pn.y + 9, panelName(k));
             d.font(6);
-            const double step = tickStep(pn.hi - pn.lo, 2);
+            const double step = tickStep(pn.hi - pn.lo, 3);
             for (double v = std::ceil(pn.lo / step) * step; v <= pn.hi + 1e-9; v += step) {
                 const double y = pn.toY(v);
                 const std::string t = fmt::format("{:g}", std::abs(v) < 1e-9 ? 0.0 : v);
