@@ -562,7 +562,7 @@ void picksPages(PdfDoc& d, const SurveySummary& s) {
     if (rows.empty()) d.para("No anomaly reached the live threshold on a line run.", 9);
     else
         d.table({{"pick", 30}, {"E (m)", 60, true}, {"N (m)", 66, true}, {"peak nT", 48, true}, {"width m", 42, true},
-                 {"burial m", 44, true}, {"moment Am2", 56, true}, {"fit r2", 36, true}, {"quality", 44}, {"runs", 80}},
+                 {"burial m", 50, true}, {"moment Am2", 64, true}, {"fit r2", 36, true}, {"quality", 44}, {"runs", 66}},
                 rows);
     if (p.picks.size() > kMaxRows) d.para(fmt::format("{} more picks in picks.csv.", p.picks.size() - kMaxRows), 8.5);
 
