@@ -10,9 +10,11 @@
 
 #include <fmt/format.h>
 
+#include "checks/check_set.hpp"
 #include "coverage/exports.hpp"
 #include "report/map_render.hpp"
 #include "report/pdf_doc.hpp"
+#include "report/pick_plots.hpp"
 
 namespace sg::report {
 
@@ -95,10 +97,37 @@ coverage::Box gapWindow(const coverage::Gap& g) {
     return {g.bbox.min_e - pad, g.bbox.min_n - pad, g.bbox.max_e + pad, g.bbox.max_n + pad};
 }
 
-// The cause text of gap `id` (see engine::GapCause).
+// A check named in the words the screen shows (checks::checkWords, issue #12): never the
+// internal identifier. A silence check's outage kind likewise; "link" stays "link outage".
+std::string checkText(const std::string& check) { return std::string(checks::checkWords(check)); }
+std::string outageKindText(const std::string& kind) { return kind == "link" ? "link outage" : checkText(kind); }
+
+// "forming_gap (alarm)" (engine::GapPass::checks) in words: "Gap forming beside the last line (alarm)".
+std::string checkEntryText(const std::string& entry) {
+    const auto paren = entry.find(" (");
+    if (paren == std::string::npos) return checkText(entry);
+    return checkText(entry.substr(0, paren)) + entry.substr(paren);
+}
+
+// The cause of a gap in words (the summary's GapCause::text names the checks by identifier):
+// the same passes, offsets and alarms, each check by the words the screen shows.
+std::string causeWords(const engine::GapCause& gc) {
+    if (gc.passes.empty()) return gc.text;
+    std::string text;
+    for (const auto& p : gc.passes) {
+        std::string what;
+        for (const auto& x : p.checks) what += (what.empty() ? "" : ", ") + checkEntryText(x);
+        for (const auto& x : p.outages) what += (what.empty() ? "" : ", ") + x;
+        text += fmt::format("{}{} run {} ({:.0f} m off): {}", text.empty() ? "" : "; ", p.line, p.run, p.offset_m,
+                            what.empty() ? "no alarm" : what);
+    }
+    return text;
+}
+
+// The cause text of gap `id` (see engine::GapCause), in words.
 std::string causeOf(const SurveySummary& s, int id) {
     for (const auto& gc : s.gap_causes)
-        if (gc.gap_id == id) return gc.text;
+        if (gc.gap_id == id) return causeWords(gc);
     return "";
 }
 
@@ -113,6 +142,8 @@ struct AlarmGroup {
     int episodes = 0, alarm_level = 0, open = 0;
     double total_s = 0, worst = 0;
     std::string unit;
+    // The worst peak in words (checks::checkValueText: a fix-quality rank reads as its fix type).
+    std::string worstText(const std::string& check) const { return checks::checkValueText(check, worst); }
 };
 
 std::map<std::string, AlarmGroup> groupAlarms(const SurveySummary& s) {
@@ -390,10 +421,10 @@ void alarmPages(PdfDoc& d, const SurveySummary& s) {
     }
     std::vector<std::vector<std::string>> rows;
     for (const auto& [check, g] : groupAlarms(s))
-        rows.push_back({check, fmt::format("{}", g.episodes), fmt::format("{}", g.alarm_level), fmt::format("{}", g.open),
-                        duration(g.total_s), fmt::format("{:.2f} {}", g.worst, g.unit)});
-    d.table({{"check", 110}, {"episodes", 55, true}, {"at alarm", 55, true}, {"open", 45, true}, {"total time", 70, true},
-             {"worst peak", 90, true}},
+        rows.push_back({checkText(check), fmt::format("{}", g.episodes), fmt::format("{}", g.alarm_level),
+                        fmt::format("{}", g.open), duration(g.total_s), g.worstText(check)});
+    d.table({{"check", 190}, {"episodes", 50, true}, {"at alarm", 50, true}, {"open", 40, true}, {"total time", 65, true},
+             {"worst peak", 110, true}},
             rows);
     constexpr std::size_t kMaxRows = 80;
     d.subheading(s.alarms.size() > kMaxRows
@@ -402,19 +433,20 @@ void alarmPages(PdfDoc& d, const SurveySummary& s) {
     rows.clear();
     for (std::size_t i = 0; i < s.alarms.size() && i < kMaxRows; ++i) {
         const auto& a = s.alarms[i];
-        rows.push_back({a.check, utcClock(a.start_ns), a.end_ns ? utcClock(*a.end_ns) : "open",
+        rows.push_back({checkText(a.check), utcClock(a.start_ns), a.end_ns ? utcClock(*a.end_ns) : "open",
                         a.end_ns ? duration(toSeconds(*a.end_ns - a.start_ns)) : "", a.peak_level,
-                        fmt::format("{:.2f} {}", a.peak_value, a.unit), a.ack_ns ? utcClock(*a.ack_ns) : "no"});
+                        checks::checkValueText(a.check, a.peak_value), a.ack_ns ? utcClock(*a.ack_ns) : "no"});
     }
-    d.table({{"check", 95}, {"start UTC", 55}, {"end UTC", 55}, {"duration", 55, true}, {"peak level", 55},
-             {"peak value", 80, true}, {"acknowledged", 60}},
+    d.table({{"check", 175}, {"start UTC", 48}, {"end UTC", 48}, {"duration", 48, true}, {"peak level", 45},
+             {"peak value", 90, true}, {"acknowledged", 55}},
             rows);
 }
 
 // Compact cause for the gap table: the checks near the passes, "none" or "not run".
 std::string shortCause(const engine::GapCause& gc) {
     if (gc.passes.empty()) return "not run";
-    std::vector<std::string> v = gc.checks;
+    std::vector<std::string> v;
+    for (const auto& c : gc.checks) v.push_back(checkText(c));
     for (const auto& p : gc.passes)
         for (const auto& o : p.outages) v.push_back(o);
     return v.empty() ? "none" : join(v, ", ");
@@ -488,9 +520,9 @@ void outagePage(PdfDoc& d, const SurveySummary& s) {
     } else {
         std::vector<std::vector<std::string>> rows;
         for (const auto& o : s.outages)
-            rows.push_back({o.kind, o.source, utcDateTime(o.start_ns), o.end_ns ? utcClock(*o.end_ns) : "open",
+            rows.push_back({outageKindText(o.kind), o.source, utcDateTime(o.start_ns), o.end_ns ? utcClock(*o.end_ns) : "open",
                             duration(o.duration_s), o.detail});
-        d.table({{"kind", 70}, {"source", 70}, {"start UTC", 90}, {"end UTC", 50}, {"duration", 55, true}, {"detail", 170}},
+        d.table({{"kind", 100}, {"source", 50}, {"start UTC", 90}, {"end UTC", 50}, {"duration", 55, true}, {"detail", 160}},
                 rows);
     }
     const auto& v = s.invalid;
@@ -530,7 +562,7 @@ void picksPages(PdfDoc& d, const SurveySummary& s) {
     if (rows.empty()) d.para("No anomaly reached the live threshold on a line run.", 9);
     else
         d.table({{"pick", 30}, {"E (m)", 60, true}, {"N (m)", 66, true}, {"peak nT", 48, true}, {"width m", 42, true},
-                 {"burial m", 44, true}, {"moment Am2", 56, true}, {"fit r2", 36, true}, {"quality", 44}, {"runs", 80}},
+                 {"burial m", 50, true}, {"moment Am2", 64, true}, {"fit r2", 36, true}, {"quality", 44}, {"runs", 66}},
                 rows);
     if (p.picks.size() > kMaxRows) d.para(fmt::format("{} more picks in picks.csv.", p.picks.size() - kMaxRows), 8.5);
 
@@ -735,12 +767,14 @@ ReportResult writeSiteReport(const SurveySummary& s, const engine::SurveyEngine&
         mapPage(d, s, in);
         gapMaps(d, s, in);
         lineTables(d, s);
+        lineProfilePages(d, s);
         sessionTable(d, s);
         alarmPages(d, s);
         gapPages(d, s);
         outagePage(d, s);
         modelPage(d, s);
         picksPages(d, s);
+        picksMapPage(d, s, in);
         res.pdf_pages = d.pages();
         d.finish();
     }

@@ -2,7 +2,8 @@
 // the ONE survey summary (engine::summarise, the same numbers `swathguard gaps --json` prints):
 //   report.pdf          a few pages: site and plan, headline figures, cautions and sign-off, the
 //                       coverage map, gap details, per-line tables, alarms, gaps and infill,
-//                       data outages, the detection model and its assumptions
+//                       line profiles (report/pick_plots.hpp), data outages, the detection model
+//                       and its assumptions, anomaly picks (table, verification, picks map)
 //   coverage_map.png    the overview map; gap_G<id>.png one detail map per significant gap
 //   coverage_margin.tif the margin raster as a GeoTIFF in the survey CRS (see geotiff.hpp)
 //   summary.json        the summary itself (identical to `gaps --json`)

@@ -505,6 +505,10 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
                 const int line = lines.activeLine();
                 if (line >= 0) m_deviation = lines.crossTrack(line, ref, dir_e, dir_n);
                 else m_deviation.reset();
+                // The report's line profiles (coverage/run_profiles.hpp).
+                if (line >= 0 && m_run_of_last_sample != coverage::kRunNone)
+                    m_profiles.addPosition(m_run_of_last_sample, line, t_ns, lines.alongTrack(line, ref), alt,
+                                           m_deviation);
             }
             if (m_last_ref_pos) {
                 const double step = std::hypot(ref.e_m - m_last_ref_pos->e_m, ref.n_m - m_last_ref_pos->n_m);
@@ -519,8 +523,10 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
     if (m_cov) {
         m_cov->addSample(swathSample(s));
         // Per-run noise (for the report's line table): warmed-up estimates only.
-        if (s.field_nT && warmed_up)
+        if (s.field_nT && warmed_up) {
             m_cov->lines().addNoise(m_run_of_last_sample, s.noise_nT);
+            m_profiles.addNoise(m_run_of_last_sample, s.noise_nT);
+        }
     }
 }
 

@@ -23,6 +23,7 @@
 #include "coverage/gaps.hpp"
 #include "coverage/infill.hpp"
 #include "coverage/line_runs.hpp"
+#include "coverage/run_profiles.hpp"
 #include "coverage/survey_plan.hpp"
 #include "coverage/survey_coverage.hpp"
 #include "coverage/swath_painter.hpp"
@@ -172,6 +173,9 @@ public:
     const coverage::LineTracker* lines() const { return m_cov ? &m_cov->lines() : nullptr; }
     const checks::CheckSet& checks() const { return m_checks; }
     const std::vector<SensorState>& sensors() const { return m_sensors; }
+    // Altitude, deviation and noise along each line run of this session, in one-metre bins (the
+    // report's line profiles; a site's earlier sessions have none).
+    const coverage::RunProfiles& runProfiles() const { return m_profiles; }
     const InvalidCounts& invalidCounts() const { return m_invalid; }
     // Samples by sensor index that matches no [[sensor]] (index -> samples).
     const std::map<int, std::uint64_t>& unknownSensorSamples() const { return m_unknown_samples; }
@@ -346,6 +350,7 @@ private:
     detect::PickSettings m_pick_settings;
     std::optional<detect::AnomalyPicker> m_picker;
     detect::VerificationStrip m_strip;
+    coverage::RunProfiles m_profiles;
     bool m_strip_placed = false;
 };
 

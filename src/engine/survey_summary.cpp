@@ -210,6 +210,20 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
             for (const auto& r : s.runs) lc.runs += r.line == static_cast<int>(i) ? 1 : 0;
             s.line_coverage.push_back(std::move(lc));
         }
+        // Line profiles (report): the engine's bins, each run's picks placed along its line.
+        for (const auto& rp : engine.runProfiles().profiles()) {
+            RunProfileSummary ps;
+            ps.profile = rp;
+            for (const auto& k : s.picks.picks)
+                for (const auto& ob : k.observations)
+                    if (ob.run == rp.run)
+                        ps.picks.push_back({k.id, engine.lines()->alongTrack(rp.line, {ob.easting_m, ob.northing_m}),
+                                            ob.snr, ob.peak_nT});
+            s.profiles.push_back(std::move(ps));
+        }
+        s.profile_limits.altitude = engine.checks().check("altitude").limits();
+        s.profile_limits.deviation = engine.checks().check("deviation").limits();
+        s.profile_limits.noise = engine.checks().check("noise").limits();
     }
     auto& d = s.detection;
     d.field = cfg.detection.field;

@@ -64,6 +64,23 @@ struct GapCause {
     std::string text;                  // one line for people
 };
 
+// A line run's profile for the report's line plots (coverage/run_profiles.hpp), with the picks
+// that run saw placed along its line.
+struct ProfilePick {
+    int id = 0;            // pick id (P<id>)
+    double along_m = 0.0;  // of this run's observation, along the plan line from its start (m)
+    double snr = 0.0;      // |peak| / threshold of this observation
+    double peak_nT = 0.0;  // signed
+};
+struct RunProfileSummary {
+    coverage::RunProfile profile;
+    std::vector<ProfilePick> picks;
+};
+// The check limits drawn on the line profiles (as in force at the end of the log).
+struct ProfileLimits {
+    checks::Limits altitude, deviation, noise;
+};
+
 // What the log adds to the engine's state (optional: the demo and tests have no log reader).
 struct LogContext {
     std::string path;
@@ -109,6 +126,10 @@ struct SurveySummary {
     // Anomaly picks and the verification strip of the samples this engine processed (a site's
     // earlier logs are not re-picked: docs/picks.md).
     PicksSummary picks;
+    // Altitude, deviation, noise and picks along each line run of this engine's session (not in
+    // the JSON; a site's earlier sessions have none), and the limits to draw on them.
+    std::vector<RunProfileSummary> profiles;
+    ProfileLimits profile_limits;
 };
 
 // The alarm episodes and data outages of the engine's own session (no site history).
