@@ -3,8 +3,10 @@
 // framing and Pipeline as live acquisition, into a survey log; at the end the coverage summary,
 // the gap list and the infill exports are written and their paths printed.
 #include <chrono>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <fstream>
 #include <map>
 #include <thread>
 
@@ -15,6 +17,7 @@
 #include "app/screen_session.hpp"
 #include "app/site_open.hpp"
 #include "drivers_sim/pipeline_feed.hpp"
+#include "drivers_sim/planted_field.hpp"
 #include "drivers_sim/route_file.hpp"
 #include "site/session_summary.hpp"
 #include "site/site_config.hpp"
@@ -80,7 +83,62 @@ struct DemoOptions {
     std::optional<double> run_out_m;
     bool no_faults = false;
     std::string start;
+    bool truth = false;  // --truth: truth_items.csv and truth_peaks.csv beside the log
 };
+
+// What the simulator planted and how strongly the sensors saw it (`demo --truth`), for checking
+// the picks against a world the detector did not compute (bench/bench_replay_day.sh). Per item:
+// the largest |true anomaly| (the simulator's own dipole code, no noise) of any sample within
+// kNearM horizontally, its ratio to the live threshold the engine had for that sensor then, and
+// the longest run of consecutive samples of one sensor within kNearM whose |true anomaly| reaches
+// that threshold (the picker needs [picks] min_samples of them).
+class TruthPeaks {
+public:
+    static constexpr double kNearM = 6.0;
+    explicit TruthPeaks(std::vector<sim::PlantedItem> items) : m_items(std::move(items)), m_seen(m_items.size()) {}
+    void add(const sim::MagTruth& m, double threshold_nT) {
+        for (std::size_t i = 0; i < m_items.size(); ++i) {
+            Seen& s = m_seen[i];
+            const auto key = static_cast<std::size_t>(std::max(0, m.sensor));
+            if (s.run.size() <= key) s.run.resize(key + 1, 0);
+            const bool near = std::hypot(m.easting_m - m_items[i].easting_m, m.northing_m - m_items[i].northing_m) <= kNearM;
+            if (!near || !m.sent) {
+                s.run[key] = 0;
+                continue;
+            }
+            const double a = std::abs(m.anomaly_nT);
+            s.peak_nT = std::max(s.peak_nT, a);
+            if (threshold_nT > 0.0) s.best_ratio = std::max(s.best_ratio, a / threshold_nT);
+            s.run[key] = threshold_nT > 0.0 && a >= threshold_nT ? s.run[key] + 1 : 0;
+            s.longest = std::max(s.longest, s.run[key]);
+        }
+    }
+    std::string csv() const {
+        std::string out = "name,easting_m,northing_m,burial_m,moment_Am2,true_peak_nT,peak_over_threshold,"
+                          "samples_over_threshold\n";
+        for (std::size_t i = 0; i < m_items.size(); ++i)
+            out += fmt::format("\"{}\",{:.3f},{:.3f},{:.3f},{:.4g},{:.3f},{:.3f},{}\n", m_items[i].name,
+                               m_items[i].easting_m, m_items[i].northing_m, m_items[i].burial_m,
+                               m_items[i].moment_Am2, m_seen[i].peak_nT, m_seen[i].best_ratio, m_seen[i].longest);
+        return out;
+    }
+    const std::vector<sim::PlantedItem>& items() const { return m_items; }
+
+private:
+    struct Seen {
+        double peak_nT = 0.0, best_ratio = 0.0;
+        int longest = 0;
+        std::vector<int> run;  // per sensor: consecutive samples over the threshold now
+    };
+    std::vector<sim::PlantedItem> m_items;
+    std::vector<Seen> m_seen;
+};
+
+void writeText(const std::string& path, const std::string& text) {
+    std::ofstream out(path, std::ios::binary | std::ios::trunc);
+    out << text;
+    if (!out) throw std::runtime_error("demo: cannot write " + path);
+}
 
 int runDemo(const DemoOptions& opts) {
     DemoOptions o = opts;
@@ -178,8 +236,19 @@ int runDemo(const DemoOptions& opts) {
     const auto wall0 = std::chrono::steady_clock::now();
     TimeNs next_status = 0;
     std::uint64_t lines = 0;
+    std::optional<TruthPeaks> truth;
+    if (o.truth) truth.emplace(sim::plantedItems(simulator));
     while (!simulator.done()) {
         const auto& out = simulator.step();
+        if (truth) {
+            // The live threshold the engine holds for that sensor as the sample is sent.
+            for (const auto& m : out.mag) {
+                double threshold = 0.0;
+                for (const auto& st : pipeline.engine().sensors())
+                    if (st.index == m.sensor) threshold = st.threshold_nT;
+                truth->add(m, threshold);
+            }
+        }
         for (const auto& line : out.lines) {
             auto it = framers.find(static_cast<int>(line.channel));
             if (it == framers.end()) continue;
@@ -236,7 +305,14 @@ int runDemo(const DemoOptions& opts) {
         site::writeSessionSummary(site::summaryPathFor(log_path), sum);
         std::printf("demo: session summary %s\n", site::summaryPathFor(log_path).c_str());
     }
-    const auto written = engine::writeExports(summary, pipeline.engine(), o.out_dir);
+    auto written = engine::writeExports(summary, pipeline.engine(), o.out_dir);
+    if (truth) {
+        const auto dir = std::filesystem::path(log_path).parent_path();
+        writeText((dir / "truth_items.csv").string(), sim::plantedItemsCsv(truth->items()));
+        writeText((dir / "truth_peaks.csv").string(), truth->csv());
+        written.push_back((dir / "truth_items.csv").string());
+        written.push_back((dir / "truth_peaks.csv").string());
+    }
     std::printf("log: %s\n", log_path.c_str());
     for (const auto& p : written) std::printf("wrote %s\n", p.c_str());
     const int covered_rc = nothingCoveredExit(summary, pipeline.engine(), "demo");
@@ -273,6 +349,9 @@ void addDemoCommand(CLI::App& app) {
     cmd->add_option("--route", o->route, "Fly the LineStrings of this GeoJSON (e.g. infill.geojson) instead");
     cmd->add_option("--run-out", o->run_out_m, "Straight run past each line's end (m)");
     cmd->add_flag("--no-faults", o->no_faults, "Leave out the scenario's faults");
+    cmd->add_flag("--truth", o->truth,
+                  "Also write the planted items (truth_items.csv) and how strongly the sensors saw them "
+                  "(truth_peaks.csv) beside the log");
     cmd->add_option("--start", o->start, "Simulated start (UTC, e.g. 2026-06-15T08:00:00Z)");
     addScreenOptions(*cmd, o->screen);
     cmd->callback([o] {

@@ -31,6 +31,7 @@ struct ReplayOptions {
     ScreenArgs screen;
     bool json = false;
     std::string export_dir;
+    bool no_picks = false;  // --no-picks: this run without anomaly picks and verification strip
 };
 
 // "max" -> 0 (no pacing), else a positive factor.
@@ -56,13 +57,16 @@ std::optional<std::string> configOverride(const ReplayOptions& o) {
 std::unique_ptr<engine::LogReplay> makeReplay(ReplayOptions& o) {
     if (!namesSite(o.logs)) {
         o.log = o.logs.front();
-        return std::make_unique<engine::LogReplay>(o.log, configOverride(o));
+        auto replay = std::make_unique<engine::LogReplay>(o.log, configOverride(o));
+        if (o.no_picks) replay->switchOffPicks();
+        return replay;
     }
     auto site = std::make_shared<site::Site>(openSite(o.logs, configOverride(o)));
     const auto usable = site->usable();
     const auto* last = usable.back();
     o.log = last->path;
     auto replay = std::make_unique<engine::LogReplay>(o.log, *last->config);
+    if (o.no_picks) replay->switchOffPicks();
     const std::size_t earlier = usable.size() - 1;
     std::printf("replay: site %s: %zu earlier log(s) joined before %s\n",
                 site->dir.empty() ? "(logs given)" : site->dir.c_str(), earlier, o.log.c_str());
@@ -211,6 +215,9 @@ int runGaps(const ReplayOptions& o) {
     engine::SurveyEngine* eng = nullptr;
     engine::SurveySummary summary;
     if (namesSite(o.logs)) {
+        if (o.no_picks)
+            throw CLI::ValidationError("--no-picks", "applies to one log; a site's gaps join the sessions' "
+                                       "summaries as they were made");
         // A site: the per-log summaries joined, no replay of logs whose summary is current.
         const auto site = openSite(o.logs, configOverride(o));
         view = summariseSite(site);
@@ -218,6 +225,7 @@ int runGaps(const ReplayOptions& o) {
         summary = std::move(view.summary);
     } else {
         replay = std::make_unique<engine::LogReplay>(o.logs.front(), configOverride(o));
+        if (o.no_picks) replay->switchOffPicks();
         if (!checkLogSetup(o.logs.front(), replay->config(), "gaps")) return kExitSetupError;
         replay->runToEnd();
         eng = &replay->pipeline().engine();
@@ -247,6 +255,8 @@ void addReplayCommands(CLI::App& app) {
     replay->add_option("--speed", ro->speed, "Replay speed: a factor (1 = real time) or max")
         ->default_str("max");
     replay->add_option("--config", ro->config, "Survey config to use instead of the one in the log");
+    replay->add_flag("--no-picks", ro->no_picks,
+                     "Replay without anomaly picks and the verification strip (as [picks] enabled = false)");
     addScreenOptions(*replay, ro->screen);
     replay->callback([ro] { runReplay(*ro); });
 
@@ -258,6 +268,8 @@ void addReplayCommands(CLI::App& app) {
                      "Write gaps.geojson, gaps.csv, infill.geojson, infill.gpx, infill.csv here");
     gaps->add_flag("--json", go->json, "Print the summary as JSON");
     gaps->add_option("--config", go->config, "Survey config to use instead of the one in the log");
+    gaps->add_flag("--no-picks", go->no_picks,
+                   "Without anomaly picks and the verification strip (as [picks] enabled = false; one log only)");
     gaps->callback([go] {
         const int rc = runGaps(*go);
         if (rc != 0) throw CLI::RuntimeError(rc);

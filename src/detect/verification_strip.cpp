@@ -11,12 +11,32 @@
 
 namespace sg::detect {
 
-std::vector<KnownItem> parseKnownItems(const config::Section& root,
+std::vector<KnownItem> parseKnownItems(const config::Section& root, const toml::table& raw,
                                        const std::vector<TargetClass>& classes) {
     std::vector<KnownItem> out;
+    const auto* raw_items = raw["known_item"].as_array();
+    std::size_t index = 0;
     for (const config::Section& s : root.tables("known_item")) {
-        s.allowOnly({"name", "lon_lat_deg", "grid_m", "target", "burial_m"});
+        s.allowOnly({"name", "lon_lat_deg", "grid_m", "target", "burial_m", "lines"});
         KnownItem it;
+        it.key = fmt::format("known_item[{}]", index);
+        it.file = s.file();
+        const toml::table* t = raw_items != nullptr && index < raw_items->size()
+                                   ? raw_items->get(index)->as_table()
+                                   : nullptr;
+        ++index;
+        if (t != nullptr && t->contains("lines")) {
+            const char* expected = "a non-empty array of distinct plan line names (strings), e.g. [\"BB07\"]";
+            const auto* a = (*t)["lines"].as_array();
+            if (a == nullptr || a->empty()) s.fail("lines", expected);
+            for (const auto& el : *a) {
+                const auto* v = el.as_string();
+                if (v == nullptr || v->get().empty() ||
+                    std::find(it.lines.begin(), it.lines.end(), v->get()) != it.lines.end())
+                    s.fail("lines", expected);
+                it.lines.push_back(v->get());
+            }
+        }
         it.name = s.string("name");
         const auto ll = s.optionalNumbers("lon_lat_deg", 2);
         const auto en = s.optionalNumbers("grid_m", 2);
@@ -66,10 +86,19 @@ void VerificationStrip::add(const DetrendedSample& d) {
     }
 }
 
-VerificationResult VerificationStrip::result(const std::vector<TargetModel>& models) const {
+VerificationResult VerificationStrip::result(const std::vector<TargetModel>& models,
+                                             const std::vector<std::string>& run_lines,
+                                             const std::vector<std::string>& plan_lines) const {
     VerificationResult out;
-    for (std::size_t i = 0; i < m_items.size(); ++i)
+    for (std::size_t i = 0; i < m_items.size(); ++i) {
         if (!placed(i)) out.unplaced.push_back(m_items[i].name);
+        if (plan_lines.empty()) continue;
+        for (const auto& l : m_items[i].lines)
+            if (std::find(plan_lines.begin(), plan_lines.end(), l) == plan_lines.end())
+                out.notes.push_back(fmt::format("{}: {}.lines: '{}' is no line of the plan (item '{}')",
+                                                m_items[i].file, m_items[i].key, l, m_items[i].name));
+    }
+    std::map<std::pair<std::size_t, std::string>, int> apart;  // (item, line) -> passes not counted
     std::map<std::string, std::vector<const VerificationPass*>> by_class;
     for (const auto& [key, t] : m_tracks) {
         const auto [item_index, run, slot] = key;
@@ -101,10 +130,24 @@ VerificationResult VerificationStrip::result(const std::vector<TargetModel>& mod
         p.ratio = p.predicted_nT > 0.0 ? p.measured_nT / p.predicted_nT : 0.0;
         p.predicted_detected = p.predicted_nT >= p.threshold_nT;
         p.detected = p.measured_nT >= p.threshold_nT;
+        if (run >= 0 && static_cast<std::size_t>(run) < run_lines.size()) p.line = run_lines[static_cast<std::size_t>(run)];
+        if (!item.lines.empty() && std::find(item.lines.begin(), item.lines.end(), p.line) == item.lines.end()) {
+            p.on_named_line = false;
+            ++apart[{item_index, p.line}];
+        }
         out.passes.push_back(p);
     }
+    for (const auto& [key, n] : apart) {
+        const KnownItem& item = m_items[key.first];
+        std::string named;
+        for (const auto& l : item.lines) named += (named.empty() ? "" : ", ") + l;
+        out.notes.push_back(fmt::format("'{}': {} pass(es) on {} (not among its lines: {}) reported apart, "
+                                        "not used in the verdict",
+                                        item.name, n, key.second.empty() ? "no plan line" : "line " + key.second,
+                                        named));
+    }
     for (const auto& p : out.passes)
-        if (p.predicted_detected) by_class[p.target_class].push_back(&p);
+        if (p.predicted_detected && p.on_named_line) by_class[p.target_class].push_back(&p);
     // Classes with known items but no usable pass still get a verdict line.
     for (const auto& it : m_items) by_class.try_emplace(it.target_class);
     for (auto& [name, passes] : by_class) {

@@ -20,6 +20,8 @@
 #include <tuple>
 #include <vector>
 
+#include <toml++/toml.h>
+
 #include "detect/anomaly_picker.hpp"
 #include "detect/target_model.hpp"
 
@@ -36,10 +38,16 @@ struct KnownItem {
     std::optional<double> grid_e_m, grid_n_m;        // grid_m = [easting, northing] (survey CRS)
     std::string target_class;                        // name of a [[target]]
     double burial_m = 0.0;                           // below the seabed (default: the class's)
+    // lines = ["BB07", "BB08"]: the plan lines laid to pass it (the strip's own lines). Empty:
+    // every line counts. Passes on other lines are reported apart and left out of the verdict.
+    std::vector<std::string> lines;
+    std::string key;                                 // "known_item[i]" in `file`, for messages
+    std::string file;
 };
-// Throws config::ConfigError naming the key when a position is missing or doubled, or the class
-// names no [[target]].
-std::vector<KnownItem> parseKnownItems(const config::Section& root,
+// Throws config::ConfigError naming the file and key when a position is missing or doubled, the
+// class names no [[target]], or `lines` is not an array of distinct non-empty strings.
+// `raw`: the parsed TOML root that `root` reads (for the string arrays of `lines`).
+std::vector<KnownItem> parseKnownItems(const config::Section& root, const toml::table& raw,
                                        const std::vector<TargetClass>& classes);
 
 inline constexpr double kVerificationTolerance = 0.15;
@@ -62,6 +70,10 @@ struct VerificationPass {
     double ratio = 0.0;            // measured / predicted
     bool predicted_detected = false;  // predicted >= threshold
     bool detected = false;            // measured >= threshold
+    std::string line;                 // plan line of the run ("" off plan or unknown)
+    // false: the item names its lines and this pass is on another one (reported apart, not in
+    // the verdict).
+    bool on_named_line = true;
 };
 
 struct ClassVerdict {
@@ -81,6 +93,8 @@ struct VerificationResult {
     std::vector<VerificationPass> passes;  // by item, run, sensor
     std::vector<ClassVerdict> verdicts;    // one per class with known items
     std::vector<std::string> unplaced;     // items that could not be placed (no CRS)
+    // Messages: passes on lines the item does not name, names in `lines` that are no plan line.
+    std::vector<std::string> notes;
 };
 
 class VerificationStrip {
@@ -94,8 +108,12 @@ public:
     bool placed(std::size_t item) const { return item < m_pos.size() && m_pos[item].has_value(); }
 
     void add(const DetrendedSample& d);
-    // `models`: the survey's models, in the order of the config's [[target]].
-    VerificationResult result(const std::vector<TargetModel>& models) const;
+    // `models`: the survey's models, in the order of the config's [[target]]. `run_lines`: the
+    // plan line name of each run id ("" off plan); `plan_lines`: every line name of the plan
+    // (empty without a plan: names in `lines` are then not checked).
+    VerificationResult result(const std::vector<TargetModel>& models,
+                              const std::vector<std::string>& run_lines = {},
+                              const std::vector<std::string>& plan_lines = {}) const;
 
 private:
     struct Track {

@@ -32,6 +32,11 @@ void LogReplay::setSiteSeed(std::function<SiteSeed()> make_seed) {
     restart();
 }
 
+void LogReplay::switchOffPicks() {
+    engine::switchOffPicks(m_config);
+    restart();
+}
+
 void LogReplay::init() {
     m_total = m_reader.rawCount();
     // First and last receive times, for the seek bar.

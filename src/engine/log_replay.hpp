@@ -49,6 +49,8 @@ public:
     LogReplay(const std::string& log_path, SurveyConfig config);
     // A site: the earlier sessions to join before the first line (kept for restart()).
     void setSiteSeed(std::function<SiteSeed()> make_seed);
+    // Replays without anomaly picks and the verification strip (switchOffPicks); starts again.
+    void switchOffPicks();
 
     // Feeds the next line; false at the end of the log.
     bool step();

@@ -114,7 +114,8 @@ nlohmann::json verificationJson(const PicksSummary& p) {
                           {"measured_nT", v.measured_nT},
                           {"ratio", v.ratio},
                           {"predicted_detected", v.predicted_detected},
-                          {"detected", v.detected}});
+                          {"detected", v.detected},
+                          {"on_named_line", v.on_named_line}});
     }
     auto verdicts = nlohmann::json::array();
     for (const auto& v : p.verification.verdicts)
@@ -130,6 +131,7 @@ nlohmann::json verificationJson(const PicksSummary& p) {
     j["passes"] = passes;
     j["verdicts"] = verdicts;
     j["unplaced_items"] = p.verification.unplaced;
+    j["notes"] = p.verification.notes;
     j["tolerance"] = detect::kVerificationTolerance;
     return j;
 }
@@ -174,16 +176,16 @@ std::string picksGeoJson(const PicksSummary& p) {
 std::string verificationCsv(const PicksSummary& p) {
     std::string s =
         "item,class,run,line,sensor,offset_m,altitude_m,vertical_m,heading_true_deg,threshold_nT,predicted_nT,"
-        "measured_nT,ratio,predicted_detected,detected\n";
+        "measured_nT,ratio,predicted_detected,detected,on_named_line\n";
     for (const auto& v : p.verification.passes) {
         const std::string line = v.run >= 0 && static_cast<std::size_t>(v.run) < p.run_lines.size()
                                      ? p.run_lines[static_cast<std::size_t>(v.run)]
                                      : std::string();
-        s += fmt::format("{},{},{},{},{},{:.2f},{:.2f},{:.2f},{:.1f},{:.3f},{:.3f},{:.3f},{:.3f},{},{}\n",
+        s += fmt::format("{},{},{},{},{},{:.2f},{:.2f},{:.2f},{:.1f},{:.3f},{:.3f},{:.3f},{:.3f},{},{},{}\n",
                          coverage::csvField(v.item), coverage::csvField(v.target_class), v.run,
                          coverage::csvField(line), v.sensor_slot, v.offset_m, v.altitude_m, v.vertical_m,
                          v.heading_true_deg, v.threshold_nT, v.predicted_nT, v.measured_nT, v.ratio,
-                         v.predicted_detected ? 1 : 0, v.detected ? 1 : 0);
+                         v.predicted_detected ? 1 : 0, v.detected ? 1 : 0, v.on_named_line ? 1 : 0);
     }
     return s;
 }

@@ -29,6 +29,15 @@ void parseSurveyInfo(const config::Section& root, SurveyConfig& cfg) {
 
 }  // namespace
 
+void switchOffPicks(SurveyConfig& cfg) {
+    auto copy = cfg.table ? std::make_shared<toml::table>(*cfg.table) : std::make_shared<toml::table>();
+    if (auto* picks = (*copy)["picks"].as_table())
+        picks->insert_or_assign("enabled", false);
+    else
+        copy->insert_or_assign("picks", toml::table{{"enabled", false}});
+    cfg.table = std::move(copy);
+}
+
 SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
                                const std::string& dir, config::InputUse use) {
     SurveyConfig cfg;
@@ -49,7 +58,7 @@ SurveyConfig parseSurveyConfig(const std::string& text, const std::string& name,
     parseSurveyInfo(root, cfg);
     cfg.outputs = helm::parseOutputs(root);
     (void)detect::parsePickSettings(root);                          // [picks]
-    (void)detect::parseKnownItems(root, cfg.detection.targets);     // [[known_item]]
+    (void)detect::parseKnownItems(root, *cfg.table, cfg.detection.targets);     // [[known_item]]
     (void)checks::CheckSet::fromConfig(root);  // validates [checks] now, not mid-survey
     return cfg;
 }

@@ -45,6 +45,12 @@ struct SurveyConfig {
     config::Section root() const { return config::Section(*table, file); }
 };
 
+// The same config with anomaly picks and the verification strip switched off for this run only,
+// as if it said `[picks] enabled = false` (the other [picks] keys are kept). The stored text is
+// left as it was: it is what the survey was recorded with. Used by `replay --no-picks` and
+// `gaps --no-picks` to measure what detection costs (bench/bench_replay_day.sh).
+void switchOffPicks(SurveyConfig& cfg);
+
 // Reads and validates a config file. Throws config::ConfigError naming file, key and line.
 // `use`: Offline for reading a log back (an [[input]] may then have no transport, as `import`
 // allows), Acquisition for `record` and the demo.

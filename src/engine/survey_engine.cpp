@@ -62,7 +62,7 @@ SurveyEngine::SurveyEngine(const SurveyConfig& config, std::function<std::int64_
     }
 
     m_pick_settings = detect::parsePickSettings(root);
-    m_strip = detect::VerificationStrip(detect::parseKnownItems(root, m_cfg.detection.targets));
+    m_strip = detect::VerificationStrip(detect::parseKnownItems(root, *m_cfg.table, m_cfg.detection.targets));
     if (m_pick_settings.enabled) {
         m_picker.emplace(m_pick_settings, m_cfg.detection.field, m_cfg.detection.detection.mass_rule_C,
                          m_cfg.nav.sensors.size());
@@ -392,7 +392,16 @@ SurveyEngine::PicksNow SurveyEngine::picksNow() const {
     picker.finish();
     out.picks = picker.picks();
     out.peaks = picker.peaks();
-    out.verification = strip.result(m_models);
+    std::vector<std::string> run_lines, plan_lines;
+    if (const auto* tracker = lines()) {
+        const auto& ls = tracker->lines();
+        for (const auto& l : ls) plan_lines.push_back(l.name);
+        for (const auto& r : tracker->runs())
+            run_lines.push_back(r.line >= 0 && static_cast<std::size_t>(r.line) < ls.size()
+                                    ? ls[static_cast<std::size_t>(r.line)].name
+                                    : std::string());
+    }
+    out.verification = strip.result(m_models, run_lines, plan_lines);
     return out;
 }
 

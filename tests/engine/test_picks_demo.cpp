@@ -2,10 +2,13 @@
 //
 // 1. The demo survey (replay_logs/demo) run through the core in one process; the truth is the
 //    simulator's planted items (drivers_sim/planted_field.hpp: its own dipole code) and, per
-//    sample, the simulator's own anomaly value (MagTruth::anomaly_nT). Every item whose true peak
-//    on some sensor reaches twice the live threshold must be picked within 1.5 m horizontally
-//    (sensor altitudes 3-6 m on the demo) and its burial estimated within 0.5 m; picks further than
-//    3 m from every item are false picks, at most 1 over the demo's lines (about 3.6 km of line).
+//    sample, the simulator's own anomaly value (MagTruth::anomaly_nT). Every item whose true
+//    anomaly reaches the live threshold (once, not a margin above it) on at least [picks]
+//    min_samples consecutive samples of one sensor (the picker's own rule: a single sample just
+//    over the threshold is not a peak by design) must be picked within 1.5 m horizontally (sensor
+//    altitudes 3-6 m on the demo); items reaching twice the threshold must also have their burial
+//    estimated within 0.5 m; picks further than 3 m from every item are false picks, at most 1
+//    over the demo's lines (about 3.6 km of line).
 // 2. Depth by the dipole fit on a profile computed here with this test's own formula:
 //    induced point dipole dT = (mu0/4pi) m (3 cos^2(theta) - 1) / r^3, theta between the field and
 //    the item-to-sensor direction (Blakely 1995, ch. 4 and 8).
@@ -13,6 +16,7 @@
 //    the verdict is "too optimistic" with a median measured/predicted ratio near 0.7.
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <fstream>
@@ -41,6 +45,8 @@ std::string readText(const std::string& path) {
 struct DemoRun {
     std::vector<sg::sim::PlantedItem> items;
     std::vector<double> true_peak_nT;  // per item: largest |simulated anomaly| within 6 m
+    std::vector<double> peak_over_threshold;  // per item: largest |anomaly| / live threshold there
+    std::vector<int> samples_over;     // per item: longest run of one sensor's samples >= threshold
     sg::engine::PicksSummary picks;
     double threshold_nT = 0.0;
 };
@@ -50,13 +56,31 @@ DemoRun runDemo(const sg::engine::SurveyConfig& cfg, sg::sim::Scenario sc) {
     sg::sim::Simulator sim(std::move(sc), {});
     r.items = sg::sim::plantedItems(sim);
     r.true_peak_nT.assign(r.items.size(), 0.0);
+    r.peak_over_threshold.assign(r.items.size(), 0.0);
+    r.samples_over.assign(r.items.size(), 0);
+    std::vector<std::vector<int>> run(r.items.size(), std::vector<int>(16, 0));  // per item, sensor
     std::int64_t n = 0;
     sg::engine::Pipeline pipe(cfg, [&] { return ++n; });
     sg::sim::feedToEnd(sim, pipe, [&](const sg::sim::StepOutput& out) {
-        for (const auto& m : out.mag)
-            for (std::size_t i = 0; i < r.items.size(); ++i)
-                if (std::hypot(m.easting_m - r.items[i].easting_m, m.northing_m - r.items[i].northing_m) <= 6.0)
-                    r.true_peak_nT[i] = std::max(r.true_peak_nT[i], std::abs(m.anomaly_nT));
+        for (const auto& m : out.mag) {
+            // The live threshold the engine holds for this sensor as the sample is fed.
+            double threshold = 0.0;
+            for (const auto& st : pipe.engine().sensors())
+                if (st.index == m.sensor) threshold = st.threshold_nT;
+            const auto key = static_cast<std::size_t>(std::clamp(m.sensor, 0, 15));
+            for (std::size_t i = 0; i < r.items.size(); ++i) {
+                if (!m.sent ||
+                    std::hypot(m.easting_m - r.items[i].easting_m, m.northing_m - r.items[i].northing_m) > 6.0) {
+                    run[i][key] = 0;
+                    continue;
+                }
+                const double a = std::abs(m.anomaly_nT);
+                r.true_peak_nT[i] = std::max(r.true_peak_nT[i], a);
+                if (threshold > 0.0) r.peak_over_threshold[i] = std::max(r.peak_over_threshold[i], a / threshold);
+                run[i][key] = threshold > 0.0 && a >= threshold ? run[i][key] + 1 : 0;
+                r.samples_over[i] = std::max(r.samples_over[i], run[i][key]);
+            }
+        }
     });
     r.picks = sg::engine::summarisePicks(pipe.engine());
     for (const auto& s : pipe.engine().sensors()) r.threshold_nT = std::max(r.threshold_nT, s.threshold_nT);
@@ -67,16 +91,17 @@ TEST(PicksDemo, PlantedItemsArePickedWithPositionAndDepth) {
     const auto cfg = sg::engine::loadSurveyConfig(demoDir() + "survey.toml");
     const DemoRun r = runDemo(cfg, sg::sim::loadScenario(demoDir() + "scenario.toml"));
     ASSERT_GT(r.threshold_nT, 0.0);
+    const int cfg_min_samples = sg::detect::parsePickSettings(cfg.root()).min_samples;
     int expected = 0;
     std::vector<bool> matched(r.picks.picks.size(), false);
     for (std::size_t i = 0; i < r.items.size(); ++i) {
         const auto& it = r.items[i];
-        std::printf("item %-8s true peak %7.2f nT (threshold %.2f)\n", it.name.c_str(), r.true_peak_nT[i],
-                    r.threshold_nT);
+        std::printf("item %-8s true peak %7.2f nT = %.2f x live threshold, %d samples over\n", it.name.c_str(),
+                    r.true_peak_nT[i], r.peak_over_threshold[i], r.samples_over[i]);
         for (std::size_t k = 0; k < r.picks.picks.size(); ++k)
             if (std::hypot(r.picks.picks[k].easting_m - it.easting_m, r.picks.picks[k].northing_m - it.northing_m) <= 3.0)
                 matched[k] = true;
-        if (r.true_peak_nT[i] < 2.0 * r.threshold_nT) continue;
+        if (r.samples_over[i] < cfg_min_samples) continue;
         ++expected;
         SCOPED_TRACE(it.name);
         const sg::detect::AnomalyPick* best = nullptr;
@@ -93,8 +118,10 @@ TEST(PicksDemo, PlantedItemsArePickedWithPositionAndDepth) {
                     best_d, best->burial_m.value_or(-99), it.burial_m, best->moment_Am2.value_or(-1), it.moment_Am2,
                     best->fit_r2);
         EXPECT_LE(best_d, 1.5);
-        ASSERT_TRUE(best->burial_m.has_value());
-        EXPECT_NEAR(*best->burial_m, it.burial_m, 0.5);
+        if (r.peak_over_threshold[i] >= 2.0) {
+            ASSERT_TRUE(best->burial_m.has_value());
+            EXPECT_NEAR(*best->burial_m, it.burial_m, 0.5);
+        }
         EXPECT_FALSE(best->runs.empty());
     }
     EXPECT_GE(expected, 3);  // the demo passes over at least three items

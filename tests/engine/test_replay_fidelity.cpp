@@ -1,7 +1,8 @@
 // Replay reproduces the live session exactly: a 10-minute simulated session is fed live through
 // the Pipeline and logged by the writer thread; replaying the log through a fresh Pipeline gives
 // the same coverage raster (content hash), the same alarm episodes with the same times, and the
-// same decode counters.
+// same decode counters. Replayed again without picks (replay --no-picks): the same coverage and
+// alarms, an empty pick list.
 #include <gtest/gtest.h>
 
 #include <filesystem>
@@ -109,6 +110,19 @@ TEST(ReplayFidelity, TenMinuteSessionReplaysIdentically) {
     replay.runToEnd();
     replay.pipeline().engine().flushCoverage();
     EXPECT_EQ(replay.pipeline().engine().raster().contentHash(), live_hash);
+    // `replay --no-picks` (LogReplay::switchOffPicks): the same coverage and alarms, no picks and
+    // no verification passes; the config text kept as recorded.
+    const std::string text_before = replay.config().text;
+    replay.switchOffPicks();
+    replay.runToEnd();
+    auto& off = replay.pipeline().engine();
+    off.flushCoverage();
+    EXPECT_EQ(off.raster().contentHash(), live_hash);
+    EXPECT_EQ(off.checks().episodes().size(), live_episodes.size());
+    EXPECT_EQ(replay.config().text, text_before);
+    const auto off_picks = sg::engine::toJson(sg::engine::summarisePicks(off));
+    EXPECT_FALSE(off_picks["enabled"].get<bool>());
+    EXPECT_EQ(off_picks["count"].get<int>(), 0);
     std::filesystem::remove(log_path);
     std::filesystem::remove(log_path + "-wal");
     std::filesystem::remove(log_path + "-shm");
