@@ -40,7 +40,8 @@ void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float
         put(big, pal.text_dim, "No active line", gap);
         return;
     }
-    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc);
+    // An infill line the crew steers to (key I) says so: "INFILL I7".
+    put(big * 0.55f, pal.text_dim, h.infill ? "INFILL" : "LINE", 6 * sc);
     put(big, pal.line_active, h.line, gap);
     if (h.off_line_m) {
         const double d = *h.off_line_m;
