@@ -213,11 +213,13 @@ void SnapshotBuilder::buildHelm(Snapshot& s) const {
         const auto& pl = lines->lines()[static_cast<std::size_t>(li)];
         h.line = pl.name;
         h.infill = li >= lines->planCount();
-        // Along the line from the position of the array (else the vessel) to the end the vessel
-        // is heading for: a planned line is run either way, so the end is the one ahead; an
-        // infill line is run start -> end.
-        const auto pos = m_ref_last ? std::optional<PointEN>(m_ref_last)
-                                    : (m_engine.vesselPosition() ? std::optional<PointEN>(s.vessel) : std::nullopt);
+        // Along the line from the position of the array (the engine's reference, the one the
+        // helm's sentences use; else the vessel) to the end the vessel is heading for: a planned
+        // line is run either way, so the end is the one ahead; an infill line is run start -> end.
+        std::optional<PointEN> pos;
+        if (const auto r = m_engine.arrayReference()) pos = PointEN{r->e_m, r->n_m};
+        else if (m_ref_last) pos = m_ref_last;
+        else if (m_engine.vesselPosition()) pos = s.vessel;
         const double le = pl.end.e_m - pl.start.e_m, ln = pl.end.n_m - pl.start.n_m;
         const double len = std::hypot(le, ln);
         if (target >= 0 && lines->activeLine() != target) {

@@ -165,7 +165,10 @@ public:
     CrewOutcome onCrewCommand(std::string_view text);
     // The infill line the helm steers to (index into lines()->lines()), -1: the planned lines.
     int steerTarget() const { return m_cov ? m_cov->lines().target() : -1; }
-    // The names of the infill lines proposed now (ranked, best first; empty without a plan).
+    // The infill lines proposed now (ranked, best first; names and ends as the gaps of this
+    // moment name them; empty without a plan or when there is too much ground to plan over).
+    std::vector<coverage::InfillLine> proposedInfill();
+    // Their names only.
     std::vector<std::string> proposedInfillNames();
 
     // Rows for the log produced since the last call (alarm events, ends, acknowledgements).
@@ -257,8 +260,6 @@ public:
     coverage::InfillOptions infillOptions() const;
 
 private:
-    // Proposed infill lines now (names and ends), from the named gaps of this moment.
-    std::vector<coverage::InfillLine> proposedInfill();
     void logSteer(const char* kind, std::string detail);
     // After every position: a steering that ended (its run closed, or its line no longer proposed).
     void checkSteering(bool run_ended);
