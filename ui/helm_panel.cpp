@@ -142,7 +142,31 @@ public:
         put(mid, pal.text, buf, gap);
         y += mid + 3 * sc;
 
-        // Row 3: input health (receive clock).
+        // Row 3 (live only): the crew's steering choice, as keys I and P do (docs/helm-output.md).
+        // A replay shows the log's own choices and takes none.
+        x = amin.x;
+        if (!s->replay.is_replay && (!s->infill.empty() || h.infill)) {
+            put(mid, pal.text_dim, "steer to", 6 * sc);
+            const float bh = ImGui::GetFrameHeight();
+            auto button = [&](const std::string& label, const engine::UiCommand& cmd) {
+                const float w = ImGui::CalcTextSize(label.c_str()).x + 2 * ImGui::GetStyle().FramePadding.x;
+                if (x + w > amax.x) return false;  // what does not fit is left to key I
+                ImGui::SetCursorScreenPos({x, y});
+                if (ImGui::SmallButton(label.c_str())) ctx.send(cmd);
+                x += w + 6 * sc;
+                return true;
+            };
+            ImGui::PushID("steer");
+            if (h.infill) button("Planned lines##steer", {engine::UiCommand::Kind::kSteerPlanned, 0, 0.0, {}});
+            for (const auto& l : s->infill) {
+                if (h.infill && l.name == h.line) continue;
+                if (!button(l.name + "##steer", {engine::UiCommand::Kind::kSteerInfill, 0, 0.0, l.name})) break;
+            }
+            ImGui::PopID();
+            y += std::max(mid, bh) + 3 * sc;
+        }
+
+        // Row 4: input health (receive clock).
         x = amin.x;
         const float small = base;
         row_h = small;
@@ -166,6 +190,6 @@ public:
 std::unique_ptr<Panel> makeHelmPanel() { return std::make_unique<HelmPanel>(); }
 
 // Height the helm panel needs at font size `font_px` (the screen carves it off the plots).
-float helmPanelHeight(float font_px, float scale) { return font_px * (2.0f + 1.15f * 2.0f + 2.2f) + 26.0f * scale; }
+float helmPanelHeight(float font_px, float scale) { return font_px * (2.0f + 1.15f * 2.0f + 1.3f + 2.2f) + 29.0f * scale; }
 
 }  // namespace sg::ui
