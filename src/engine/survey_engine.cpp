@@ -849,7 +849,7 @@ SurveyEngine::CrewOutcome SurveyEngine::onCrewCommand(std::string_view text) {
         return {false, detail};
     }
     if (!m_cov) {
-        detail = "no [plan]: there are no lines to steer to";
+        detail = "no lines to steer to yet (no [plan], or no position has placed the survey grid)";
         logSteer("steer_refused", detail);
         return {false, detail};
     }

@@ -231,3 +231,26 @@ TEST(InfillSteering, HelmFollowsTheCrewsInfillLineAndReplayRepeatsIt) {
     std::filesystem::remove(log_path + "-wal");
     std::filesystem::remove(log_path + "-shm");
 }
+
+// Before any position (no survey grid, no lines), a crew line, or one that is no command,
+// changes nothing and is logged as rejected with the reason (nothing lost, nothing quietly
+// accepted).
+TEST(InfillSteering, UnknownLineOrCommandIsRefusedAndLogged) {
+    const std::string dir = std::string(SG_SOURCE_DIR) + "/replay_logs/demo/";
+    const auto cfg = engine::loadSurveyConfig(dir + "survey.toml");
+    std::int64_t id = 0;
+    engine::Pipeline pipeline(cfg, [&] { return ++id; });
+    const std::string src(engine::Pipeline::kCrewSource);
+    pipeline.feed({src, 1, 1, "steer I1", 0});  // no position yet: no lines at all
+    pipeline.feed({src, 2, 2, "turn left", 0});
+    pipeline.feed({src, 3, 3, "steer planned", 0});
+    EXPECT_EQ(pipeline.engine().steerTarget(), -1);
+    const auto batch = pipeline.takeBatch();
+    ASSERT_EQ(batch.raw.size(), 3U);
+    EXPECT_EQ(batch.raw[0].status, log::DecodeStatus::Rejected);
+    EXPECT_NE(batch.raw[0].reason.find("no lines to steer to yet"), std::string::npos) << batch.raw[0].reason;
+    EXPECT_EQ(batch.raw[1].status, log::DecodeStatus::Rejected);
+    EXPECT_NE(batch.raw[1].reason.find("not a crew command"), std::string::npos) << batch.raw[1].reason;
+    EXPECT_EQ(batch.raw[2].status, log::DecodeStatus::Rejected);  // nothing to go back to either
+    EXPECT_EQ(batch.raw[2].source, src);
+}
