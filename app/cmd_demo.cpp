@@ -238,6 +238,12 @@ int runDemo(const DemoOptions& opts) {
     std::uint64_t lines = 0;
     std::optional<TruthPeaks> truth;
     if (o.truth) truth.emplace(sim::plantedItems(simulator));
+    // The crew's steering commands: a line of the reserved source at the latest receive time,
+    // logged with the others (a replay of the demo log repeats the choice).
+    const auto crewLine = [&](const std::string& text) {
+        pipeline.feed({std::string(engine::Pipeline::kCrewSource), now_ns, now_ns, text, 0});
+        std::printf("demo: crew: %s\n", text.c_str());
+    };
     while (!simulator.done()) {
         const auto& out = simulator.step();
         if (truth) {
@@ -261,7 +267,7 @@ int runDemo(const DemoOptions& opts) {
         if (!helm.empty()) helm.update(pipeline.engine(), out.utc_ns);
         if (link.stopRequested()) break;
         if (link.hasScreen()) {
-            applyCommonCommands(link.commands(), pipeline.engine(), builder, o.out_dir);
+            applyCommonCommands(link.commands(), pipeline.engine(), builder, o.out_dir, crewLine);
             const auto now = std::chrono::steady_clock::now();
             if (now - last_publish >= std::chrono::milliseconds(100)) {
                 last_publish = now;

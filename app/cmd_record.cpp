@@ -126,6 +126,12 @@ int runRecord(RecordOptions o) {
     engine::SnapshotBuilder builder(rec.pipeline()->engine());
     builder.setInputCounters(&rec.pipeline()->decoder());
     const auto export_dir = (std::filesystem::path(log_path).parent_path() / "exports").string();
+    // The crew's steering commands: a line of the reserved source, logged with the others.
+    const auto crewLine = [&](const std::string& text) {
+        ReceivedLine l{std::string(engine::Pipeline::kCrewSource), io::monoNowNs(), io::utcNowNs(), text, 0};
+        rec.pipeline()->feed(l);
+        std::printf("record: crew: %s\n", text.c_str());
+    };
     // Every flush (100 ms): the screen's commands, then a fresh snapshot for it.
     rec.onFlush([&] {
         if (!helm.empty()) {
@@ -136,7 +142,7 @@ int runRecord(RecordOptions o) {
             if (!sent.empty()) writer.post(std::move(sent));
         }
         if (!link.hasScreen()) return;
-        applyCommonCommands(link.commands(), rec.pipeline()->engine(), builder, export_dir);
+        applyCommonCommands(link.commands(), rec.pipeline()->engine(), builder, export_dir, crewLine);
         link.publish(builder.build());
     });
 

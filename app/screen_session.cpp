@@ -93,7 +93,8 @@ int runWithScreen(const ScreenArgs& args, const std::string& title,
 std::vector<engine::UiCommand> applyCommonCommands(std::vector<engine::UiCommand> commands,
                                                    engine::SurveyEngine& engine,
                                                    engine::SnapshotBuilder& builder,
-                                                   const std::string& export_dir) {
+                                                   const std::string& export_dir,
+                                                   const std::function<void(const std::string&)>& crew) {
     using Kind = engine::UiCommand::Kind;
     std::vector<engine::UiCommand> rest;
     // Acknowledgements are dated on the survey clock, like the episodes they close (before the
@@ -106,6 +107,14 @@ std::vector<engine::UiCommand> applyCommonCommands(std::vector<engine::UiCommand
         case Kind::kAcknowledgeAlarms: engine.acknowledgeAll(now(), checks::Level::kAlarm); break;
         case Kind::kAcknowledgeWarnings: engine.acknowledgeAll(now(), checks::Level::kWarn); break;
         case Kind::kSetActiveLine: engine.chooseLine(static_cast<int>(c.id)); break;
+        case Kind::kSteerInfill:
+        case Kind::kSteerPlanned:
+            if (!crew) {
+                rest.push_back(std::move(c));
+                break;
+            }
+            crew(c.kind == Kind::kSteerInfill ? "steer " + c.text : std::string("steer planned"));
+            break;
         case Kind::kChooseProfileRun: builder.chooseProfileRun(static_cast<int>(c.value)); break;
         case Kind::kExportInfill: {
             auto summary = engine::summarise(engine, 0);

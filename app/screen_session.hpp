@@ -43,9 +43,13 @@ int runWithScreen(const ScreenArgs& args, const std::string& title,
 
 // Applies the commands every screen shares (acknowledge, active line, profile run, export) to
 // the engine; returns the replay commands it did not handle. `export_dir` for infill exports.
+// `crew` feeds a crew command line ("steer I7", "steer planned") into the Pipeline as a line of
+// source Pipeline::kCrewSource (logged, so a replay repeats it); without it (replay) the steering
+// commands are returned unhandled.
 std::vector<engine::UiCommand> applyCommonCommands(std::vector<engine::UiCommand> commands,
                                                    engine::SurveyEngine& engine,
                                                    engine::SnapshotBuilder& builder,
-                                                   const std::string& export_dir);
+                                                   const std::string& export_dir,
+                                                   const std::function<void(const std::string&)>& crew = {});
 
 }  // namespace sg::app

@@ -2,11 +2,13 @@
 // column. First row (largest): the active line, the distance off it with the side, and the
 // distance and time to its end. Second row: speed in knots and m/s, sensor altitude, layback and
 // cable out, the GNSS fix by its NMEA 0183 name with satellites and HDOP, coverage of the area.
-// Third row: the health of each input (rate, age of its latest line, errors) on the receive clock.
+// Third row (live, when infill lines exist): buttons to steer to an infill line or back to the
+// planned lines. Last row: the health of each input (rate, age of its latest line, errors) on the receive clock.
 // Values come from the engine's snapshot (engine::HelmView); unknown ones read "--", never 0.
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <functional>
 #include <string>
 
 #include "ui/panel.hpp"
@@ -43,7 +45,8 @@ void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float
     }
     // A label goes to the next row together with its value (never alone at a row's end).
     auto w = [&](const std::string& t) { return ImGui::GetFont()->CalcTextSizeA(big, 1e9f, 0.0f, t.c_str()).x; };
-    put(big * 0.55f, pal.text_dim, "LINE", 6 * sc, w(h.line));
+    // An infill line the crew steers to (key I) says so: "INFILL I7".
+    put(big * 0.55f, pal.text_dim, h.infill ? "INFILL" : "LINE", 6 * sc, w(h.line));
     put(big, pal.line_active, h.line, gap);
     if (h.off_line_m) {
         const double d = *h.off_line_m;
@@ -62,8 +65,10 @@ void drawLineRow(const engine::HelmView& h, const Palette& pal, float big, float
 }
 
 // Lays the panel out in amin..amax, drawing into `dl`, or only measuring when `dl` is null.
-// Returns the height used.
-float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDrawList* dl, ImVec2 amin, ImVec2 amax) {
+// `send` (drawing only) takes the crew's steering buttons; null when measuring. Returns the
+// height used.
+float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDrawList* dl, ImVec2 amin, ImVec2 amax,
+                 const std::function<void(const engine::UiCommand&)>* send) {
     ImFont* font = ImGui::GetFont();
     const float base = ImGui::GetFontSize();
     float y = amin.y;
@@ -152,7 +157,36 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     put(mid, pal.text, buf, gap);
     y += mid + 3 * sc;
 
-    // Row 3: input health (receive clock).
+    // Row 3 (live only): the crew's steering choice, as keys I and P do (docs/helm-output.md).
+    // A replay shows the log's own choices and takes none.
+    x = amin.x;
+    if (!s->replay.is_replay && (!s->infill.empty() || h.infill)) {
+        row_h = mid;
+        put(mid, pal.text_dim, "steer to", 6 * sc);
+        const float bh = ImGui::GetFrameHeight();
+        const bool room = y + bh <= amax.y + 0.5f;  // buttons that would run below the panel are left out
+        auto button = [&](const std::string& label, const engine::UiCommand& cmd) {
+            const float w = ImGui::CalcTextSize(label.c_str()).x + 2 * ImGui::GetStyle().FramePadding.x;
+            if (x + w > amax.x) return false;  // what does not fit is left to key I
+            if (dl && send && room) {
+                ImGui::SetCursorScreenPos({x, y});
+                if (ImGui::SmallButton(label.c_str())) (*send)(cmd);
+            }
+            x += w + 6 * sc;
+            return true;
+        };
+        ImGui::PushID("steer");
+        if (h.infill) button("Planned lines##steer", {engine::UiCommand::Kind::kSteerPlanned, 0, 0.0, {}});
+        for (const auto& l : s->infill) {
+            if (h.infill && l.name == h.line) continue;
+            if (!button(l.name + "##steer", {engine::UiCommand::Kind::kSteerInfill, 0, 0.0, l.name})) break;
+        }
+        ImGui::PopID();
+        if (!dl || room) bottom = std::max(bottom, y + std::max(mid, bh));
+        y += std::max(mid, bh) + 3 * sc;
+    }
+
+    // Row 4: input health (receive clock).
     x = amin.x;
     const float small = base;
     row_h = small;
@@ -180,7 +214,8 @@ public:
         // The clip reaches a little left of the text (into the window padding): a row starting
         // with a glyph of negative left bearing ("T") is not cut.
         dl->PushClipRect({amin.x - ImGui::GetStyle().WindowPadding.x * 0.5f, amin.y}, amax, true);
-        layoutHelm(ctx.snapshot, *ctx.palette, ctx.scale, dl, amin, amax);
+        const std::function<void(const engine::UiCommand&)> send = [&](const engine::UiCommand& c) { ctx.send(c); };
+        layoutHelm(ctx.snapshot, *ctx.palette, ctx.scale, dl, amin, amax, &send);
         dl->PopClipRect();
     }
 };
@@ -194,7 +229,7 @@ std::unique_ptr<Panel> makeHelmPanel() { return std::make_unique<HelmPanel>(); }
 float helmPanelHeight(const engine::Snapshot* s, float width, float scale) {
     const ImVec2 pad = ImGui::GetStyle().WindowPadding;
     const float inner = std::max(1.0f, width - 2 * pad.x);
-    return layoutHelm(s, paletteFor(false), scale, nullptr, {0, 0}, {inner, 1e6f}) + 2 * pad.y + 2 * scale;
+    return layoutHelm(s, paletteFor(false), scale, nullptr, {0, 0}, {inner, 1e6f}, nullptr) + 2 * pad.y + 2 * scale;
 }
 
 }  // namespace sg::ui

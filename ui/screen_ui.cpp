@@ -28,6 +28,8 @@ const std::vector<KeyBinding>& keyBindings() {
         {'F', "F", "Fit the whole survey in the plan view"},
         {'V', "V", "Follow the vessel on / off"},
         {'G', "G", "Jump to the forming gap"},
+        {'I', "I", "Steer to the next proposed infill line (I1, I2, ... in rank order; logged)"},
+        {'P', "P", "Steer the planned lines again (ends the infill steering; logged)"},
         {kKeyF1, "F1 or ?", "This list of keys (Esc closes it)"},
     };
     return keys;
@@ -45,6 +47,17 @@ void ScreenUi::handleKeys(const engine::Snapshot* s, FrameContext& ctx) {
     if (pressed('V')) {
         m_settings.follow_vessel = !m_settings.follow_vessel;
         m_settings_changed = true;
+    }
+    if (s && !s->replay.is_replay) {
+        // The crew's steering choice goes to the core as a logged command (a replay shows the
+        // log's own choices and takes none).
+        if (pressed('I') && !s->infill.empty()) {
+            std::size_t next = 0;
+            for (std::size_t k = 0; k < s->infill.size(); ++k)
+                if (s->helm.infill && s->infill[k].name == s->helm.line) next = (k + 1) % s->infill.size();
+            ctx.send({engine::UiCommand::Kind::kSteerInfill, 0, 0.0, s->infill[next].name});
+        }
+        if (pressed('P')) ctx.send({engine::UiCommand::Kind::kSteerPlanned, 0, 0.0, {}});
     }
     if (s && s->replay.is_replay) {
         if (pressed('N')) ctx.send({engine::UiCommand::Kind::kReplayNextAlarm, 0, 0.0, {}});

@@ -50,6 +50,7 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
         InputConfig c;
         c.name = s.string("name");
         if (c.name.empty()) s.fail("name", "a non-empty name");
+        if (c.name.front() == '@') s.fail("name", "a name that does not start with '@' (reserved for the crew's commands)");
         if (!names.insert(c.name).second) s.fail("name", "a name no other [[input]] uses");
         c.kind = s.choice("kind", {"nmea", "fieldmap"}) == "nmea" ? InputKind::Nmea
                                                                  : InputKind::FieldMap;

@@ -18,6 +18,7 @@ LineTracker::LineTracker(std::vector<PlanLine> lines, const LineTrackerOptions& 
     // update() looks at every line at every epoch: the per-line constants are worked out once.
     m_cos_max_angle = std::cos(m_opt.max_angle_deg * std::numbers::pi / 180.0);
     for (const auto& l : m_lines) m_length_m.push_back(l.length_m());
+    m_plan_count = static_cast<int>(m_lines.size());
 }
 
 double LineTracker::crossTrack(int index, Point pos, double dir_e, double dir_n) const {
@@ -54,6 +55,8 @@ void LineTracker::startRun(int line, bool reversed, std::int64_t t_ns, Point pos
     r.start_t_ns = r.end_t_ns = t_ns;
     r.start_pos = r.end_pos = pos;
     r.along_min_m = r.along_max_m = alongTrack(line, pos);
+    if (line >= m_plan_count) r.infill_line = m_lines[static_cast<std::size_t>(line)];
+    if (line == m_target) m_target_run = r.id;
     m_runs.push_back(r);
     m_run_travel_m = 0.0;
     m_off_axis_m = 0.0;
@@ -66,6 +69,12 @@ void LineTracker::closeRun(std::int64_t t_ns) {
     LineRun& r = m_runs[static_cast<std::size_t>(m_open_run)];
     r.open = false;
     r.end_t_ns = std::max(r.end_t_ns, t_ns);
+    if (m_target >= 0 && r.id == m_target_run) {
+        // The pass along the infill line is over: steering returns to the planned lines.
+        m_target_ended = r.id;
+        m_target = -1;
+        m_target_run = kRunNone;
+    }
     m_open_run = kRunNone;
     m_active_line = -1;
 }
@@ -73,9 +82,13 @@ void LineTracker::closeRun(std::int64_t t_ns) {
 int LineTracker::nearestLine(Point pos, double dir_e, double dir_n, bool& reversed, double& dist) const {
     int want = -1;
     dist = 1e300;
-    for (int i = 0; i < static_cast<int>(m_lines.size()); ++i) {
+    // Steering to an infill line: only it can be acquired; otherwise only the plan's lines.
+    const int first = m_target >= 0 ? m_target : 0;
+    const int last = m_target >= 0 ? m_target + 1 : m_plan_count;
+    for (int i = first; i < last; ++i) {
         bool rev = false;
         if (!directionMatches(i, dir_e, dir_n, rev)) continue;
+        if (i >= m_plan_count && rev) continue;  // an infill line is flown start -> end
         const double a = alongTrack(i, pos);
         if (a < -m_opt.end_margin_m || a > m_length_m[static_cast<std::size_t>(i)] + m_opt.end_margin_m) continue;
         const double d = std::abs(crossTrack(i, pos, dir_e, dir_n));
@@ -141,7 +154,7 @@ int LineTracker::update(std::int64_t t_ns, Point pos, double dir_e, double dir_n
                 bool rev = false;
                 double d = 0.0;
                 const int other = nearestLine(pos, dir_e, dir_n, rev, d);
-                if (other >= 0 && other != r.line &&
+                if (other >= 0 && other != r.line && other < m_plan_count && r.line < m_plan_count &&
                     d + m_opt.hysteresis_m < std::abs(crossTrack(r.line, pos, dir_e, dir_n))) {
                     r.line = other;
                     r.reversed = rev;
@@ -178,6 +191,9 @@ void LineTracker::adoptEarlierRuns(std::vector<LineRun> runs, int session) {
     for (std::size_t i = 0; i < runs.size(); ++i) {
         if (runs[i].id != static_cast<int>(i)) throw std::logic_error("line tracker: earlier run ids must be 0..n-1");
         runs[i].open = false;
+        // An earlier session's infill run: its line joins this tracker's lines (line index anew).
+        if (runs[i].infill_line) runs[i].line = addLine(*runs[i].infill_line);
+        else if (runs[i].line >= m_plan_count) runs[i].line = -1;
     }
     m_runs = std::move(runs);
     m_session = session;
@@ -190,7 +206,7 @@ int LineTracker::neighbourLine(int index, Point pos, double dir_e, double dir_n,
     const double ue = (l.end.e_m - l.start.e_m) / len, un = (l.end.n_m - l.start.n_m) / len;
     int best = -1;
     double best_off = 1.5 * m_opt.line_spacing_m;
-    for (int j = 0; j < static_cast<int>(m_lines.size()); ++j) {
+    for (int j = 0; j < m_plan_count; ++j) {
         if (j == index) continue;
         const PlanLine& o = m_lines[static_cast<std::size_t>(j)];
         const double olen = m_length_m[static_cast<std::size_t>(j)];
@@ -224,14 +240,14 @@ LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_
                                                      bool final, const std::vector<Point>* track,
                                                      double track_step_m) const {
     PendingGround out;
-    out.lines_total = static_cast<int>(m_lines.size());
+    out.lines_total = m_plan_count;
     const double spacing = m_opt.line_spacing_m;
     const double tol = 0.5 * spacing;
     // Far enough to reach every corner of the area from any line.
     const double far = std::hypot(bounds.max_e - bounds.min_e, bounds.max_n - bounds.min_n) +
                        std::hypot(bounds.max_e - bounds.min_e, bounds.max_n - bounds.min_n) + spacing;
     const double w = std::max(0.0, planned_half_width_m);
-    for (int li = 0; li < static_cast<int>(m_lines.size()); ++li) {
+    for (int li = 0; li < m_plan_count; ++li) {
         const PlanLine& l = m_lines[static_cast<std::size_t>(li)];
         const double len = m_length_m[static_cast<std::size_t>(li)];
         // Passed along-track intervals of every run of this line (the open one included), merged.
@@ -304,6 +320,40 @@ LineTracker::PendingGround LineTracker::pendingGround(double planned_half_width_
 void LineTracker::choose(int index) {
     if (index < 0 || index >= static_cast<int>(m_lines.size())) return;
     m_forced = index;
+    m_target = -1;
+    m_target_run = kRunNone;
+}
+
+int LineTracker::addLine(const PlanLine& line) {
+    for (int i = m_plan_count; i < static_cast<int>(m_lines.size()); ++i) {
+        const auto& l = m_lines[static_cast<std::size_t>(i)];
+        if (l.name == line.name && l.start.e_m == line.start.e_m && l.start.n_m == line.start.n_m &&
+            l.end.e_m == line.end.e_m && l.end.n_m == line.end.n_m)
+            return i;
+    }
+    m_lines.push_back(line);
+    m_length_m.push_back(line.length_m());
+    return static_cast<int>(m_lines.size()) - 1;
+}
+
+int LineTracker::steerTo(const PlanLine& line) {
+    if (!(line.length_m() > 0.0)) return -1;
+    const int idx = addLine(line);
+    if (m_forced >= 0) {
+        m_forced = -1;
+        m_reacquire = true;  // the operator's forced run ends: the target is acquired afresh
+    }
+    m_target = idx;
+    m_target_run = kRunNone;
+    m_target_ended = kRunNone;
+    return idx;
+}
+
+void LineTracker::steerPlanned() {
+    if (m_target < 0) return;
+    if (m_open_run != kRunNone && m_open_run == m_target_run) m_reacquire = true;
+    m_target = -1;
+    m_target_run = kRunNone;
 }
 
 void LineTracker::automatic() {
@@ -327,6 +377,7 @@ void LineTracker::addNoise(int run, double noise_nT) {
 void LineTracker::refreshRun(const CoverageRaster& raster, int run) {
     if (run < 0 || run >= static_cast<int>(m_runs.size())) return;
     LineRun& r = m_runs[static_cast<std::size_t>(run)];
+    if (r.line < 0) return;
     r.corridor_covered_pct = corridorCoveragePercent(raster, m_lines[static_cast<std::size_t>(r.line)],
                                                      0.5 * m_opt.line_spacing_m);
 }
@@ -336,6 +387,7 @@ void LineTracker::refreshCoverage(const CoverageRaster& raster) {
     // many sessions has many runs per line).
     std::vector<double> pct(m_lines.size(), -1.0);
     for (auto& r : m_runs) {
+        if (r.line < 0) continue;
         double& p = pct[static_cast<std::size_t>(r.line)];
         if (p < 0.0)
             p = corridorCoveragePercent(raster, m_lines[static_cast<std::size_t>(r.line)], 0.5 * m_opt.line_spacing_m);
@@ -345,6 +397,7 @@ void LineTracker::refreshCoverage(const CoverageRaster& raster) {
 
 double corridorCoveragePercent(const CoverageRaster& raster, const PlanLine& line, double half_width_m) {
     const double len = line.length_m();
+    if (!(len > 0.0)) return 0.0;
     const double ue = (line.end.e_m - line.start.e_m) / len, un = (line.end.n_m - line.start.n_m) / len;
     const double se = un, sn = -ue;
     const std::array<Point, 4> rect{

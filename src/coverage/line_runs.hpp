@@ -54,6 +54,9 @@ struct LineRun {
     double worst_noise_nT = 0.0;
     double corridor_covered_pct = 0.0;  // of the line +- spacing/2 corridor, at the last refresh
     double along_min_m = 0.0, along_max_m = 0.0;  // along-track extent passed on its line (m)
+    // A run of a proposed infill line the crew chose (LineTracker::steerTo): the line itself
+    // (name I<n>, flown start -> end); `line` then indexes the tracker's lines past the plan's.
+    std::optional<PlanLine> infill_line;
     double meanAltitude_m() const {
         return altitude_samples > 0 ? altitude_sum_m / static_cast<double>(altitude_samples) : 0.0;
     }
@@ -82,6 +85,28 @@ public:
     void choose(int index);
     void automatic();
     bool isAutomatic() const { return m_forced < 0; }
+
+    // Steering to a proposed infill line (docs/helm-output.md, "Steering to an infill line"):
+    // `line` (survey CRS, flown start -> end) joins the tracker's lines after the plan's (the same
+    // name and ends reuse their index) and becomes the target: while it is set, a new run starts
+    // only on it (acquisition as for a planned line, in its own direction), an open run on another
+    // line goes on by its own rules. The target ends when a run on it closes (its end passed, a
+    // turn), or by steerPlanned(). Clears an operator's choose(). Returns the line's index.
+    int steerTo(const PlanLine& line);
+    // Back to the planned lines: an open run on the target ends at the next position.
+    void steerPlanned();
+    // The target line's index (-1: planned lines).
+    int target() const { return m_target; }
+    // Whether a run has started on the target since steerTo.
+    bool targetAcquired() const { return m_target_run != kRunNone; }
+    // The run on the target that ended the steering since the last call (kRunNone: none).
+    int takeTargetEnded() {
+        const int r = m_target_ended;
+        m_target_ended = kRunNone;
+        return r;
+    }
+    // Lines of the plan (the first planCount() of lines(); the rest are infill lines steered to).
+    int planCount() const { return m_plan_count; }
 
     // Counts an alarm against run `run` (ignored for kRunNone or an unknown run).
     void addAlarm(int run);
@@ -149,6 +174,8 @@ private:
     int nearestLine(Point pos, double dir_e, double dir_n, bool& reversed, double& dist) const;
     // Whether the open run goes on at this position (see the file comment).
     bool keepsRun(Point pos, double dir_e, double dir_n, double step_m, std::int64_t gap_ns);
+    // Index of `line` among the infill lines already added (same name and ends), else appends it.
+    int addLine(const PlanLine& line);
 
     std::vector<PlanLine> m_lines;
     LineTrackerOptions m_opt;
@@ -158,6 +185,10 @@ private:
     int m_active_line = -1;
     int m_open_run = kRunNone;
     int m_forced = -1;
+    int m_plan_count = 0;
+    int m_target = -1;               // infill line steered to (index into m_lines), -1: none
+    int m_target_run = kRunNone;     // run on the target since steerTo
+    int m_target_ended = kRunNone;   // see takeTargetEnded
     int m_session = 0;
     bool m_reacquire = false;  // back to automatic: the open run ends at the next position
     bool m_have_last = false;

@@ -46,13 +46,16 @@ helm::SteeringFix steeringFix(const SurveyEngine& engine, const helm::OutputConf
     const auto* lines = engine.lines();
     const auto* crs = engine.crs();
     if (lines == nullptr || crs == nullptr) return {};
-    const int line = lines->activeLine();
-    if (line < 0 || line >= static_cast<int>(lines->lines().size())) return {};
     const auto pos = output.reference == "antenna" ? engine.vesselPosition() : engine.arrayReference();
     if (!pos) return {};
+    // The crew's infill line while it is the target (flown start -> end), else the active line.
+    const int target = engine.steerTarget();
+    const int line = target >= 0 ? target : lines->activeLine();
+    if (line < 0 || line >= static_cast<int>(lines->lines().size())) return {};
     bool reversed = false;
     const int run = lines->activeRun();
-    if (run >= 0 && run < static_cast<int>(lines->runs().size())) reversed = lines->runs()[static_cast<std::size_t>(run)].reversed;
+    if (target < 0 && run >= 0 && run < static_cast<int>(lines->runs().size()))
+        reversed = lines->runs()[static_cast<std::size_t>(run)].reversed;
     const auto& pl = lines->lines()[static_cast<std::size_t>(line)];
     LegGeometry leg{reversed ? pl.end : pl.start, reversed ? pl.start : pl.end, *pos};
     auto fix = steeringFixFor(leg, *crs, output.arrival_radius_m);

@@ -26,6 +26,8 @@ helm::SteeringFix steeringFixFor(const LegGeometry& leg, const nav::SurveyCrs& c
 // The engine's active line as a steering fix: invalid (void) when no line is active, the CRS is
 // not known yet or the reference position is missing. The line is steered in the direction the
 // open run flies it (its destination is the planned end, or the start when flown reversed).
+// While the crew steers to an infill line (SurveyEngine::steerTarget), that line is the leg,
+// start -> end, from the moment of the choice (before the vessel reaches it).
 helm::SteeringFix steeringFix(const SurveyEngine& engine, const helm::OutputConfig& output);
 
 // Waypoints of a list of lines flown start -> end, each line's start then its end, identifiers

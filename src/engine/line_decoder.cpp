@@ -73,6 +73,19 @@ void LineDecoder::onLine(const ReceivedLine& line) {
     if (m_log_rows) m_batch.raw.push_back(std::move(raw));
 }
 
+void LineDecoder::logOnly(const ReceivedLine& line, log::DecodeStatus status, std::string reason) {
+    if (!m_log_rows) return;
+    log::RawRow raw;
+    raw.source = line.source;
+    raw.mono_ns = line.mono_ns;
+    raw.utc_ns = line.utc_ns;
+    raw.bytes = line.bytes;
+    raw.flags = line.flags;
+    raw.status = status;
+    raw.reason = std::move(reason);
+    m_batch.raw.push_back(std::move(raw));
+}
+
 void LineDecoder::decodeNmea(const ReceivedLine& line, Input& in, log::RawRow& raw,
                              SourceCounters& c) {
     const auto s = in.nmea.decode(line.bytes);

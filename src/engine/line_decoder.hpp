@@ -67,6 +67,9 @@ public:
     bool logRows() const { return m_log_rows; }
     // Decodes one line and adds its raw row (always) and decoded row (if any) to the batch.
     void onLine(const ReceivedLine& line);
+    // A line that is no instrument's (the crew's commands, Pipeline::kCrewSource): its raw row
+    // only, with the given status and reason; no decoder, no input counters.
+    void logOnly(const ReceivedLine& line, log::DecodeStatus status, std::string reason);
     // Outage start/end become events (start row, later an end with the duration in s).
     void onEvent(const SourceEvent& e);
     // Adds an event that is not an outage (e.g. "clock_disagreement" from import).

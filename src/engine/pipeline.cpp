@@ -44,6 +44,13 @@ void Pipeline::feed(const ReceivedLine& line) {
     // The clocks first: silence at whole seconds before this line is judged without it (the
     // receive clock here, the line's own survey time once it is decoded and aligned).
     m_engine->advanceTo(line.utc_ns);
+    if (line.source == kCrewSource) {
+        // The crew's command: logged as a raw line (replay feeds it back here) and applied now.
+        const auto outcome = m_engine->onCrewCommand(line.bytes);
+        m_decoder.logOnly(line, outcome.accepted ? log::DecodeStatus::Ok : log::DecodeStatus::Rejected,
+                          outcome.accepted ? std::string() : "crew_command: " + outcome.text);
+        return;
+    }
     m_decoder.onLine(line);
 }
 

@@ -24,6 +24,11 @@ namespace sg::engine {
 
 class Pipeline final : public DecodedSink {
 public:
+    // The source of the crew's commands (SurveyEngine::onCrewCommand): lines of this source are
+    // logged like any other and replayed in their place. No [[input]] may take a name that
+    // starts with '@'.
+    static constexpr std::string_view kCrewSource = "@crew";
+
     // `next_event_id` hands out ids for the events table (LogWriter::nextEventId live).
     Pipeline(const SurveyConfig& config, std::function<std::int64_t()> next_event_id);
 

@@ -309,6 +309,7 @@ struct InputHealthView {
 // The numbers the helm and the surveyor watch, large (the helm panel).
 struct HelmView {
     std::string line;                     // active line name, empty = no active line
+    bool infill = false;                  // `line` is an infill line the crew steers to
     std::optional<double> off_line_m;     // cross-track distance, starboard of the line positive
     std::optional<double> to_end_m;       // distance to the end of the line, along it
     std::optional<double> to_end_s;       // time to the end at the present speed
@@ -407,6 +408,8 @@ struct UiCommand {
         kExportInfill,       // text = "geojson" | "gpx" | "csv"; all current proposals
         kAcknowledgeAlarms,  // every unacknowledged alarm-level episode (warnings untouched)
         kAcknowledgeWarnings,  // every unacknowledged warning-level episode
+        kSteerInfill,        // text = infill line name (I7): the helm steers to it (logged)
+        kSteerPlanned,       // back to the planned lines (logged)
     };
     Kind kind = Kind::kAcknowledgeAll;
     std::uint64_t id = 0;
@@ -428,6 +431,8 @@ inline const char* toString(UiCommand::Kind kind) {
         case UiCommand::Kind::kExportInfill: return "export-infill";
         case UiCommand::Kind::kAcknowledgeAlarms: return "acknowledge-alarms";
         case UiCommand::Kind::kAcknowledgeWarnings: return "acknowledge-warnings";
+        case UiCommand::Kind::kSteerInfill: return "steer-infill";
+        case UiCommand::Kind::kSteerPlanned: return "steer-planned";
     }
     return "unknown";
 }

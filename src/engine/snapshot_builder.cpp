@@ -208,22 +208,32 @@ void SnapshotBuilder::updateGaps(bool force) {
 void SnapshotBuilder::buildHelm(Snapshot& s) const {
     HelmView& h = s.helm;
     const auto* lines = m_engine.lines();
-    const auto* plan = m_engine.plan();
-    const int li = lines ? lines->activeLine() : -1;
-    if (plan && li >= 0 && static_cast<std::size_t>(li) < plan->lines.size()) {
-        const auto& pl = plan->lines[static_cast<std::size_t>(li)];
+    // The crew's infill line while it is the target (docs/helm-output.md), else the active line.
+    const int target = m_engine.steerTarget();
+    const int li = target >= 0 ? target : (lines ? lines->activeLine() : -1);
+    if (lines && li >= 0 && static_cast<std::size_t>(li) < lines->lines().size()) {
+        const auto& pl = lines->lines()[static_cast<std::size_t>(li)];
         h.line = pl.name;
-        h.off_line_m = m_engine.deviation_m();
-        // Along the line from the position of the array (else the vessel) to the end the vessel
-        // is heading for: the line is run either way, so the end is the one ahead.
-        const auto pos = m_ref_last ? std::optional<PointEN>(m_ref_last)
-                                    : (m_engine.vesselPosition() ? std::optional<PointEN>(s.vessel) : std::nullopt);
+        h.infill = li >= lines->planCount();
+        // Along the line from the position of the array (the engine's reference, the one the
+        // helm's sentences use; else the vessel) to the end the vessel is heading for: a planned
+        // line is run either way, so the end is the one ahead; an infill line is run start -> end.
+        std::optional<PointEN> pos;
+        if (const auto r = m_engine.arrayReference()) pos = PointEN{r->e_m, r->n_m};
+        else if (m_ref_last) pos = m_ref_last;
+        else if (m_engine.vesselPosition()) pos = s.vessel;
         const double le = pl.end.e_m - pl.start.e_m, ln = pl.end.n_m - pl.start.n_m;
         const double len = std::hypot(le, ln);
+        if (target >= 0 && lines->activeLine() != target) {
+            // Not on it yet: off-line from the target itself, starboard of its direction positive.
+            if (pos && len > 0) h.off_line_m = ((pos->e_m - pl.start.e_m) * ln - (pos->n_m - pl.start.n_m) * le) / len;
+        } else {
+            h.off_line_m = m_engine.deviation_m();
+        }
         if (pos && len > 0) {
             const double along = ((pos->e_m - pl.start.e_m) * le + (pos->n_m - pl.start.n_m) * ln) / len;
             const double de = std::sin(s.heading_rad), dn = std::cos(s.heading_rad);
-            const bool forward = de * le + dn * ln >= 0;
+            const bool forward = h.infill || de * le + dn * ln >= 0;
             h.to_end_m = std::max(0.0, forward ? len - along : along);
             if (auto v = m_engine.speed_mps(); v && *v > 0.1) h.to_end_s = *h.to_end_m / *v;
         }

@@ -509,7 +509,9 @@ void SurveyEngine::processSample(SensorState& s, TimeNs t_ns, bool warmed_up) {
                 const int before = m_cov->lines().activeRun();
                 m_run_of_last_sample = m_cov->updatePosition(t_ns, ref, dir_e, dir_n, alt);
                 // A run ended: its gaps get their names for good.
-                if (before != coverage::kRunNone && m_cov->lines().activeRun() != before) commitGapNames();
+                const bool run_ended = before != coverage::kRunNone && m_cov->lines().activeRun() != before;
+                if (run_ended) commitGapNames();
+                checkSteering(run_ended);
                 const auto& lines = m_cov->lines();
                 const int line = lines.activeLine();
                 if (line >= 0) m_deviation = lines.crossTrack(line, ref, dir_e, dir_n);
@@ -816,6 +818,107 @@ void SurveyEngine::chooseLine(int index) {
     if (!m_cov) return;
     if (index < 0) m_cov->lines().automatic();
     else m_cov->lines().choose(index);
+}
+
+std::vector<coverage::InfillLine> SurveyEngine::proposedInfill() {
+    if (!m_cov) return {};
+    try {
+        // The same names the screen and `gaps` show: gaps named as committed, infill after them.
+        return coverage::planInfill(gapReport(false), infillOptions()).lines;
+    } catch (const std::exception&) {
+        return {};  // too much uncovered ground to plan over (InfillOptions::max_cells)
+    }
+}
+
+std::vector<std::string> SurveyEngine::proposedInfillNames() {
+    std::vector<std::string> out;
+    for (const auto& l : proposedInfill()) out.push_back(l.name);
+    return out;
+}
+
+void SurveyEngine::logSteer(const char* kind, std::string detail) {
+    log::EventRow row;
+    row.id = m_next_event_id();
+    row.kind = kind;
+    row.source = "crew";
+    row.start_utc_ns = m_survey_ns != 0 ? m_survey_ns : m_clock_ns;
+    row.detail = std::move(detail);
+    m_rows.events.push_back(std::move(row));
+}
+
+SurveyEngine::CrewOutcome SurveyEngine::onCrewCommand(std::string_view text) {
+    // Words separated by blanks; the first is the verb.
+    std::vector<std::string> words;
+    std::size_t i = 0;
+    while (i < text.size()) {
+        while (i < text.size() && (text[i] == ' ' || text[i] == '\t' || text[i] == '\r')) ++i;
+        std::size_t j = i;
+        while (j < text.size() && text[j] != ' ' && text[j] != '\t' && text[j] != '\r') ++j;
+        if (j > i) words.emplace_back(text.substr(i, j - i));
+        i = j;
+    }
+    std::string detail;
+    if (words.size() != 2 || words[0] != "steer") {
+        detail = fmt::format("'{}' is not a crew command (steer I<n> | steer planned)", text);
+        logSteer("steer_refused", detail);
+        return {false, detail};
+    }
+    if (!m_cov) {
+        detail = "no lines to steer to yet (no [plan], or no position has placed the survey grid)";
+        logSteer("steer_refused", detail);
+        return {false, detail};
+    }
+    auto& tracker = m_cov->lines();
+    if (words[1] == "planned") {
+        const int t = tracker.target();
+        detail = t >= 0 ? fmt::format("planned lines (the crew ended the steering to {})",
+                                      tracker.lines()[static_cast<std::size_t>(t)].name)
+                        : std::string("planned lines");
+        tracker.steerPlanned();
+        logSteer("steer", detail);
+        return {true, detail};
+    }
+    const auto proposed = proposedInfill();
+    const auto it = std::find_if(proposed.begin(), proposed.end(),
+                                 [&](const coverage::InfillLine& l) { return l.name == words[1]; });
+    if (it == proposed.end()) {
+        std::string names;
+        for (const auto& l : proposed) names += (names.empty() ? "" : ", ") + l.name;
+        detail = fmt::format("{} is not a proposed infill line (proposed now: {})", words[1],
+                             names.empty() ? "none" : names);
+        logSteer("steer_refused", detail);
+        return {false, detail};
+    }
+    coverage::PlanLine line;
+    line.name = it->name;
+    line.start = it->start;
+    line.end = it->end;
+    tracker.steerTo(line);
+    detail = fmt::format("infill line {} (gap G{}), {:.0f} m, E {:.1f} N {:.1f} -> E {:.1f} N {:.1f}", it->name,
+                         it->main_gap_id, it->length_m, it->start.e_m, it->start.n_m, it->end.e_m, it->end.n_m);
+    logSteer("steer", detail);
+    return {true, detail};
+}
+
+void SurveyEngine::checkSteering(bool run_ended) {
+    auto& tracker = m_cov->lines();
+    if (const int r = tracker.takeTargetEnded(); r != coverage::kRunNone) {
+        const auto& run = tracker.runs()[static_cast<std::size_t>(r)];
+        const auto& l = tracker.lines()[static_cast<std::size_t>(run.line)];
+        const bool to_end = run.along_max_m >= l.length_m() - 0.5 * tracker.options().line_spacing_m;
+        logSteer("steer", fmt::format("planned lines: the run of {} ended ({})", l.name,
+                                      to_end ? "its end passed" : fmt::format("left it {:.0f} m before its end",
+                                                                               l.length_m() - run.along_max_m)));
+        return;
+    }
+    // Not yet reached: at every run's end (the gaps are committed there), is it still proposed?
+    const int t = tracker.target();
+    if (!run_ended || t < 0 || tracker.targetAcquired()) return;
+    const std::string name = tracker.lines()[static_cast<std::size_t>(t)].name;
+    const auto names = proposedInfillNames();
+    if (std::find(names.begin(), names.end(), name) != names.end()) return;
+    tracker.steerPlanned();
+    logSteer("steer", fmt::format("planned lines: {} is no longer proposed (its gap closed)", name));
 }
 
 void SurveyEngine::drainEpisodes() {

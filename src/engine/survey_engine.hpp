@@ -153,6 +153,25 @@ public:
     int acknowledgeAll(TimeNs t_ns, std::optional<checks::Level> only = std::nullopt);
     void chooseLine(int index);  // -1: automatic
 
+    // The crew's steering choice (docs/helm-output.md, "Steering to an infill line"): the text of
+    // a line of the reserved source "@crew" (Pipeline::kCrewSource), so that a replay of the log
+    // makes the same choice at the same place in the stream. "steer I7": the proposed infill line
+    // named I7 (as the gaps and infill of this moment name it) becomes the helm's target and the
+    // only line a new run can start on; "steer planned": back to the planned lines. Each outcome
+    // is an event (kind "steer", or "steer_refused" with the reason) and is returned as text.
+    struct CrewOutcome {
+        bool accepted = false;
+        std::string text;  // the event's detail
+    };
+    CrewOutcome onCrewCommand(std::string_view text);
+    // The infill line the helm steers to (index into lines()->lines()), -1: the planned lines.
+    int steerTarget() const { return m_cov ? m_cov->lines().target() : -1; }
+    // The infill lines proposed now (ranked, best first; names and ends as the gaps of this
+    // moment name them; empty without a plan or when there is too much ground to plan over).
+    std::vector<coverage::InfillLine> proposedInfill();
+    // Their names only.
+    std::vector<std::string> proposedInfillNames();
+
     // Rows for the log produced since the last call (alarm events, ends, acknowledgements).
     void takeRows(log::Batch& batch);
 
@@ -245,6 +264,9 @@ public:
     coverage::InfillOptions infillOptions() const;
 
 private:
+    void logSteer(const char* kind, std::string detail);
+    // After every position: a steering that ended (its run closed, or its line no longer proposed).
+    void checkSteering(bool run_ended);
     void ensureCrs(double lon_deg, double lat_deg);
     void loadPlan();
     void updateChecks(TimeNs t_ns);

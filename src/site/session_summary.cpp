@@ -44,7 +44,7 @@ engine::InvalidCounts invalidFrom(const json& j) {
 }
 
 json runJson(const coverage::LineRun& r) {
-    return {{"id", r.id}, {"line", r.line}, {"reversed", r.reversed},
+    json j = {{"id", r.id}, {"line", r.line}, {"reversed", r.reversed},
             {"t", {r.start_t_ns, r.end_t_ns}},
             {"pos", {r.start_pos.e_m, r.start_pos.n_m, r.end_pos.e_m, r.end_pos.n_m}},
             {"samples", r.samples},
@@ -53,11 +53,24 @@ json runJson(const coverage::LineRun& r) {
             {"noise", {r.noise_sum_nT, r.noise_samples, r.worst_noise_nT}},
             {"corridor_covered_pct", r.corridor_covered_pct},
             {"along", {r.along_min_m, r.along_max_m}}};
+    // A run of an infill line the crew steered to: the line's name and ends (its index is this
+    // session's own).
+    if (r.infill_line)
+        j["infill_line"] = {r.infill_line->name, r.infill_line->start.e_m, r.infill_line->start.n_m,
+                            r.infill_line->end.e_m, r.infill_line->end.n_m};
+    return j;
 }
 coverage::LineRun runFrom(const json& j) {
     coverage::LineRun r;
     r.id = j.at("id");
     r.line = j.at("line");
+    if (const auto it = j.find("infill_line"); it != j.end()) {
+        coverage::PlanLine l;
+        l.name = it->at(0).get<std::string>();
+        l.start = {it->at(1).get<double>(), it->at(2).get<double>()};
+        l.end = {it->at(3).get<double>(), it->at(4).get<double>()};
+        r.infill_line = l;
+    }
     r.reversed = j.at("reversed");
     r.open = false;
     r.start_t_ns = j.at("t").at(0);

@@ -17,7 +17,7 @@
 namespace sg::site {
 
 // Bump when the summary's content or layout changes: older summaries are rebuilt.
-inline constexpr std::uint32_t kSessionSummaryVersion = 1;
+inline constexpr std::uint32_t kSessionSummaryVersion = 2;  // 2: runs of infill lines
 
 // A log that cannot be read (not SQLite, truncated, failing SQLite's quick_check, no config).
 class DamagedLog : public std::runtime_error {

@@ -140,6 +140,9 @@ TEST(InputConfig, BadValuesNameFileKeyAndLine) {
          "survey.toml:4", "input[0].fieldmap"},
         {head + "transport = \"file\"\npath = \"x\"\n" + head + "transport = \"file\"\npath = \"y\"\n",
          "survey.toml:8", "input[1].name"},
+        // '@' starts the reserved source names (the crew's commands, "@crew").
+        {"[[input]]\nname = \"@crew\"\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"file\"\npath = \"x\"\n",
+         "survey.toml:2", "input[0].name"},
         {"[log]\ncommit_interval_ms = 5000\n", "survey.toml:2", "log.commit_interval_ms"},
         {"[import]\nmax_clock_disagreement_s = \"2\"\n", "survey.toml:2",
          "import.max_clock_disagreement_s"},
