@@ -65,6 +65,9 @@ class Panel {
 public:
     virtual ~Panel() = default;
     virtual const char* name() const = 0;
+    // A tab's label when the full names of all tabs do not fit in one row (large UI scales on a
+    // narrow window): ImGui would shrink the tabs and cut their labels.
+    virtual const char* shortName() const { return name(); }
     virtual Slot slot() const = 0;
     // Draws into the current ImGui window (the screen opens it), except kOverlay panels, which
     // open their own window inside `area`.

@@ -6,9 +6,12 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <string>
+#include <vector>
 
 #include "ui/panel.hpp"
 #include "ui/plot_draw.hpp"
+#include "ui/text_fit.hpp"
 
 namespace sg::ui {
 
@@ -153,9 +156,18 @@ void drawPickMarker(ImDrawList* dl, ImVec2 c, float sc, const Palette& pal, bool
 
 namespace {
 
+// Dim text that wraps at the panel's edge (ImGui::TextDisabled does not wrap: at large UI scales
+// a long note would run past the tab).
+void mutedWrapped(const std::string& text) {
+    ImGui::PushStyleColor(ImGuiCol_Text, ImGui::GetStyleColorVec4(ImGuiCol_TextDisabled));
+    ImGui::TextWrapped("%s", text.c_str());
+    ImGui::PopStyleColor();
+}
+
 class PicksPanel final : public Panel {
 public:
     const char* name() const override { return "Anomalies"; }
+    const char* shortName() const override { return "Picks"; }
     Slot slot() const override { return Slot::kTab; }
 
     void draw(FrameContext& ctx, ImVec2, ImVec2) override {
@@ -169,9 +181,9 @@ public:
         ImGui::TextWrapped("Caution: %s.", caution.c_str());
         ImGui::PopStyleColor();
         if (!v) {
-            ImGui::TextDisabled("No pick list yet.");
+            mutedWrapped("No pick list yet.");
         } else if (!v->enabled) {
-            ImGui::TextDisabled("Picking is switched off ([picks] enabled = false).");
+            mutedWrapped("Picking is switched off ([picks] enabled = false).");
         } else {
             // What changes as the passes are run comes first, readable without scrolling at large
             // UI scales; the lists follow. (Picks on the plan: the plan view's "Picks" toggle.)
@@ -179,17 +191,49 @@ public:
             char head[64];
             std::snprintf(head, sizeof head, "Picks (%zu)###picks", v->picks.size());
             if (ImGui::CollapsingHeader(head, ImGuiTreeNodeFlags_DefaultOpen)) drawPicks(ctx, *v);
-            const std::string known = verificationHeadline(*v) + "###known";
-            if (ImGui::CollapsingHeader(known.c_str(), ImGuiTreeNodeFlags_DefaultOpen)) drawVerification(pal, *v);
+            // A header does not wrap: its text is elided to the row (the whole on hover; the
+            // verdicts are also wrapped in full above).
+            const std::string headline = verificationHeadline(*v);
+            const float room = ImGui::GetContentRegionAvail().x - ImGui::GetTreeNodeToLabelSpacing() -
+                               ImGui::GetStyle().FramePadding.x;
+            const std::string known = elideToWidth(headline, room) + "###known";
+            const bool open = ImGui::CollapsingHeader(known.c_str(), ImGuiTreeNodeFlags_DefaultOpen);
+            if (ImGui::IsItemHovered() && known.size() != headline.size() + 8) ImGui::SetTooltip("%s", headline.c_str());
+            if (open) drawVerification(pal, *v);
         }
         ImGui::EndChild();
     }
 
 private:
-    // Columns as wide as their text, scrolled sideways in a narrow tab; at most 10 rows high.
+    // Columns as wide as their text, at most 10 rows high. A tab too narrow for the whole table
+    // (large UI scales) lists each row as wrapped text instead: nothing is cut or hidden sideways.
     static constexpr ImGuiTableFlags kTableFlags = ImGuiTableFlags_RowBg | ImGuiTableFlags_SizingFixedFit |
-                                                   ImGuiTableFlags_ScrollX | ImGuiTableFlags_ScrollY |
-                                                   ImGuiTableFlags_BordersInnerV;
+                                                   ImGuiTableFlags_ScrollY | ImGuiTableFlags_BordersInnerV;
+
+    // Whether a table of these headers and rows fits the room left on the line, columns as wide
+    // as their widest text.
+    static bool tableFits(const std::vector<const char*>& heads, const std::vector<std::vector<const std::string*>>& rows) {
+        const ImGuiStyle& st = ImGui::GetStyle();
+        float total = rows.size() > 10 ? st.ScrollbarSize : 0.0f;
+        for (std::size_t c = 0; c < heads.size(); ++c) {
+            float w = ImGui::CalcTextSize(heads[c]).x;
+            for (const auto& r : rows) w = std::max(w, ImGui::CalcTextSize(r[c]->c_str()).x);
+            total += w + 2 * st.CellPadding.x + 1.0f;
+        }
+        return total <= ImGui::GetContentRegionAvail().x;
+    }
+
+    // "head value" pairs of a row joined for the wrapped list, empty values left out.
+    static std::string joined(const std::vector<const char*>& heads, const std::vector<const std::string*>& row,
+                              std::size_t from) {
+        std::string out;
+        for (std::size_t c = from; c < heads.size(); ++c) {
+            if (row[c]->empty()) continue;
+            if (!out.empty()) out += ";  ";
+            out += std::string(heads[c]) + " " + *row[c];
+        }
+        return out;
+    }
     static ImVec2 tableSize(std::size_t rows) {
         const float row = ImGui::GetTextLineHeightWithSpacing() + 2.0f * ImGui::GetStyle().CellPadding.y;
         const float n = static_cast<float>(std::min<std::size_t>(rows, 10) + 1);
@@ -198,17 +242,34 @@ private:
 
     static void drawPicks(FrameContext& ctx, const engine::PicksView& v) {
         if (v.picks.empty()) {
-            ImGui::TextDisabled("No anomaly has reached the live threshold on a line run yet.");
+            mutedWrapped("No anomaly has reached the live threshold on a line run yet.");
             return;
         }
         ImGui::PushStyleColor(ImGuiCol_Text, ImGui::GetStyleColorVec4(ImGuiCol_TextDisabled));
         ImGui::TextWrapped("burial below the seabed (depth below the sensor); size: dipole moment, mass by the mass "
                            "rule. Click a row to centre the plan on the pick.");
         ImGui::PopStyleColor();
+        const std::vector<const char*> heads = {"pick", "first seen", "E / N m", "peak", "burial (depth)", "size",
+                                                "quality", "runs"};
+        std::vector<PickRow> rows;
+        std::vector<std::vector<const std::string*>> cells;
+        rows.reserve(v.picks.size());
+        for (const auto& p : v.picks) rows.push_back(pickRow(p));
+        for (const auto& r : rows)
+            cells.push_back({&r.id, &r.first_seen, &r.position, &r.peak, &r.depth, &r.size, &r.quality, &r.runs});
+        if (!tableFits(heads, cells)) {
+            for (std::size_t i = 0; i < rows.size(); ++i) {
+                ImGui::PushID(v.picks[i].id);
+                ImGui::Separator();
+                if (ImGui::Selectable(rows[i].id.c_str())) ctx.focus_request = v.picks[i].at;
+                ImGui::TextWrapped("%s", joined(heads, cells[i], 1).c_str());
+                ImGui::PopID();
+            }
+            return;
+        }
         if (!ImGui::BeginTable("picks", 8, kTableFlags, tableSize(v.picks.size()))) return;
-        for (const char* h : {"pick", "first seen", "E / N m", "peak", "burial (depth)", "size", "quality", "runs"})
-            ImGui::TableSetupColumn(h);
-        ImGui::TableSetupScrollFreeze(1, 1);
+        for (const char* h : heads) ImGui::TableSetupColumn(h);
+        ImGui::TableSetupScrollFreeze(0, 1);
         ImGui::TableHeadersRow();
         for (const auto& p : v.picks) {
             const PickRow r = pickRow(p);
@@ -233,7 +294,7 @@ private:
     // One line per class with its verdict (in the verdict's colour), then the latest pass.
     static void drawVerificationStatus(const Palette& pal, const engine::PicksView& v) {
         if (v.verdicts.empty()) {
-            ImGui::TextDisabled("No [[known_item]] configured: the detection model is not checked on the water.");
+            mutedWrapped("No [[known_item]] configured: the detection model is not checked on the water.");
             return;
         }
         for (const auto& c : v.verdicts) {
@@ -247,7 +308,7 @@ private:
         }
         const auto shown = shownPassesNewestFirst(v);
         if (shown.empty()) {
-            ImGui::TextDisabled("No pass near a known item yet.");
+            mutedWrapped("No pass near a known item yet.");
             return;
         }
         // Alarm colour when the model said the item would be seen and it was not.
@@ -263,30 +324,40 @@ private:
         for (const auto& c : v.verdicts) ImGui::TextWrapped("%s", c.text.c_str());
         for (const auto& u : v.unplaced) ImGui::TextWrapped("not placed (no survey CRS): %s", u.c_str());
         if (v.passes.empty()) {
-            ImGui::TextDisabled("No pass near a known item yet.");
+            mutedWrapped("No pass near a known item yet.");
             return;
         }
         // Newest first: the pass just run is the top row.
         const auto shown = shownPassesNewestFirst(v);
         const std::size_t hidden = v.passes.size() - shown.size();
-        if (!shown.empty() && ImGui::BeginTable("verification", 11, kTableFlags, tableSize(shown.size()))) {
-            for (const char* h : {"passed", "item", "run", "sensor", "offset", "altitude", "predicted", "measured",
-                                  "ratio", "model: seen", "seen"})
-                ImGui::TableSetupColumn(h);
-            ImGui::TableSetupScrollFreeze(1, 1);
+        const std::vector<const char*> heads = {"passed", "item", "run", "sensor", "offset", "altitude", "predicted",
+                                                "measured", "ratio", "model: seen", "seen"};
+        std::vector<VerificationRow> rows;
+        std::vector<std::vector<const std::string*>> cells;
+        rows.reserve(shown.size());
+        for (const auto* p : shown) rows.push_back(verificationRow(*p));
+        for (const auto& r : rows)
+            cells.push_back({&r.time, &r.item, &r.run, &r.sensor, &r.offset, &r.altitude, &r.predicted, &r.measured,
+                             &r.ratio, &r.model_sees, &r.seen});
+        if (!shown.empty() && !tableFits(heads, cells)) {
+            for (const auto& c : cells) {
+                ImGui::Separator();
+                ImGui::TextWrapped("%s", joined(heads, c, 0).c_str());
+            }
+        } else if (!shown.empty() && ImGui::BeginTable("verification", 11, kTableFlags, tableSize(shown.size()))) {
+            for (const char* h : heads) ImGui::TableSetupColumn(h);
+            ImGui::TableSetupScrollFreeze(0, 1);
             ImGui::TableHeadersRow();
-            for (const auto* p : shown) {
-                const VerificationRow r = verificationRow(*p);
+            for (const auto& c : cells) {
                 ImGui::TableNextRow();
-                for (const std::string* t : {&r.time, &r.item, &r.run, &r.sensor, &r.offset, &r.altitude, &r.predicted,
-                                             &r.measured, &r.ratio, &r.model_sees, &r.seen}) {
+                for (const std::string* t : c) {
                     ImGui::TableNextColumn();
                     ImGui::TextUnformatted(t->c_str());
                 }
             }
             ImGui::EndTable();
         }
-        if (hidden > 0) ImGui::TextDisabled("%zu far passes not listed (as in the report).", hidden);
+        if (hidden > 0) mutedWrapped(std::to_string(hidden) + " far passes not listed (as in the report).");
     }
 };
 

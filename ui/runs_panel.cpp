@@ -16,6 +16,7 @@ namespace {
 class RunsPanel final : public Panel {
 public:
     const char* name() const override { return "Runs & infill"; }
+    const char* shortName() const override { return "Runs"; }
     Slot slot() const override { return Slot::kTab; }
 
     void draw(FrameContext& ctx, ImVec2, ImVec2) override {

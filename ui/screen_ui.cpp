@@ -237,15 +237,25 @@ void ScreenUi::frame(const engine::Snapshot* s, double wall_s) {
     ImGui::SetNextWindowPos(m_layout.tabs.min);
     ImGui::SetNextWindowSize({m_layout.tabs.width(), m_layout.tabs.height()});
     ImGui::Begin("Panels", nullptr, fixed);
+    // Full tab names when they fit in one row, else the short ones (the tab's identity, saved
+    // setting and selection stay with the full name).
+    float tabs_w = 0.0f;
+    for (auto& p : m_panels)
+        if (p->slot() == Slot::kTab)
+            tabs_w += ImGui::CalcTextSize(p->name()).x + 2 * ImGui::GetStyle().FramePadding.x +
+                      ImGui::GetStyle().ItemInnerSpacing.x;
+    const bool short_tabs = tabs_w > ImGui::GetContentRegionAvail().x;
     if (ImGui::BeginTabBar("panel_tabs")) {
         for (auto& p : m_panels) {
             if (p->slot() != Slot::kTab) continue;
+            // The ID is the full name's in both cases ("###"), so the chosen tab survives a resize.
+            const std::string label = std::string(short_tabs ? p->shortName() : p->name()) + "###" + p->name();
             // A new unacknowledged alarm brings the alarm list to the front.
             const bool is_alarms = std::string_view(p->name()) == "Alarms";
             const bool restore = m_tab_frames < 2 && m_settings.tab == p->name();
             const ImGuiTabItemFlags f =
                 ((is_alarms && unacked > m_last_unacked) || restore) ? ImGuiTabItemFlags_SetSelected : 0;
-            if (ImGui::BeginTabItem(p->name(), nullptr, f)) {
+            if (ImGui::BeginTabItem(label.c_str(), nullptr, f)) {
                 if (m_tab_frames >= 3 && m_settings.tab != p->name()) {
                     m_settings.tab = p->name();  // the operator (or a new alarm) chose this tab
                     m_settings_changed = true;

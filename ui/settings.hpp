@@ -24,7 +24,7 @@ struct ScreenSettings {
     bool follow_vessel = true;   // plan view keeps the vessel in view
     bool show_picks = true;      // plan view draws the anomaly picks
     std::vector<std::string> hidden_plots;  // titles of time plots the operator switched off
-    std::string tab = "Alarms";  // the tab shown under the plots: Alarms, Runs & infill, Profiles
+    std::string tab = "Alarms";  // the tab shown under the plots: Alarms, Runs & infill, Profiles, Anomalies
     // A site: show only this session's runs and coverage (not saved: a choice of the moment).
     bool hide_earlier_sessions = false;
 };
