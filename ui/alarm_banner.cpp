@@ -11,6 +11,7 @@
 #include <cmath>
 #include <cstdio>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "ui/panel.hpp"
@@ -140,6 +141,10 @@ public:
             // font) on one line or wrapped onto more; if even 1.0x does not fit, the last line
             // that fits ends in "..." and the whole text shows on hover.
             std::string title = "ALARM  " + newest->words + ": " + newest->value_text;
+            // A forming gap says where: line, side, width and distance along the line.
+            static constexpr std::string_view kAt = "Forming gap on ";
+            if (newest->episode.check == "forming_gap" && newest->text.rfind(kAt, 0) == 0)
+                title = "ALARM  Gap forming: " + newest->text.substr(kAt.size());
             if (alarms_unacked > 1) title += "   (+" + std::to_string(alarms_unacked - 1) + " more)";
             const float tx = sp.x + sym + 16 * sc;
             const float room = std::max(0.0f, words_end - tx);

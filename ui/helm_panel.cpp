@@ -1,9 +1,10 @@
 // The helm panel: what the surveyor and the helm watch, in large print at the top of the right
 // column. First row (largest): the active line, the distance off it with the side, and the
-// distance and time to its end. Second row: speed in knots and m/s, sensor altitude, layback and
-// cable out, the GNSS fix by its NMEA 0183 name with satellites and HDOP, coverage of the area.
+// distance and time to its end. Second row: speed in knots and m/s, coverage of the area, sensor
+// altitude, layback and cable out, the GNSS fix by its NMEA 0183 name with satellites and HDOP.
 // Third row (live, when infill lines exist): buttons to steer to an infill line or back to the
-// planned lines. Last row: the health of each input (rate, age of its latest line, errors) on the receive clock.
+// planned lines. Last row: the health of each input (rate, age of its latest line, errors) on the
+// receive clock.
 // Values come from the engine's snapshot (engine::HelmView); unknown ones read "--", never 0.
 #include <algorithm>
 #include <cmath>
@@ -116,7 +117,7 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     y += big + 4 * sc;
     x = amin.x;
     row_h = base * 1.15f;
-    // Row 2: speed, altitude, layback and cable, GNSS, coverage.
+    // Row 2: speed, coverage, altitude, layback and cable, GNSS.
     const float mid = base * 1.15f;
     x = amin.x;
     char buf[160];
@@ -125,6 +126,12 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     auto wm = [&](const std::string& t) { return font->CalcTextSizeA(mid, 1e9f, 0.0f, t.c_str()).x; };
     put(mid, pal.text_dim, "speed", 5 * sc, wm(buf));
     put(mid, pal.text, buf, gap);
+    // Coverage of the area next: when rows must be left out at large scales it is kept.
+    char cov[32];
+    if (h.coverage_pct) std::snprintf(cov, sizeof cov, "%.1f %%", *h.coverage_pct);
+    else std::snprintf(cov, sizeof cov, "--");
+    put(mid, pal.text_dim, "area covered", 5 * sc, wm(cov));
+    put(mid, pal.text, cov, gap);
     std::string alt;
     for (const auto& sv : s->sensors) {
         if (!sv.altitude_m) continue;
@@ -151,10 +158,6 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
     }
     put(mid, pal.text_dim, "GNSS", 5 * sc, wm(fix));
     put(mid, fix_poor ? pal.warn : pal.text, fix, gap);
-    if (h.coverage_pct) std::snprintf(buf, sizeof buf, "%.1f %%", *h.coverage_pct);
-    else std::snprintf(buf, sizeof buf, "--");
-    put(mid, pal.text_dim, "area covered", 5 * sc, wm(buf));
-    put(mid, pal.text, buf, gap);
     y += mid + 3 * sc;
 
     // Row 3 (live only): the crew's steering choice, as keys I and P do (docs/helm-output.md).
@@ -166,7 +169,8 @@ float layoutHelm(const engine::Snapshot* s, const Palette& pal, float sc, ImDraw
         const float bh = ImGui::GetFrameHeight();
         const bool room = y + bh <= amax.y + 0.5f;  // buttons that would run below the panel are left out
         auto button = [&](const std::string& label, const engine::UiCommand& cmd) {
-            const float w = ImGui::CalcTextSize(label.c_str()).x + 2 * ImGui::GetStyle().FramePadding.x;
+            // The width of what is shown: the text before "##" (the button's hidden ID part).
+            const float w = ImGui::CalcTextSize(label.c_str(), nullptr, true).x + 2 * ImGui::GetStyle().FramePadding.x;
             if (x + w > amax.x) return false;  // what does not fit is left to key I
             if (dl && send && room) {
                 ImGui::SetCursorScreenPos({x, y});

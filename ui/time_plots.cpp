@@ -77,17 +77,44 @@ public:
             ImGui::EndCombo();
         }
         if (!m_sensor.empty() && std::find(sensors.begin(), sensors.end(), m_sensor) == sensors.end()) m_sensor.clear();
-        // Plot toggles wrap onto further rows when the column is narrow (large UI scales).
-        for (const auto& g : s->plots) {
-            const float w = ImGui::GetFrameHeight() + ImGui::CalcTextSize(g.title.c_str()).x + ImGui::GetStyle().ItemSpacing.x * 2;
-            const float right = ImGui::GetItemRectMax().x + w;
-            if (right < ImGui::GetWindowPos().x + ImGui::GetWindowContentRegionMax().x) ImGui::SameLine();
+        const auto toggle = [&](const engine::PlotGroup& g) {
             bool shown = !isHidden(set, g.title);
             if (ImGui::Checkbox(g.title.c_str(), &shown)) {
                 auto& h = set.hidden_plots;
                 if (shown) h.erase(std::remove(h.begin(), h.end(), g.title), h.end());
                 else h.push_back(g.title);
                 ctx.settings_changed = true;
+            }
+        };
+        // Plot toggles sit beside the choosers and wrap onto at most one further row; when they
+        // would need more (large UI scales) they go into a "plots" pop-up, so the rows they would
+        // take are left to the plots themselves.
+        const float right_edge = ImGui::GetWindowPos().x + ImGui::GetWindowContentRegionMax().x;
+        const float spacing = ImGui::GetStyle().ItemSpacing.x;
+        float toggles_w = 0.0f;
+        int n_shown = 0;
+        for (const auto& g : s->plots) {
+            toggles_w += ImGui::GetFrameHeight() + ImGui::CalcTextSize(g.title.c_str()).x + spacing * 2;
+            n_shown += isHidden(set, g.title) ? 0 : 1;
+        }
+        const float row_w = ImGui::GetContentRegionAvail().x;
+        const float left_on_row = std::max(0.0f, right_edge - ImGui::GetItemRectMax().x - spacing);
+        if (toggles_w <= left_on_row + row_w) {
+            for (const auto& g : s->plots) {
+                const float w = ImGui::GetFrameHeight() + ImGui::CalcTextSize(g.title.c_str()).x + spacing * 2;
+                if (ImGui::GetItemRectMax().x + w < right_edge) ImGui::SameLine();
+                toggle(g);
+            }
+        } else {
+            char plots_label[48];
+            std::snprintf(plots_label, sizeof plots_label, "plots %d of %zu", n_shown, s->plots.size());
+            const float w = ImGui::CalcTextSize(plots_label).x + 2 * ImGui::GetStyle().FramePadding.x + spacing;
+            if (ImGui::GetItemRectMax().x + w < right_edge) ImGui::SameLine();
+            if (ImGui::Button(plots_label)) ImGui::OpenPopup("plot_toggles");
+            if (ImGui::IsItemHovered()) ImGui::SetTooltip("Choose the plots shown");
+            if (ImGui::BeginPopup("plot_toggles")) {
+                for (const auto& g : s->plots) toggle(g);
+                ImGui::EndPopup();
             }
         }
         std::vector<const engine::PlotGroup*> visible;
