@@ -33,9 +33,13 @@
 #include "decode/nmea.hpp"
 #include "helm/steering_sentences.hpp"
 #include "io/helm_output.hpp"
+#include "../shell_output.hpp"
 
 namespace fs = std::filesystem;
 using namespace sg;
+
+using sg::test::readFile;
+constexpr auto* run = &sg::test::commandOutput;
 
 namespace {
 
@@ -78,23 +82,6 @@ std::vector<std::string> splitCrLf(const std::string& bytes, std::string* rest =
     }
     if (rest) *rest = bytes.substr(at);
     return lines;
-}
-
-std::string readFile(const fs::path& p) {
-    std::ifstream in(p);
-    std::ostringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
-
-std::string run(const std::string& cmd) {
-    std::string out;
-    if (FILE* p = popen(cmd.c_str(), "r")) {
-        char buf[4096];
-        while (std::size_t n = fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-        pclose(p);
-    }
-    return out;
 }
 
 helm::SteeringFix exampleFix() {

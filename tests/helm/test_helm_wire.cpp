@@ -24,28 +24,15 @@
 #include <nlohmann/json.hpp>
 
 #include "decode/nmea.hpp"
+#include "../shell_output.hpp"
 
 namespace fs = std::filesystem;
 using namespace sg;
 
+using sg::test::readFile;
+constexpr auto* run = &sg::test::commandOutput;
+
 namespace {
-
-std::string readFile(const fs::path& p) {
-    std::ifstream in(p);
-    std::ostringstream s;
-    s << in.rdbuf();
-    return s.str();
-}
-
-std::string run(const std::string& cmd) {
-    std::string out;
-    if (FILE* p = popen(cmd.c_str(), "r")) {
-        char buf[4096];
-        while (std::size_t n = fread(buf, 1, sizeof buf, p)) out.append(buf, n);
-        pclose(p);
-    }
-    return out;
-}
 
 }  // namespace
 

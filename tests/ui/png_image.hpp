@@ -39,4 +39,16 @@ inline bool near(ImU32 a, ImU32 b, int tol) {
     return true;
 }
 
+// Fraction of pixels in the (2r+1)^2 block around c within `tol` of `colour`.
+inline double fractionNear(const Image& img, ImVec2 c, int r, ImU32 colour, int tol) {
+    int hit = 0, all = 0;
+    for (int y = static_cast<int>(c.y) - r; y <= static_cast<int>(c.y) + r; ++y)
+        for (int x = static_cast<int>(c.x) - r; x <= static_cast<int>(c.x) + r; ++x) {
+            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
+            ++all;
+            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
+        }
+    return all ? static_cast<double>(hit) / all : 0.0;
+}
+
 }  // namespace sg::testui

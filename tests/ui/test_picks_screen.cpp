@@ -21,6 +21,7 @@
 #include "engine/snapshot_picks.hpp"
 #include "colour_measure.hpp"
 #include "png_image.hpp"
+#include "screen_render.hpp"
 #include "synthetic_snapshot.hpp"
 #include "ui/layout.hpp"
 #include "ui/palette.hpp"
@@ -34,6 +35,7 @@ namespace fs = std::filesystem;
 using sg::testdata::kOriginE;
 using sg::testdata::kOriginN;
 using sg::testui::Image;
+using sg::testui::fractionNear;
 using sg::testui::near;
 
 // TEST DATA ONLY: three invented picks and a verification strip with one item passed three times.
@@ -92,17 +94,6 @@ std::shared_ptr<sg::engine::Snapshot> snapshotWithPicks() {
     return snap;
 }
 
-double fractionNear(const Image& img, ImVec2 c, int r, ImU32 colour, int tol) {
-    int hit = 0, all = 0;
-    for (int y = static_cast<int>(c.y) - r; y <= static_cast<int>(c.y) + r; ++y)
-        for (int x = static_cast<int>(c.x) - r; x <= static_cast<int>(c.x) + r; ++x) {
-            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
-            ++all;
-            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
-        }
-    return all ? static_cast<double>(hit) / all : 0.0;
-}
-
 // Pixels of `colour` in the square of half-side `outer` around c but outside the half-side `inner`.
 int countInRing(const Image& img, ImVec2 c, int inner, int outer, ImU32 colour, int tol) {
     int hit = 0;
@@ -121,22 +112,7 @@ constexpr double kDemoSeconds = 1480.0;
 class PicksScreenTest : public ::testing::Test {
 protected:
     Image render(std::shared_ptr<const sg::engine::Snapshot> snap, const std::string& name, const std::string& ini_text) {
-        const fs::path dir = fs::path(SG_BINARY_DIR) / "test_ui_out";
-        fs::create_directories(dir);
-        const std::string ini = (dir / (name + ".ini")).string();
-        std::ofstream(ini, std::ios::trunc) << ini_text;
-        sg::ui::SnapshotBox box;
-        sg::ui::CommandQueue commands;
-        box.publish(std::move(snap));
-        sg::ui::ScreenOptions o;
-        o.width = 1600;
-        o.height = 1000;
-        o.settings_path = ini;
-        o.screenshot_path = (dir / (name + ".png")).string();
-        o.after_frames = 4;
-        o.max_fps = 200;
-        EXPECT_EQ(sg::ui::runScreen(box, commands, o), 0);
-        return sg::testui::loadPng(o.screenshot_path);
+        return sg::testui::renderSnapshot(std::move(snap), fs::path(SG_BINARY_DIR) / "test_ui_out", name, ini_text);
     }
 };
 

@@ -80,19 +80,8 @@ private:
 
 using sg::testui::Image;
 using sg::testui::loadPng;
+using sg::testui::fractionNear;
 using sg::testui::near;
-
-// Fraction of pixels in the (2r+1)^2 block around (cx, cy) within `tol` of `colour`.
-double fractionNear(const Image& img, ImVec2 c, int r, ImU32 colour, int tol) {
-    int hit = 0, all = 0;
-    for (int y = static_cast<int>(c.y) - r; y <= static_cast<int>(c.y) + r; ++y)
-        for (int x = static_cast<int>(c.x) - r; x <= static_cast<int>(c.x) + r; ++x) {
-            if (x < 0 || y < 0 || x >= img.w || y >= img.h) continue;
-            ++all;
-            hit += near(img.at(x, y), colour, tol) ? 1 : 0;
-        }
-    return all ? static_cast<double>(hit) / all : 0.0;
-}
 
 class ScreenTest : public ::testing::Test {
 protected:

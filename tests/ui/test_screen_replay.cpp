@@ -30,6 +30,7 @@
 #include "ui/plan_view.hpp"
 #include "ui/screen.hpp"
 #include "png_image.hpp"
+#include "screen_render.hpp"
 #include "../demo_on_ports.hpp"
 #include "../port_block.hpp"
 
@@ -102,20 +103,7 @@ protected:
         return builder.build(/*force_gaps=*/true);
     }
     Image render(std::shared_ptr<const sg::engine::Snapshot> snap, const std::string& name, const std::string& ini) {
-        const std::string ini_path = (m_dir / (name + ".ini")).string();
-        std::ofstream(ini_path) << ini;
-        sg::ui::SnapshotBox box;
-        sg::ui::CommandQueue commands;
-        box.publish(std::move(snap));
-        sg::ui::ScreenOptions o;
-        o.width = 1600;
-        o.height = 1000;
-        o.settings_path = ini_path;
-        o.screenshot_path = (m_dir / (name + ".png")).string();
-        o.after_frames = 4;
-        o.max_fps = 200;
-        EXPECT_EQ(sg::ui::runScreen(box, commands, o), 0);
-        return loadPng(o.screenshot_path);
+        return sg::testui::renderSnapshot(std::move(snap), m_dir, name, ini);
     }
     fs::path m_dir;
 };
