@@ -247,45 +247,7 @@ void AnomalyPicker::mergePick(PickObservation obs) {
     }
     AnomalyPick& p = *target;
     p.observations.push_back(std::move(obs));
-
-    // Aggregate: position weighted by peak/threshold and fit quality; the fitted figures from the
-    // best-fitting observation; amplitude and width from the strongest.
-    double we = 0.0, wn = 0.0, w = 0.0;
-    const PickObservation* strongest = nullptr;
-    const PickObservation* best_fit = nullptr;
-    std::set<int> runs, sensors;
-    for (const PickObservation& o : p.observations) {
-        const double wi = o.snr * std::max(o.fit ? o.fit->r2 : 0.0, 0.1);
-        we += wi * o.easting_m;
-        wn += wi * o.northing_m;
-        w += wi;
-        if (!strongest || std::abs(o.peak_nT) > std::abs(strongest->peak_nT)) strongest = &o;
-        if (o.fit && (!best_fit || o.fit->r2 * o.snr > best_fit->fit->r2 * best_fit->snr)) best_fit = &o;
-        runs.insert(o.run);
-        sensors.insert(o.sensors.begin(), o.sensors.end());
-        p.first_t_ns = std::min(p.first_t_ns, o.t_ns);
-    }
-    p.easting_m = we / w;
-    p.northing_m = wn / w;
-    p.peak_nT = strongest->peak_nT;
-    p.width_m = strongest->width_m;
-    p.altitude_m = strongest->altitude_m;
-    p.snr = strongest->snr;
-    p.runs.assign(runs.begin(), runs.end());
-    p.sensors.assign(sensors.begin(), sensors.end());
-    if (best_fit) {
-        const DipoleFit& f = *best_fit->fit;
-        p.burial_m = f.burial_m;
-        p.depth_below_sensor_m = best_fit->altitude_m + f.burial_m;
-        p.moment_Am2 = f.moment_Am2;
-        p.angle_to_field_deg = f.angle_to_field_deg;
-        p.moment_model = f.model == MomentModel::Free ? "dipole, free direction" : "dipole, induced";
-        p.fit_r2 = f.r2;
-        // Mass rule A = C W / r^3 (common practice), solved for W at the fitted distance.
-        const double r = *p.depth_below_sensor_m;
-        p.mass_rule_kg = std::abs(strongest->peak_nT) * r * r * r / m_mass_rule_C;
-    }
-    p.quality = qualityLabel(p.fit_r2, p.snr, best_fit != nullptr);
+    aggregatePick(p, m_mass_rule_C);
 }
 
 void AnomalyPicker::flushSlot(std::size_t i) {
@@ -300,6 +262,81 @@ void AnomalyPicker::flushSlot(std::size_t i) {
 void AnomalyPicker::finish() {
     for (std::size_t i = 0; i < m_slots.size(); ++i) flushSlot(i);
     processGroups(true);
+}
+
+void aggregatePick(AnomalyPick& p, double mass_rule_C) {
+    // Aggregate: position weighted by peak/threshold and fit quality; the fitted figures from the
+    // best-fitting observation; amplitude and width from the strongest.
+    double we = 0.0, wn = 0.0, w = 0.0;
+    const PickObservation* strongest = nullptr;
+    const PickObservation* best_fit = nullptr;
+    std::set<int> runs, sensors, sessions;
+    for (const PickObservation& o : p.observations) {
+        const double wi = o.snr * std::max(o.fit ? o.fit->r2 : 0.0, 0.1);
+        we += wi * o.easting_m;
+        wn += wi * o.northing_m;
+        w += wi;
+        if (!strongest || std::abs(o.peak_nT) > std::abs(strongest->peak_nT)) strongest = &o;
+        if (o.fit && (!best_fit || o.fit->r2 * o.snr > best_fit->fit->r2 * best_fit->snr)) best_fit = &o;
+        runs.insert(o.run);
+        sessions.insert(o.session);
+        sensors.insert(o.sensors.begin(), o.sensors.end());
+        p.first_t_ns = std::min(p.first_t_ns, o.t_ns);
+    }
+    p.easting_m = we / w;
+    p.northing_m = wn / w;
+    p.peak_nT = strongest->peak_nT;
+    p.width_m = strongest->width_m;
+    p.altitude_m = strongest->altitude_m;
+    p.snr = strongest->snr;
+    p.runs.assign(runs.begin(), runs.end());
+    p.sensors.assign(sensors.begin(), sensors.end());
+    p.sessions.assign(sessions.begin(), sessions.end());
+    if (best_fit) {
+        const DipoleFit& f = *best_fit->fit;
+        p.burial_m = f.burial_m;
+        p.depth_below_sensor_m = best_fit->altitude_m + f.burial_m;
+        p.moment_Am2 = f.moment_Am2;
+        p.angle_to_field_deg = f.angle_to_field_deg;
+        p.moment_model = f.model == MomentModel::Free ? "dipole, free direction" : "dipole, induced";
+        p.fit_r2 = f.r2;
+        // Mass rule A = C W / r^3 (common practice), solved for W at the fitted distance.
+        const double r = *p.depth_below_sensor_m;
+        p.mass_rule_kg = std::abs(strongest->peak_nT) * r * r * r / mass_rule_C;
+    }
+    p.quality = qualityLabel(p.fit_r2, p.snr, best_fit != nullptr);
+}
+
+std::vector<AnomalyPick> joinSessionPicks(const std::vector<std::vector<AnomalyPick>>& sessions,
+                                          const PickSettings& set, double mass_rule_C) {
+    std::vector<AnomalyPick> out;
+    for (const auto& list : sessions) {
+        const std::size_t before = out.size();  // picks of earlier sessions only
+        for (const AnomalyPick& q : list) {
+            if (q.observations.empty()) continue;
+            const double depth = q.depth_below_sensor_m.value_or(q.altitude_m);
+            AnomalyPick* target = nullptr;
+            double best = 0.0;
+            for (std::size_t i = 0; i < before; ++i) {
+                AnomalyPick& p = out[i];
+                const double d = std::hypot(p.easting_m - q.easting_m, p.northing_m - q.northing_m);
+                const double gate = set.merge_distance_m + 0.5 * std::max(depth, p.depth_below_sensor_m.value_or(p.altitude_m));
+                if (d <= gate && (target == nullptr || d < best)) {
+                    target = &p;
+                    best = d;
+                }
+            }
+            if (target == nullptr) {
+                out.push_back(q);
+                out.back().id = static_cast<int>(out.size());
+                aggregatePick(out.back(), mass_rule_C);
+                continue;
+            }
+            for (const auto& o : q.observations) target->observations.push_back(o);
+            aggregatePick(*target, mass_rule_C);
+        }
+    }
+    return out;
 }
 
 }  // namespace sg::detect

@@ -73,6 +73,7 @@ struct PickObservation {
     std::optional<DipoleFit> fit;
     double easting_m = 0.0;       // the fit's position, else the strongest peak's
     double northing_m = 0.0;
+    int session = 0;              // site session (log) of the pass (0 for one log alone)
 };
 
 struct AnomalyPick {
@@ -95,7 +96,23 @@ struct AnomalyPick {
     std::vector<int> sensors;      // sensor slots that peaked, ascending
     std::vector<PickObservation> observations;
     TimeNs first_t_ns = 0;
+    std::vector<int> sessions;     // site sessions (logs) whose passes saw it, ascending
 };
+
+// Recomputes a pick's figures from its observations (step 5 of docs/picks.md): position weighted
+// by peak/threshold and fit quality, the fitted figures from the best-fitting observation,
+// amplitude and width from the strongest; runs, sensors and sessions joined. `mass_rule_C` in
+// nT m^3/kg. The pick must have at least one observation.
+void aggregatePick(AnomalyPick& p, double mass_rule_C);
+
+// The picks of a site (docs/picks.md "A site"): each session's own pick list, in session (time)
+// order, observations tagged with their session and runs in site ids. The first session's picks
+// are kept as they are (ids 1..n); a pick of a later session within the picker's merge gate
+// (merge_distance_m + half the larger depth below the sensor) of an earlier one is the same item:
+// its passes join that pick (figures recomputed over all passes, the earlier id kept); otherwise
+// it takes the next id. Ids therefore never change when a later session is added.
+std::vector<AnomalyPick> joinSessionPicks(const std::vector<std::vector<AnomalyPick>>& sessions,
+                                          const PickSettings& set, double mass_rule_C);
 
 class AnomalyPicker {
 public:

@@ -88,8 +88,10 @@ void VerificationStrip::add(const DetrendedSample& d) {
 
 VerificationResult VerificationStrip::result(const std::vector<TargetModel>& models,
                                              const std::vector<std::string>& run_lines,
-                                             const std::vector<std::string>& plan_lines) const {
+                                             const std::vector<std::string>& plan_lines,
+                                             const std::vector<VerificationPass>& prior, int session) const {
     VerificationResult out;
+    out.passes = prior;
     for (std::size_t i = 0; i < m_items.size(); ++i) {
         if (!placed(i)) out.unplaced.push_back(m_items[i].name);
         if (plan_lines.empty()) continue;
@@ -114,6 +116,7 @@ VerificationResult VerificationStrip::result(const std::vector<TargetModel>& mod
         p.item = item.name;
         p.target_class = item.target_class;
         p.run = run;
+        p.session = session;
         p.sensor_slot = slot;
         p.t_ns = s.t_ns;
         const double de = m_pos[item_index]->first - s.easting_m;

@@ -74,6 +74,7 @@ struct VerificationPass {
     // false: the item names its lines and this pass is on another one (reported apart, not in
     // the verdict).
     bool on_named_line = true;
+    int session = 0;                  // site session (log) of the pass (0 for one log alone)
 };
 
 struct ClassVerdict {
@@ -111,9 +112,13 @@ public:
     // `models`: the survey's models, in the order of the config's [[target]]. `run_lines`: the
     // plan line name of each run id ("" off plan); `plan_lines`: every line name of the plan
     // (empty without a plan: names in `lines` are then not checked).
+    // `prior`: passes of a site's earlier sessions (from their session summaries), listed
+    // before this session's and counted in the verdicts with them. `session`: this session's
+    // index, given to its passes.
     VerificationResult result(const std::vector<TargetModel>& models,
                               const std::vector<std::string>& run_lines = {},
-                              const std::vector<std::string>& plan_lines = {}) const;
+                              const std::vector<std::string>& plan_lines = {},
+                              const std::vector<VerificationPass>& prior = {}, int session = 0) const;
 
 private:
     struct Track {

@@ -51,6 +51,15 @@ PicksSummary summarisePicks(const SurveyEngine& engine) {
     return p;
 }
 
+// Log file names of a pick's sessions ("" when a session's log is not known).
+static std::vector<std::string> logsOf(const PicksSummary& p, const detect::AnomalyPick& k) {
+    std::vector<std::string> out;
+    for (int s : k.sessions)
+        out.push_back(s >= 0 && static_cast<std::size_t>(s) < p.session_logs.size() ? p.session_logs[static_cast<std::size_t>(s)]
+                                                                                    : std::string());
+    return out;
+}
+
 nlohmann::json toJson(const PicksSummary& p) {
     nlohmann::json j;
     j["enabled"] = p.enabled;
@@ -81,7 +90,9 @@ nlohmann::json toJson(const PicksSummary& p) {
                             {"runs", k.runs},
                             {"sensors", k.sensors},
                             {"observations", k.observations.size()},
-                            {"first_ns", k.first_t_ns}};
+                            {"first_ns", k.first_t_ns},
+                            {"sessions", k.sessions},
+                            {"logs", logsOf(p, k)}};
         if (i < p.lon_deg.size()) {
             o["lon_deg"] = p.lon_deg[i];
             o["lat_deg"] = p.lat_deg[i];
@@ -115,7 +126,8 @@ nlohmann::json verificationJson(const PicksSummary& p) {
                           {"ratio", v.ratio},
                           {"predicted_detected", v.predicted_detected},
                           {"detected", v.detected},
-                          {"on_named_line", v.on_named_line}});
+                          {"on_named_line", v.on_named_line},
+                          {"session", v.session}});
     }
     auto verdicts = nlohmann::json::array();
     for (const auto& v : p.verification.verdicts)
@@ -139,10 +151,12 @@ nlohmann::json verificationJson(const PicksSummary& p) {
 std::string picksCsv(const PicksSummary& p) {
     std::string s =
         "id,easting_m,northing_m,lon_deg,lat_deg,peak_nT,width_m,altitude_m,burial_m,depth_below_sensor_m,"
-        "moment_Am2,angle_to_field_deg,moment_model,mass_rule_kg,fit_r2,snr,quality,runs,sensors\n";
+        "moment_Am2,angle_to_field_deg,moment_model,mass_rule_kg,fit_r2,snr,quality,runs,sensors,sessions,logs\n";
     for (std::size_t i = 0; i < p.picks.size(); ++i) {
         const auto& k = p.picks[i];
-        s += fmt::format("{},{:.2f},{:.2f},{},{},{:.2f},{:.2f},{:.2f},{},{},{},{},{},{},{:.3f},{:.2f},{},{},{}\n", k.id,
+        std::string logs;
+        for (const auto& l : logsOf(p, k)) logs += (logs.empty() ? "" : " ") + l;
+        s += fmt::format("{},{:.2f},{:.2f},{},{},{:.2f},{:.2f},{:.2f},{},{},{},{},{},{},{:.3f},{:.2f},{},{},{},{},{}\n", k.id,
                          k.easting_m, k.northing_m,
                          i < p.lon_deg.size() ? fmt::format("{:.8f}", p.lon_deg[i]) : "",
                          i < p.lat_deg.size() ? fmt::format("{:.8f}", p.lat_deg[i]) : "", k.peak_nT,
@@ -150,7 +164,7 @@ std::string picksCsv(const PicksSummary& p) {
                          optText(k.depth_below_sensor_m, "{:.2f}"), optText(k.moment_Am2, "{:.3g}"),
                          optText(k.angle_to_field_deg, "{:.0f}"), coverage::csvField(k.moment_model),
                          optText(k.mass_rule_kg, "{:.3g}"), k.fit_r2, k.snr, k.quality, joinInts(k.runs),
-                         joinInts(k.sensors));
+                         joinInts(k.sensors), joinInts(k.sessions), coverage::csvField(logs));
     }
     return s;
 }

@@ -34,6 +34,9 @@ struct PicksSummary {
     std::uint64_t peaks = 0;               // single-sensor peaks found
     detect::VerificationResult verification;
     std::vector<std::string> run_lines;    // plan line name of each run id ("" off plan)
+    // Log file name of each session (by SessionInfo::index; one entry for one log alone): the
+    // `logs` of each pick (docs/picks.md "A site").
+    std::vector<std::string> session_logs;
 };
 
 PicksSummary summarisePicks(const SurveyEngine& engine);
@@ -41,7 +44,7 @@ nlohmann::json toJson(const PicksSummary& p);
 // Passes (predicted and measured peaks) and the verdict per class.
 nlohmann::json verificationJson(const PicksSummary& p);
 // id,easting_m,northing_m,lon_deg,lat_deg,peak_nT,width_m,altitude_m,burial_m,depth_below_sensor_m,
-// moment_Am2,angle_to_field_deg,moment_model,mass_rule_kg,fit_r2,snr,quality,runs,sensors
+// moment_Am2,angle_to_field_deg,moment_model,mass_rule_kg,fit_r2,snr,quality,runs,sensors,sessions,logs
 std::string picksCsv(const PicksSummary& p);
 // FeatureCollection of Points with the same properties.
 std::string picksGeoJson(const PicksSummary& p);

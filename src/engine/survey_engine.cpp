@@ -319,6 +319,8 @@ void SurveyEngine::seedSite(SiteSeed seed) {
     m_prior_alarms = std::move(seed.alarms);
     m_prior_outages = std::move(seed.outages);
     m_prior_sessions = std::move(seed.sessions);
+    m_prior_picks = std::move(seed.picks);
+    m_prior_passes = std::move(seed.verification_passes);
     if (!m_cov) return;  // no [plan]: no coverage to join
     auto& site = m_cov->beginSite();
     // Gap names: after each earlier session is joined, its gaps (with the ground its and the
@@ -401,7 +403,15 @@ SurveyEngine::PicksNow SurveyEngine::picksNow() const {
                                     ? ls[static_cast<std::size_t>(r.line)].name
                                     : std::string());
     }
-    out.verification = strip.result(m_models, run_lines, plan_lines);
+    const int session = static_cast<int>(m_prior_sessions.size());
+    out.verification = strip.result(m_models, run_lines, plan_lines, m_prior_passes, session);
+    if (!m_site_seeded) return out;
+    // A site: the earlier sessions' picks joined with this session's (docs/picks.md "A site").
+    for (auto& k : out.picks)
+        for (auto& o : k.observations) o.session = session;
+    auto lists = m_prior_picks;
+    lists.push_back(std::move(out.picks));
+    out.picks = detect::joinSessionPicks(lists, m_pick_settings, m_cfg.detection.detection.mass_rule_C);
     return out;
 }
 

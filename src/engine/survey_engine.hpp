@@ -69,6 +69,10 @@ struct SiteSeed {
     std::vector<AlarmSummary> alarms;
     std::vector<OutageSummary> outages;
     std::vector<SessionInfo> sessions;
+    // Anomaly picks of each earlier session (its own list, runs in site ids, observations tagged
+    // with the session) and their verification passes (docs/picks.md "A site").
+    std::vector<std::vector<detect::AnomalyPick>> picks;
+    std::vector<detect::VerificationPass> verification_passes;
 };
 
 // A forming gap, located: on which line and side, how wide, how far along the line, and where.
@@ -340,6 +344,8 @@ private:
     std::vector<AlarmSummary> m_prior_alarms;
     std::vector<OutageSummary> m_prior_outages;
     std::vector<SessionInfo> m_prior_sessions;
+    std::vector<std::vector<detect::AnomalyPick>> m_prior_picks;      // per earlier session
+    std::vector<detect::VerificationPass> m_prior_passes;
     TimeNs m_first_sample_ns = 0, m_last_sample_ns = 0;
 
     std::map<std::uint64_t, std::int64_t> m_episode_event;  // episode id -> events.id

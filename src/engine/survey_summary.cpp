@@ -276,6 +276,14 @@ SurveySummary summarise(SurveyEngine& engine, std::uint64_t lines_processed, con
             if (std::find(names.begin(), names.end(), x.vessel) == names.end()) names.push_back(x.vessel);
         s.vessels = names.size();
     }
+    // The log of each session, for the picks' `logs` (one log alone: its own file name).
+    for (const auto& x : s.sessions) {
+        if (x.index < 0) continue;
+        if (s.picks.session_logs.size() <= static_cast<std::size_t>(x.index))
+            s.picks.session_logs.resize(static_cast<std::size_t>(x.index) + 1);
+        s.picks.session_logs[static_cast<std::size_t>(x.index)] = x.log;
+    }
+    if (s.sessions.empty()) s.picks.session_logs = {std::filesystem::path(log.path).filename().string()};
     s.gap_causes = gapCauses(s, d.line_spacing_m, engine.vesselTrack());  // needs the runs, alarms and outages above
     s.field_samples = engine.fieldSamples();
     s.crs_problem = engine.crsProblem();

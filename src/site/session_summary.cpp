@@ -13,6 +13,7 @@
 #include "engine/log_replay.hpp"
 #include "engine/survey_summary.hpp"
 #include "log/log_reader.hpp"
+#include "site/session_picks.hpp"
 #include "site/site_config.hpp"
 
 namespace sg::site {
@@ -127,6 +128,8 @@ json toJson(const SessionSummary& s) {
     for (const auto& o : s.outages)
         outs.push_back({o.kind, o.source, o.start_ns, optTime(o.end_ns), o.duration_s, o.detail});
     j["outages"] = std::move(outs);
+    j["picks"] = picksToJson(s.picks);
+    j["verification_passes"] = passesToJson(s.verification_passes);
     return j;
 }
 
@@ -160,6 +163,8 @@ SessionSummary fromJson(const json& j) {
         s.alarms.push_back({a.at(0), a.at(1), a.at(2), getOptTime(a.at(3)), a.at(4), a.at(5), getOptTime(a.at(6)), 0});
     for (const auto& o : j.at("outages"))
         s.outages.push_back({o.at(0), o.at(1), o.at(2), getOptTime(o.at(3)), o.at(4), o.at(5), 0});
+    if (j.contains("picks")) s.picks = picksFromJson(j.at("picks"));
+    if (j.contains("verification_passes")) s.verification_passes = passesFromJson(j.at("verification_passes"));
     return s;
 }
 
@@ -267,6 +272,9 @@ SessionSummary buildSessionSummary(const std::string& log_path, const engine::Su
             s.raster_bytes = coverage::rasterToBytes(r);
         }
         i.own_covered_m2 = static_cast<double>(s.covered_cells) * s.cell_size_m * s.cell_size_m;
+        auto picks = eng.picksNow();
+        s.picks = std::move(picks.picks);
+        s.verification_passes = std::move(picks.verification.passes);
     } catch (const log::LogError& e) {
         throw DamagedLog(e.what());
     }

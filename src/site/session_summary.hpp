@@ -11,13 +11,15 @@
 #include <vector>
 
 #include "coverage/line_runs.hpp"
+#include "detect/anomaly_picker.hpp"
+#include "detect/verification_strip.hpp"
 #include "engine/site_history.hpp"
 #include "engine/survey_config.hpp"
 
 namespace sg::site {
 
 // Bump when the summary's content or layout changes: older summaries are rebuilt.
-inline constexpr std::uint32_t kSessionSummaryVersion = 2;  // 2: runs of infill lines
+inline constexpr std::uint32_t kSessionSummaryVersion = 3;  // 2: runs of infill lines; 3: picks
 
 // A log that cannot be read (not SQLite, truncated, failing SQLite's quick_check, no config).
 class DamagedLog : public std::runtime_error {
@@ -51,6 +53,10 @@ struct SessionSummary {
     std::uint64_t covered_cells = 0;
     double cell_size_m = 0.0;
     std::string raster_bytes;        // coverage::rasterToBytes (empty without a [plan])
+    // The log's final anomaly picks and verification passes (SurveyEngine::picksNow at its end;
+    // runs in this log's own ids; empty when [picks] enabled = false).
+    std::vector<detect::AnomalyPick> picks;
+    std::vector<detect::VerificationPass> verification_passes;
 };
 
 // Replays `log_path` alone under `config` and summarises it. Checks the log first (SQLite

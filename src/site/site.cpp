@@ -267,6 +267,23 @@ engine::SiteSeed siteSeed(const Site& site, std::optional<std::size_t> upto) {
             o.session = session;
             seed.outages.push_back(std::move(o));
         }
+        // Picks and verification passes: runs renumbered across the site, tagged with the session.
+        auto picks = s.picks;
+        for (auto& k : picks) {
+            for (auto& r : k.runs)
+                if (r >= 0) r += base;
+            for (auto& o : k.observations) {
+                if (o.run >= 0) o.run += base;
+                o.session = session;
+            }
+            k.sessions = {session};
+        }
+        seed.picks.push_back(std::move(picks));
+        for (auto p : s.verification_passes) {
+            if (p.run >= 0) p.run += base;
+            p.session = session;
+            seed.verification_passes.push_back(std::move(p));
+        }
         bases.push_back(base);
         base += static_cast<int>(s.runs.size());
     }

@@ -11,6 +11,7 @@
 
 #include <array>
 #include <chrono>
+#include <cmath>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
@@ -340,4 +341,79 @@ TEST(SiteSessions, HalfRunSurveyListsOnlyMissedGroundAndNamesSurvive) {
     std::printf("half-run: %s (%.0f m2 ahead); missed %.0f m2, %zu gap(s); names kept %d, next %d -> %d\n",
                 nry["message"].get<std::string>().c_str(), nry["area_m2"].get<double>(), missed,
                 before.size(), kept, next_half, full["next_gap_number"].get<int>());
+}
+
+// The picks of a site (docs/picks.md "A site", docs/site.md "Session summaries"): the demo survey
+// split into two sessions at the HF03 -> HF04 turn (kSplitS) lists the picks of both sessions in
+// `gaps SITE --json`, and the set equals the single log's (same count, each within 0.05 m, same
+// id): the split lies in a turn, where no sample is picked (picks use line runs only), so no
+// pass is cut in two. The first session's picks come from its summary (.sgsum), the second's from
+// the replay. The site report lists the first session's picks in its table (pdftotext).
+TEST(SiteSessions, PicksOfEverySessionAreListedAndReported) {
+    const auto& one = singleLog();
+    ASSERT_FALSE(one.is_null());
+    const auto site = newSite("split_picks");
+    const auto cfg = site + "/survey.toml";
+    ASSERT_TRUE(session("scenario.toml", cfg, "--site " + site + " --to " + std::to_string(kSplitS)));
+    ASSERT_TRUE(session("scenario.toml", cfg, "--site " + site + " --from " + std::to_string(kSplitS)));
+    Result raw;
+    const auto two = gaps(site, &raw);
+    ASSERT_FALSE(two.is_null()) << raw.err;
+    ASSERT_EQ(two["site"]["sessions"].size(), 2U);
+    const auto& a = one["picks"]["items"];
+    const auto& b = two["picks"]["items"];
+    ASSERT_GE(a.size(), 2U);
+    ASSERT_EQ(b.size(), a.size()) << two["picks"].dump(1);
+    std::set<int> sessions_seen;
+    for (std::size_t i = 0; i < a.size(); ++i) {
+        double best = 1e9;
+        const nlohmann::json* match = nullptr;
+        for (const auto& k : b) {
+            const double d = std::hypot(k["easting_m"].get<double>() - a[i]["easting_m"].get<double>(),
+                                        k["northing_m"].get<double>() - a[i]["northing_m"].get<double>());
+            if (d < best) {
+                best = d;
+                match = &k;
+            }
+        }
+        EXPECT_LE(best, 0.05) << "pick " << a[i].dump();
+        ASSERT_NE(match, nullptr);
+        EXPECT_EQ((*match)["id"], a[i]["id"]);
+        EXPECT_EQ((*match)["runs"], a[i]["runs"]);
+        ASSERT_TRUE(match->contains("sessions")) << match->dump();
+        for (const auto& s : (*match)["sessions"]) sessions_seen.insert(s.get<int>());
+        ASSERT_TRUE(match->contains("logs"));
+        EXPECT_EQ((*match)["logs"].size(), (*match)["sessions"].size());
+        std::printf("pick P%d: %.3f m from the single log's, sessions %s\n", (*match)["id"].get<int>(), best,
+                    (*match)["sessions"].dump().c_str());
+    }
+    EXPECT_EQ(sessions_seen, (std::set<int>{0, 1})) << "picks of both sessions";
+    // Ids stay unique across the site.
+    std::set<int> ids;
+    for (const auto& k : b) EXPECT_TRUE(ids.insert(k["id"].get<int>()).second);
+
+    // The report of the site lists the first session's picks.
+    const auto out = workDir() + "/split_picks_report";
+    fs::remove_all(out);
+    const auto rep = run(kBin + " report " + site + " --out " + out);
+    ASSERT_EQ(rep.rc, 0) << rep.out << rep.err;
+    std::string pdf;
+    for (const auto& e : fs::directory_iterator(out))
+        if (e.path().extension() == ".pdf") pdf = e.path().string();
+    ASSERT_FALSE(pdf.empty());
+    const auto text = run("pdftotext -layout " + pdf + " -");
+    ASSERT_EQ(text.rc, 0);
+    int first_session_picks = 0;
+    for (const auto& k : b) {
+        bool first = false;
+        for (const auto& s : k["sessions"]) first = first || s.get<int>() == 0;
+        if (!first) continue;
+        ++first_session_picks;
+        // The table's row: "P<id>" and the easting to 0.1 m (report/site_report.cpp).
+        char east[32];
+        std::snprintf(east, sizeof east, "%.1f", k["easting_m"].get<double>());
+        const std::regex row("P" + std::to_string(k["id"].get<int>()) + " +" + std::regex_replace(east, std::regex("\\."), "\\."));
+        EXPECT_TRUE(std::regex_search(text.out, row)) << "report lacks P" << k["id"] << " at E " << east;
+    }
+    EXPECT_GE(first_session_picks, 1);
 }
