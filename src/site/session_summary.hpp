@@ -6,18 +6,22 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <stdexcept>
 #include <string>
 #include <vector>
 
+#include "coverage/gap_names.hpp"
 #include "coverage/line_runs.hpp"
 #include "engine/site_history.hpp"
 #include "engine/survey_config.hpp"
+#include "log/log_schema.hpp"
 
 namespace sg::site {
 
 // Bump when the summary's content or layout changes: older summaries are rebuilt.
-inline constexpr std::uint32_t kSessionSummaryVersion = 2;  // 2: runs of infill lines
+// 2: runs of infill lines; 3: the gap names the session recorded in its log.
+inline constexpr std::uint32_t kSessionSummaryVersion = 3;
 
 // A log that cannot be read (not SQLite, truncated, failing SQLite's quick_check, no config).
 class DamagedLog : public std::runtime_error {
@@ -51,7 +55,18 @@ struct SessionSummary {
     std::uint64_t covered_cells = 0;
     double cell_size_m = 0.0;
     std::string raster_bytes;        // coverage::rasterToBytes (empty without a [plan])
+    // The gap names the live session committed at its end (log meta "gap_names", written by
+    // recordGapNames), when they were computed under this config; else empty and `names_note`
+    // says why (docs/site.md, "Gap names across sessions").
+    std::optional<coverage::GapNamer::Committed> names;
+    std::string names_note;
 };
+
+// Log meta key holding the names a live session committed at its end.
+inline constexpr const char* kGapNamesMeta = "gap_names";
+// A batch that writes `names` (with siteWideHash(config)) into meta "gap_names" of the log the
+// live session is writing (its own log, posted before its writer stops; never an older log).
+log::Batch gapNamesBatch(const coverage::GapNamer::Committed& names, const engine::SurveyConfig& config);
 
 // Replays `log_path` alone under `config` and summarises it. Checks the log first (SQLite
 // quick_check); throws DamagedLog naming the file and what is wrong.
