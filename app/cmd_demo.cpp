@@ -294,6 +294,13 @@ int runDemo(const DemoOptions& opts) {
     helm.takeRows(last_batch);
     writer.post(std::move(last_batch));
     std::printf("%s", helm.summaryText("demo").c_str());
+    // A site session's end commits its gap names (as a run's end does) and keeps them in its own
+    // log: the site opens with them (docs/site.md, "Gap names across sessions").
+    std::optional<coverage::GapNamer::Committed> names;
+    if (site && lines > 0) {
+        names = pipeline.engine().endSessionNames();
+        writer.post(site::gapNamesBatch(*names, cfg));
+    }
     writer.stop();
     const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - wall0).count();
     const double sim_s = simulator.elapsed_s();
@@ -306,6 +313,7 @@ int runDemo(const DemoOptions& opts) {
     if (!summary.sessions.empty()) std::printf("%s", sessionsText(summary).c_str());
     std::printf("%s", engine::toText(summary).c_str());
     if (site && lines > 0) {
+        std::printf("demo: gap names recorded: %zu gap run(s), next G%d\n", names->runs.size(), names->next);
         // The new log's own summary (the next session opens the site without replaying it).
         const auto sum = site::buildSessionSummary(log_path, cfg);
         site::writeSessionSummary(site::summaryPathFor(log_path), sum);

@@ -194,6 +194,12 @@ int runRecord(RecordOptions o) {
     schedule();
     ctx.run();
     rec.stop();
+    if (site && writer.stats().raw_posted > 0) {
+        // The names this session gave, kept in its own log (docs/site.md): the site opens with them.
+        const auto names = rec.pipeline()->engine().endSessionNames();
+        writer.post(site::gapNamesBatch(names, cfg));
+        std::printf("record: gap names recorded: %zu gap run(s), next G%d\n", names.runs.size(), names.next);
+    }
     writer.stop();
     for (const auto& s : rec.sources())
         if (s->dropped() > 0)

@@ -47,4 +47,12 @@ void GapNamer::name(GapReport& report, bool commit) {
     for (const auto& r : report.runs) m_runs.push_back({r.row, r.i0, r.i1, number[static_cast<std::size_t>(r.gap)]});
 }
 
+void GapNamer::adopt(const Committed& c) {
+    m_next = std::max(m_next, c.next);
+    m_runs = c.runs;
+    std::sort(m_runs.begin(), m_runs.end(), [](const NamedRun& a, const NamedRun& b) {
+        return a.row != b.row ? a.row < b.row : a.i0 < b.i0;
+    });
+}
+
 }  // namespace sg::coverage

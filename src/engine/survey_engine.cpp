@@ -332,6 +332,7 @@ void SurveyEngine::seedSite(SiteSeed seed) {
         coverage::LineTracker tracker(m_cov->plan().lines, m_cov->lines().options());
         tracker.adoptEarlierRuns(std::move(upto), static_cast<int>(k) + 1);
         auto rep = m_cov->gapsWith(site, tracker);
+        if (k < seed.names.size() && seed.names[k]) m_namer.adopt(*seed.names[k]);
         m_namer.name(rep, true);
     };
     if (seed.merge_into) seed.merge_into(site, m_prior_sessions, joined);
@@ -1016,6 +1017,16 @@ coverage::InfillOptions SurveyEngine::infillOptions() const {
     const double heading = plan() ? plan()->surveyHeadingDeg() : 0.0;
     return coverage::loadInfillOptions(sectionOrEmpty(m_cfg.root(), "infill"), heading,
                                        std::max(0.1, plannedHalfWidth_m()));
+}
+
+coverage::GapNamer::Committed SurveyEngine::endSessionNames() {
+    if (m_cov) {
+        finishPending();
+        flushCoverage();
+        auto rep = m_cov->gaps(true);
+        m_namer.name(rep, true);
+    }
+    return m_namer.committed();
 }
 
 coverage::GapReport SurveyEngine::gapReport(bool final) {

@@ -73,6 +73,10 @@ struct SiteSeed {
     // with the session) and their verification passes (docs/picks.md "A site").
     std::vector<std::vector<detect::AnomalyPick>> picks;
     std::vector<detect::VerificationPass> verification_passes;
+    // Per session (same order): the names it recorded at its end, when they hold for the config in
+    // force. After session k is joined its gaps are matched against these instead of the previous
+    // commit, so every gap gets the name the session gave it live; without them, the one commit.
+    std::vector<std::optional<coverage::GapNamer::Committed>> names;
 };
 
 // A forming gap, located: on which line and side, how wide, how far along the line, and where.
@@ -220,6 +224,9 @@ public:
     // Stable gap names (docs/coverage.md, "Gap names"): committed at every run's end and after
     // each earlier session of a site is joined.
     const coverage::GapNamer& gapNamer() const { return m_namer; }
+    // The end of a live session: its gaps, as a finished log's (gapReport(true)), are committed
+    // (like at a run's end) and the committed state returned, to be recorded in the session's own log (site::recordGapNames).
+    coverage::GapNamer::Committed endSessionNames();
     // The latest GGA's quality indicator, satellites used and HDOP (for the helm panel; the
     // checks use the quality through fix_quality). Empty before the first GGA.
     struct GnssStatus {

@@ -14,6 +14,7 @@
 #include "engine/survey_summary.hpp"
 #include "log/log_reader.hpp"
 #include "site/session_picks.hpp"
+#include "log/log_store.hpp"
 #include "site/site_config.hpp"
 
 namespace sg::site {
@@ -97,6 +98,20 @@ coverage::LineRun runFrom(const json& j) {
     return r;
 }
 
+// Gap names as JSON: {"next": n, "runs": [[row, i0, i1, number], ...]}.
+json namesJson(const coverage::GapNamer::Committed& c) {
+    json runs = json::array();
+    for (const auto& r : c.runs) runs.push_back({r.row, r.i0, r.i1, r.number});
+    return {{"next", c.next}, {"runs", std::move(runs)}};
+}
+
+coverage::GapNamer::Committed namesFrom(const json& j) {
+    coverage::GapNamer::Committed c;
+    c.next = j.at("next");
+    for (const auto& r : j.at("runs")) c.runs.push_back({r.at(0), r.at(1), r.at(2), r.at(3)});
+    return c;
+}
+
 json toJson(const SessionSummary& s) {
     const auto& i = s.info;
     json j{{"version", s.version},
@@ -130,6 +145,8 @@ json toJson(const SessionSummary& s) {
     j["outages"] = std::move(outs);
     j["picks"] = picksToJson(s.picks);
     j["verification_passes"] = passesToJson(s.verification_passes);
+    j["gap_names"] = s.names ? namesJson(*s.names) : json(nullptr);
+    j["gap_names_note"] = s.names_note;
     return j;
 }
 
@@ -165,6 +182,8 @@ SessionSummary fromJson(const json& j) {
         s.outages.push_back({o.at(0), o.at(1), o.at(2), getOptTime(o.at(3)), o.at(4), o.at(5), 0});
     if (j.contains("picks")) s.picks = picksFromJson(j.at("picks"));
     if (j.contains("verification_passes")) s.verification_passes = passesFromJson(j.at("verification_passes"));
+    if (!j.at("gap_names").is_null()) s.names = namesFrom(j.at("gap_names"));
+    s.names_note = j.at("gap_names_note");
     return s;
 }
 
@@ -220,6 +239,24 @@ std::uint64_t fileContentHash(const std::string& path) {
     return h;
 }
 
+namespace {
+class MetaRow : public log::RowSet {
+public:
+    MetaRow(std::string key, std::string value) : m_key(std::move(key)), m_value(std::move(value)) {}
+    void write(log::LogStore& store) override { store.setMeta(m_key, m_value); }
+
+private:
+    std::string m_key, m_value;
+};
+}  // namespace
+
+log::Batch gapNamesBatch(const coverage::GapNamer::Committed& names, const engine::SurveyConfig& config) {
+    const json j{{"config_hash", fmt::format("{:016x}", siteWideHash(config))}, {"names", namesJson(names)}};
+    log::Batch b;
+    b.extra.push_back(std::make_unique<MetaRow>(kGapNamesMeta, j.dump()));
+    return b;
+}
+
 std::string summaryPathFor(const std::string& log_path) {
     return fs::path(log_path).replace_extension(".sgsum").string();
 }
@@ -233,6 +270,18 @@ SessionSummary buildSessionSummary(const std::string& log_path, const engine::Su
         std::string verdict = st.step() ? st.columnText(0) : "no answer";
         st.reset();
         if (verdict != "ok") throw DamagedLog(fmt::format("{}: fails SQLite's quick_check: {}", log_path, verdict));
+        // The names the live session recorded: the site's names only under the same config.
+        if (const auto text = check.meta(kGapNamesMeta)) {
+            const auto j = json::parse(*text, nullptr, false);
+            if (j.is_discarded() || !j.contains("config_hash") || !j.contains("names"))
+                s.names_note = "its recorded gap names cannot be read";
+            else if (hexValue(j.at("config_hash")) != siteWideHash(config))
+                s.names_note = "recorded its gap names under another config";
+            else
+                s.names = namesFrom(j.at("names"));
+        } else {
+            s.names_note = "recorded no gap names (an older log, or not recorded as a site session)";
+        }
     } catch (const log::LogError& e) {
         throw DamagedLog(e.what());
     }

@@ -6,20 +6,25 @@
 #pragma once
 
 #include <cstdint>
+#include <optional>
 #include <stdexcept>
 #include <string>
 #include <vector>
 
+#include "coverage/gap_names.hpp"
 #include "coverage/line_runs.hpp"
 #include "detect/anomaly_picker.hpp"
 #include "detect/verification_strip.hpp"
 #include "engine/site_history.hpp"
 #include "engine/survey_config.hpp"
+#include "log/log_schema.hpp"
 
 namespace sg::site {
 
 // Bump when the summary's content or layout changes: older summaries are rebuilt.
-inline constexpr std::uint32_t kSessionSummaryVersion = 3;  // 2: runs of infill lines; 3: picks
+// 2: runs of infill lines; 3: picks, or the gap names the session recorded in its log (two
+// changes made side by side); 4: both.
+inline constexpr std::uint32_t kSessionSummaryVersion = 4;
 
 // A log that cannot be read (not SQLite, truncated, failing SQLite's quick_check, no config).
 class DamagedLog : public std::runtime_error {
@@ -57,7 +62,18 @@ struct SessionSummary {
     // runs in this log's own ids; empty when [picks] enabled = false).
     std::vector<detect::AnomalyPick> picks;
     std::vector<detect::VerificationPass> verification_passes;
+    // The gap names the live session committed at its end (log meta "gap_names", written by
+    // recordGapNames), when they were computed under this config; else empty and `names_note`
+    // says why (docs/site.md, "Gap names across sessions").
+    std::optional<coverage::GapNamer::Committed> names;
+    std::string names_note;
 };
+
+// Log meta key holding the names a live session committed at its end.
+inline constexpr const char* kGapNamesMeta = "gap_names";
+// A batch that writes `names` (with siteWideHash(config)) into meta "gap_names" of the log the
+// live session is writing (its own log, posted before its writer stops; never an older log).
+log::Batch gapNamesBatch(const coverage::GapNamer::Committed& names, const engine::SurveyConfig& config);
 
 // Replays `log_path` alone under `config` and summarises it. Checks the log first (SQLite
 // quick_check); throws DamagedLog naming the file and what is wrong.

@@ -209,6 +209,12 @@ void refreshSummaries(Site& site, const JobRunner& run) {
             l.skip_reason = "empty log (no lines)";
             site.messages.push_back(fmt::format("{}: skipped: {}", l.path, l.skip_reason));
         }
+    // Gap names (docs/site.md, "Gap names across sessions"): a log without usable recorded names
+    // has its new gaps numbered in one step when it is joined.
+    for (const auto& l : site.logs)
+        if (!l.skipped && l.summary && !l.summary->names && !l.summary->names_note.empty() && l.summary->covered_cells > 0)
+            site.messages.push_back(fmt::format("{}: {}; its new gaps are numbered in one step when it is joined",
+                                                l.path, l.summary->names_note));
     // Time order: the first line's receive time, then the file name. Skipped logs last.
     std::stable_sort(site.logs.begin(), site.logs.end(), [](const SiteLog& a, const SiteLog& b) {
         const bool ua = !a.skipped && a.summary, ub = !b.skipped && b.summary;
@@ -254,6 +260,7 @@ engine::SiteSeed siteSeed(const Site& site, std::optional<std::size_t> upto) {
         info.first_run = base;
         info.runs = static_cast<int>(s.runs.size());
         seed.sessions.push_back(info);
+        seed.names.push_back(s.names);
         for (auto r : s.runs) {
             r.id += base;
             r.session = session;

@@ -115,5 +115,27 @@ TEST(GapNames, StableSplitMergeNeverReused) {
     EXPECT_EQ(names.nextNumber(), 5);
 }
 
+// Opening a site: the names a session recorded at its end (GapNamer::adopt) replace the previous
+// commit, so its gaps get the numbers it gave live, whatever order one commit would give them in;
+// the next free number never goes back (docs/site.md, "Gap names across sessions").
+TEST(GapNames, AdoptedNamesWinOverOneCommit) {
+    GapNamer names;
+    auto r1 = report({{0, 0, 10, 0}}, 1);
+    names.name(r1, true);  // G1; next 2
+    // Recorded live: the small gap at row 4 opened first (G7), the large one at row 8 later (G8).
+    GapNamer::Committed live{9, {{8, 0, 20, 8}, {0, 0, 10, 1}, {4, 0, 3, 7}}};
+    names.adopt(live);
+    auto r2 = report({{0, 0, 10, 0}, {4, 0, 3, 2}, {8, 0, 20, 1}}, 3);  // report order: G1, large, small
+    names.name(r2, true);
+    EXPECT_EQ(r2.gaps[0].id, 1);
+    EXPECT_EQ(r2.gaps[1].id, 8);
+    EXPECT_EQ(r2.gaps[2].id, 7);
+    EXPECT_EQ(names.nextNumber(), 9);
+    // Adopting a state with a lower next number keeps the higher one: no name given twice.
+    names.adopt({3, {}});
+    EXPECT_EQ(names.nextNumber(), 9);
+    EXPECT_EQ(names.committed().runs.size(), 0U);
+}
+
 }  // namespace
 }  // namespace sg::coverage

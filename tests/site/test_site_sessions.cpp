@@ -417,3 +417,58 @@ TEST(SiteSessions, PicksOfEverySessionAreListedAndReported) {
     }
     EXPECT_GE(first_session_picks, 1);
 }
+
+// The ids of the gaps a session exported (gaps.csv of `demo --out`), in report order, with areas.
+std::vector<std::pair<int, double>> exportedGaps(const std::string& csv_path) {
+    std::vector<std::pair<int, double>> out;
+    std::istringstream in(readFile(csv_path));
+    std::string line;
+    std::getline(in, line);  // header
+    while (std::getline(in, line)) {
+        if (line.empty()) continue;
+        std::istringstream f(line);
+        std::string id, kind, area;
+        std::getline(f, id, ',');
+        std::getline(f, kind, ',');
+        std::getline(f, area, ',');
+        out.emplace_back(std::stoi(id), std::stod(area));
+    }
+    return out;
+}
+
+// A gap and its infill line keep their name for the life of the site (docs/coverage.md, "Gap
+// names"; docs/site.md, "Gap names across sessions"): the second half of the demo survey, flown
+// as the newest session of a site, opens gaps at several of its run ends; `gaps SITE` afterwards
+// gives every gap the name the live session gave it (its gaps.csv export), not a renumbering by
+// one commit for the whole session.
+TEST(SiteSessions, NewestSessionNamesEqualLiveNames) {
+    const auto site = newSite("livenames");
+    const auto cfg = site + "/survey.toml";
+    ASSERT_TRUE(session("scenario.toml", cfg, "--site " + site + " --to " + std::to_string(kSplitS)));
+    const auto out = site + "/live2";
+    const auto second = run(kBin + " demo --headless --scenario " + kDemo + "/scenario.toml --config " + cfg +
+                            " --site " + site + " --from " + std::to_string(kSplitS) + " --out " + out);
+    ASSERT_EQ(second.rc, 0) << second.out << second.err;
+    // The next free number the live session ended with (app/cmd_demo.cpp prints it).
+    std::smatch m;
+    ASSERT_TRUE(std::regex_search(second.out, m, std::regex(R"(gap names recorded: \d+ gap run\(s\), next G(\d+))")))
+        << second.out;
+    const int live_next = std::stoi(m[1].str());
+    const auto live = exportedGaps(out + "/gaps.csv");
+    ASSERT_FALSE(live.empty());
+    Result raw;
+    const auto opened = gaps(site, &raw);
+    ASSERT_FALSE(opened.is_null()) << raw.err;
+    ASSERT_EQ(opened["gaps"].size(), live.size());
+    std::string live_names, site_names;
+    for (std::size_t i = 0; i < live.size(); ++i) {
+        const auto& g = opened["gaps"][i];
+        EXPECT_NEAR(g["area_m2"].get<double>(), live[i].second, 0.01) << "gap " << i;
+        EXPECT_EQ(g["id"].get<int>(), live[i].first) << "gap " << i << " of " << g["area_m2"].get<double>() << " m2";
+        live_names += " G" + std::to_string(live[i].first);
+        site_names += " " + g["name"].get<std::string>();
+    }
+    EXPECT_EQ(opened["next_gap_number"].get<int>(), live_next);
+    std::printf("newest session: live%s, next G%d; gaps SITE%s, next G%d\n", live_names.c_str(), live_next,
+                site_names.c_str(), opened["next_gap_number"].get<int>());
+}
