@@ -271,8 +271,9 @@ private:
         for (const char* h : heads) ImGui::TableSetupColumn(h);
         ImGui::TableSetupScrollFreeze(0, 1);
         ImGui::TableHeadersRow();
-        for (const auto& p : v.picks) {
-            const PickRow r = pickRow(p);
+        for (std::size_t i = 0; i < v.picks.size(); ++i) {
+            const auto& p = v.picks[i];
+            const PickRow& r = rows[i];
             ImGui::PushID(p.id);
             ImGui::TableNextRow();
             ImGui::TableNextColumn();

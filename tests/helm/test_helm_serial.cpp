@@ -33,6 +33,7 @@
 #include "decode/nmea.hpp"
 #include "helm/steering_sentences.hpp"
 #include "io/helm_output.hpp"
+#include "../demo_on_ports.hpp"
 #include "../shell_output.hpp"
 
 namespace fs = std::filesystem;
@@ -208,13 +209,9 @@ TEST(HelmSerial, DemoSteersOverAPtyAndTheRouteIsReadByAnIndependentParser) {
     fs::remove_all(dir);
     fs::create_directories(dir);
     const fs::path demo = fs::path(SG_SOURCE_DIR) / "replay_logs/demo";
-    std::string cfg = readFile(demo / "survey.toml");
-    for (const char* f : {"plan_area.geojson", "plan_lines.geojson"}) {
-        const std::string from = std::string("\"") + f + "\"";
-        const auto at = cfg.find(from);
-        ASSERT_NE(at, std::string::npos);
-        cfg.replace(at, from.size(), "\"" + (demo / f).string() + "\"");
-    }
+    std::string cfg = sg::testdata::demoConfigWithAbsolutePlan();
+    for (const char* f : {"plan_area.geojson", "plan_lines.geojson"})
+        ASSERT_NE(cfg.find("\"" + (demo / f).string() + "\""), std::string::npos);
     cfg += "\n[[output]]\nname = \"bridge\"\nkind = \"steering\"\ntransport = \"serial\"\ndevice = \"" + pty.slave +
            "\"\nbaud = 4800\nrate_hz = 1\nsentences = [\"XTE\", \"APB\", \"RMB\"]\n";
     std::ofstream(dir / "survey.toml") << cfg;

@@ -24,6 +24,7 @@
 #include <nlohmann/json.hpp>
 
 #include "decode/nmea.hpp"
+#include "../demo_on_ports.hpp"
 #include "../shell_output.hpp"
 
 namespace fs = std::filesystem;
@@ -55,13 +56,9 @@ TEST(HelmWire, DemoSendsSteeringOverUdpDecodedByOwnAndIndependentParsers) {
 
     // The demo config with absolute plan paths and one steering output.
     const fs::path demo = fs::path(SG_SOURCE_DIR) / "replay_logs/demo";
-    std::string cfg = readFile(demo / "survey.toml");
-    for (const char* f : {"plan_area.geojson", "plan_lines.geojson"}) {
-        const std::string from = std::string("\"") + f + "\"";
-        const auto at = cfg.find(from);
-        ASSERT_NE(at, std::string::npos);
-        cfg.replace(at, from.size(), "\"" + (demo / f).string() + "\"");
-    }
+    std::string cfg = sg::testdata::demoConfigWithAbsolutePlan();
+    for (const char* f : {"plan_area.geojson", "plan_lines.geojson"})
+        ASSERT_NE(cfg.find("\"" + (demo / f).string() + "\""), std::string::npos);
     cfg += "\n[[output]]\nname = \"bridge\"\nkind = \"steering\"\ntransport = \"udp\"\nhost = \"127.0.0.1\"\n"
            "port = " + std::to_string(port) + "\nrate_hz = 1\nsentences = [\"XTE\", \"APB\", \"RMB\"]\n";
     std::ofstream(dir / "survey.toml") << cfg;

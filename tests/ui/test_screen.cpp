@@ -28,6 +28,7 @@
 #include "ui/plan_view.hpp"
 #include "ui/screen.hpp"
 #include "png_image.hpp"
+#include "screen_render.hpp"
 
 namespace {
 
@@ -95,18 +96,7 @@ protected:
     }
     // Renders `snap` to <name>.png after a few frames and loads it.
     Image render(std::shared_ptr<const sg::engine::Snapshot> snap, const std::string& name) {
-        sg::ui::SnapshotBox box;
-        sg::ui::CommandQueue commands;
-        box.publish(std::move(snap));
-        sg::ui::ScreenOptions o;
-        o.width = 1600;
-        o.height = 1000;
-        o.settings_path = m_ini;
-        o.screenshot_path = (m_dir / (name + ".png")).string();
-        o.after_frames = 4;  // the first frames settle ImGui's layout
-        o.max_fps = 200;
-        EXPECT_EQ(sg::ui::runScreen(box, commands, o), 0);
-        return loadPng(o.screenshot_path);
+        return sg::testui::renderSnapshotWith(std::move(snap), m_ini, (m_dir / (name + ".png")).string());
     }
     fs::path m_dir;
     std::string m_ini;
