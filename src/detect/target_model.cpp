@@ -406,8 +406,9 @@ PeakTable::PeakTable(Orientation orientation, double inclination_rad, double rem
     // at one of the cell's corners: a step between columns, or a sharp kink, that a linear
     // reading would carry into the cell). The nodes place a jump only to within about a cell
     // (g is interpolated in depression), so the flag is widened by kJumpGuard cells every way;
-    // a flagged cell is read as the smallest node of the block of cells kJumpGuard around it:
-    // the lower branch, the safe side. tests/detect/test_swath_direct.cpp states the band.
+    // a flagged cell is solved at the point itself (halfWidthSquaredBetween), or for the worst
+    // rule read as the smallest node of the block of cells kJumpGuard around it: the lower
+    // branch, the safe side. tests/detect/test_swath_direct.cpp states the band.
     auto w2At = [&](int j, int i) {
         return m_width2[static_cast<std::size_t>((j + kHeadingSteps) % kHeadingSteps) * rows +
                         static_cast<std::size_t>(std::clamp(i, 0, kHeightSteps))];

@@ -119,7 +119,8 @@ public:
     Orientation orientation() const { return m_orientation; }
     double inclination_rad() const { return m_inclination_rad; }
     double remanence_ratio() const { return m_remanence_ratio; }
-    // Share of the (height x heading) cells read on the lower branch next to a jump, [0, 1].
+    // Share of the (height x heading) cells next to a jump (solved at the point, or for the worst
+    // rule read on the lower branch), [0, 1].
     double lowerBranchShare() const { return m_flagged_share; }
 
     // g at (depression, heading), target to starboard; port = starboard at heading + pi.
@@ -171,10 +172,12 @@ private:
     // of one heading column, 0 when none.
     std::vector<double> m_jump_h;
     // Same layout, per cell [i, i+1] x [j, j+1]: NaN (read bilinearly), or, within kJumpGuard
-    // cells of a jump in h or heading, the smallest (d/R_T)^2 of the nodes around, read instead.
+    // cells of a jump in h or heading, the smallest (d/R_T)^2 of the nodes around (read instead
+    // by the worst rule; the others solve at the point).
     std::vector<double> m_cell_low;
     double m_flagged_share = 0.0;
-    // Same layout: 1 where a kink in heading lies next to the cell (read by kinkRead).
+    // Same layout: 1 where a kink in heading lies next to the cell (solved at the point; kinkRead
+    // for the worst rule).
     std::vector<std::uint8_t> m_kink_cell;
 };
 
