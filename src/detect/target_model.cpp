@@ -305,6 +305,19 @@ double firstCrossing(const Margin& margin, double step, double d_max, int halvin
     return d_max;
 }
 
+// Between nodes b (t = 0) and c (t = 1) of four equally spaced nodes a, b, c, d: a reading that
+// does not exceed the curve through them where it bends upward (convex, or a V where two pieces
+// meet): there the lines through a, b and through c, d, extended into the cell, lie below it,
+// and so does the larger of them (exact where the pieces are straight); where it bends downward
+// the chord b-c lies below it.
+double lowerRead(double a, double b, double c, double d, double t) {
+    const double chord = b + (c - b) * t;
+    if (d - c <= b - a) return chord;
+    const double left = b + (b - a) * t;
+    const double right = c - (d - c) * (1.0 - t);
+    return std::min(chord, std::max(left, right));
+}
+
 }  // namespace
 
 double peakFactorDirect(Orientation orientation, double inclination_rad, double depression_rad,
@@ -324,7 +337,8 @@ double peakFactorDirect(Orientation orientation, double inclination_rad, double 
 
 PeakTable::PeakTable(Orientation orientation, double inclination_rad, double remanence_ratio)
     : m_orientation(orientation), m_inclination_rad(inclination_rad),
-      m_remanence_ratio(orientation == Orientation::InducedRemanent ? remanence_ratio : 0.0) {
+      m_remanence_ratio(orientation == Orientation::InducedRemanent ? remanence_ratio : 0.0),
+      m_solve_between(orientation != Orientation::Worst) {
     m_g.resize(static_cast<std::size_t>((kDeprSteps + 1) * kHeadingSteps));
     // East-west mirror symmetry (the field lies in the magnetic meridian plane): a target to
     // starboard of heading psi is seen exactly as one to port of heading -psi, i.e. to starboard
@@ -392,8 +406,9 @@ PeakTable::PeakTable(Orientation orientation, double inclination_rad, double rem
     // at one of the cell's corners: a step between columns, or a sharp kink, that a linear
     // reading would carry into the cell). The nodes place a jump only to within about a cell
     // (g is interpolated in depression), so the flag is widened by kJumpGuard cells every way;
-    // a flagged cell is read as the smallest node of the block of cells kJumpGuard around it:
-    // the lower branch, the safe side. tests/detect/test_swath_direct.cpp states the band.
+    // a flagged cell is solved at the point itself (halfWidthSquaredBetween), or for the worst
+    // rule read as the smallest node of the block of cells kJumpGuard around it: the lower
+    // branch, the safe side. tests/detect/test_swath_direct.cpp states the band.
     auto w2At = [&](int j, int i) {
         return m_width2[static_cast<std::size_t>((j + kHeadingSteps) % kHeadingSteps) * rows +
                         static_cast<std::size_t>(std::clamp(i, 0, kHeightSteps))];
@@ -491,30 +506,58 @@ double PeakTable::peakFactor(double depression_rad, double heading_mag_rad, bool
 // with the fourth power of the step where g is smooth (linear interpolation: the square).
 double PeakTable::halfWidthSquaredFromG(double h, int heading_index) const {
     const double* column = &m_g[static_cast<std::size_t>(heading_index * (kDeprSteps + 1))];
-    auto gAt = [&](double depr) {
-        const double dp = std::clamp(depr, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
-        const int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
-        const double t = dp - i0;
-        const double p0 = column[std::max(i0 - 1, 0)];
-        const double p1 = column[i0];
-        const double p2 = column[i0 + 1];
-        const double p3 = column[std::min(i0 + 2, kDeprSteps)];
-        return p1 + 0.5 * t * (p2 - p0 + t * (2.0 * p0 - 5.0 * p1 + 4.0 * p2 - p3 +
-                                              t * (3.0 * (p1 - p2) + p3 - p0)));
-    };
+    return halfWidthSquared(h, [&](double depr) { return cubicInDepression(column, depr); },
+                            column[kDeprSteps], kTableScanStep);
+}
+
+double PeakTable::cubicInDepression(const double* column, double depr) {
+    const double dp = std::clamp(depr, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
+    const int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
+    const double t = dp - i0;
+    const double p0 = column[std::max(i0 - 1, 0)];
+    const double p1 = column[i0];
+    const double p2 = column[i0 + 1];
+    const double p3 = column[std::min(i0 + 2, kDeprSteps)];
+    return p1 + 0.5 * t * (p2 - p0 + t * (2.0 * p0 - 5.0 * p1 + 4.0 * p2 - p3 +
+                                          t * (3.0 * (p1 - p2) + p3 - p0)));
+}
+
+template <typename G>
+double PeakTable::halfWidthSquared(double h, const G& gAt, double g_below, double scan_step) {
     auto margin = [&](double d) {
         const double rho2 = h * h + d * d;
         if (rho2 <= 1e-12) return 1e300;
         return gAt(std::atan2(h, d)) / (rho2 * std::sqrt(rho2));
     };
-    if (margin(0.0) < 1.0) {
-        const double g0 = column[kDeprSteps];
-        return std::min(std::cbrt(g0 * g0) - h * h, 0.0);
-    }
+    if (margin(0.0) < 1.0) return std::min(std::cbrt(g_below * g_below) - h * h, 0.0);
     // No geometry gives a peak factor above 2: beyond 2^(1/3) nothing is detectable.
     const double d_max = std::cbrt(kMaxPeakFactor) + 0.01;
-    const double d = firstCrossing(margin, 0.004, d_max, 30);
+    const double d = firstCrossing(margin, scan_step, d_max, 30);
     return d * d;
+}
+
+// A cell next to a jump or a sharp bend: the root solve itself, on the g column at this heading
+// (the two stored columns either side blended linearly in heading, each cubic in depression).
+double PeakTable::halfWidthSquaredBetween(double h, int j0, int j1, double wj) const {
+    constexpr auto kCol = static_cast<std::size_t>(kDeprSteps + 1);
+    const std::array<const double*, 4> cols{
+        &m_g[static_cast<std::size_t>((j0 + kHeadingSteps - 1) % kHeadingSteps) * kCol],
+        &m_g[static_cast<std::size_t>(j0) * kCol], &m_g[static_cast<std::size_t>(j1) * kCol],
+        &m_g[static_cast<std::size_t>((j1 + 1) % kHeadingSteps) * kCol]};
+    auto gAt = [&](double depr) {
+        const double dp = std::clamp(depr, 0.0, kHalfPi) / kHalfPi * kDeprSteps;
+        const int i0 = std::min(static_cast<int>(dp), kDeprSteps - 1);
+        const double t = dp - i0;
+        const int im = std::max(i0 - 1, 0), i2 = std::min(i0 + 2, kDeprSteps);
+        std::array<double, 4> g{};
+        for (std::size_t k = 0; k < 4; ++k) {
+            const double* c = cols[k];
+            g[k] = lowerRead(c[im], c[i0], c[i0 + 1], c[i2], t);
+        }
+        return lowerRead(g[0], g[1], g[2], g[3], wj) * (1.0 - kBetweenSafety);
+    };
+    return halfWidthSquared(h, gAt, (1.0 - wj) * cols[1][kDeprSteps] + wj * cols[2][kDeprSteps],
+                            kBetweenScanStep);
 }
 
 namespace {
@@ -551,9 +594,13 @@ double PeakTable::normalisedHalfWidth(double h_norm, double heading_mag_rad, boo
     const double* r0 = &m_width2[b0 + static_cast<std::size_t>(i0)];
     const double* r1 = &m_width2[b1 + static_cast<std::size_t>(i0)];
     double w2 = m_cell_low[b0 + static_cast<std::size_t>(i0)];
-    if (!std::isnan(w2)) {
-        // next to a jump: the lowest node around (lower branch, safe side)
-    } else if (m_kink_cell[b0 + static_cast<std::size_t>(i0)] == 0) {  // the usual case: bilinear
+    const bool kink = m_kink_cell[b0 + static_cast<std::size_t>(i0)] != 0;
+    if (m_solve_between && (kink || !std::isnan(w2))) {
+        // next to a jump or a bend: the root solve on the g column at this heading
+        w2 = halfWidthSquaredBetween(h_norm, j0, j1, wj);
+    } else if (!std::isnan(w2)) {
+        // worst rule next to a jump: the lowest node around (lower branch, safe side)
+    } else if (!kink) {  // the usual case: bilinear
         w2 = (1 - wj) * ((1 - wi) * r0[0] + wi * r0[1]) + wj * ((1 - wi) * r1[0] + wi * r1[1]);
     } else {  // a kink in heading: per row, the lines of the columns either side meeting
         const double* rm = &m_width2[static_cast<std::size_t>((j0 + kHeadingSteps - 1) % kHeadingSteps) * rows +

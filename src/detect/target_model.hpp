@@ -119,7 +119,8 @@ public:
     Orientation orientation() const { return m_orientation; }
     double inclination_rad() const { return m_inclination_rad; }
     double remanence_ratio() const { return m_remanence_ratio; }
-    // Share of the (height x heading) cells read on the lower branch next to a jump, [0, 1].
+    // Share of the (height x heading) cells next to a jump (solved at the point, or for the worst
+    // rule read on the lower branch), [0, 1].
     double lowerBranchShare() const { return m_flagged_share; }
 
     // g at (depression, heading), target to starboard; port = starboard at heading + pi.
@@ -142,21 +143,41 @@ private:
     static constexpr int kJumpGuard = 1;           // cells around a jump read on the lower branch
     static constexpr double kKinkWidth2 = 0.004;   // second difference in heading marking a kink
 
+    static constexpr double kTableScanStep = 0.004;  // offset scan of the root solve, R_T
+    // The same scan when solving between nodes, per lookup: the direct solve's step (every sampled
+    // dip below 1.5 is still searched for its minimum, see firstCrossing).
+    static constexpr double kBetweenScanStep = 0.01;
+    // Next to a jump or a bend, the half-width is solved from g read between the table's nodes
+    // by lowerRead (below the curve where it bends upward, the chord where it bends downward),
+    // lowered by this share: the margin for the pieces' own curvature, measured against the
+    // direct solve (0.2 % still let two points of 5,800 read a branch wider; 0.5 %: none).
+    static constexpr double kBetweenSafety = 0.005;
+
     double halfWidthSquaredFromG(double h_norm, int heading_index) const;
+    double halfWidthSquaredBetween(double h_norm, int j0, int j1, double wj) const;
+    static double cubicInDepression(const double* column, double depression_rad);
+    template <typename G>
+    static double halfWidthSquared(double h_norm, const G& g_at, double g_below, double scan_step);
 
     Orientation m_orientation;
     double m_inclination_rad;
     double m_remanence_ratio;
+    // Solve between nodes next to jumps and bends (induced, induced_remanent). Not for the worst
+    // rule: its g is a minimum found by search, accurate to a few per cent next to its blind
+    // spots (see docs/detection-model.md), so it keeps the lowest node around (safe side).
+    bool m_solve_between;
     std::vector<double> m_g;       // (kDeprSteps + 1) x kHeadingSteps, starboard
     std::vector<double> m_width2;  // (kHeightSteps + 1) x kHeadingSteps, (d/R_T)^2, starboard
     // Same layout, during the build only: the normalised height of a jump in the cell [i, i+1]
     // of one heading column, 0 when none.
     std::vector<double> m_jump_h;
     // Same layout, per cell [i, i+1] x [j, j+1]: NaN (read bilinearly), or, within kJumpGuard
-    // cells of a jump in h or heading, the smallest (d/R_T)^2 of the nodes around, read instead.
+    // cells of a jump in h or heading, the smallest (d/R_T)^2 of the nodes around (read instead
+    // by the worst rule; the others solve at the point).
     std::vector<double> m_cell_low;
     double m_flagged_share = 0.0;
-    // Same layout: 1 where a kink in heading lies next to the cell (read by kinkRead).
+    // Same layout: 1 where a kink in heading lies next to the cell (solved at the point; kinkRead
+    // for the worst rule).
     std::vector<std::uint8_t> m_kink_cell;
 };
 

@@ -48,9 +48,19 @@ const std::string& demoLog20x() {
     std::call_once(once, [] {
         const std::string src = SG_SOURCE_DIR;
         const std::string bin = SG_BINARY_DIR;
-        const fs::path dir = fs::path(bin) / "test_ui_out" / "replay20x";
+        // One folder per test process: ctest runs each test of this file in a process of its
+        // own, in parallel, and a shared log would be locked by (or removed under) another.
+        const fs::path dir =
+            fs::path(bin) / "test_ui_out" / ("replay20x-" + std::to_string(::getpid()));
         fs::remove_all(dir);
         fs::create_directories(dir);
+        static const struct RemoveAtExit {
+            fs::path d;
+            ~RemoveAtExit() {
+                std::error_code ec;
+                fs::remove_all(d, ec);
+            }
+        } remove_at_exit{dir};
         // Ports of our own (parallel test runs must not share them), plan files by absolute path.
         static const sg::testdata::PortBlock ports(6);
         const int base = ports.base();
