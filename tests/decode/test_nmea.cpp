@@ -775,4 +775,40 @@ TEST(NmeaStream, ChecksumOptionalTalkerOnAMultiplexedPort) {
     EXPECT_EQ(decodeNmea(gga_star_hit, true, he).reason, Reason::MissingChecksum);
 }
 
+TEST(NmeaStream, LineDecoderTakesEachInputsChecksumOptionalTalkers) {
+    // The same multiplexed lines on two inputs, one with the key: record, import and replay all
+    // decode through LineDecoder, so the key of each input must reach its own decoder.
+    sg::config::InputConfig plain, mux;
+    plain.name = "plain";
+    mux.name = "mux";
+    mux.checksum_optional_talkers = {"HE"};
+    std::int64_t next_id = 1;
+    sg::engine::LineDecoder dec({plain, mux}, {}, [&] { return next_id++; });
+    const std::string gga =
+        withChecksum("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,");
+    for (const char* source : {"plain", "mux"}) {
+        for (const std::string& bytes : {gga, std::string("$HEHDT,12.5,T"), gga,
+                                         std::string("$HEHDT,12.6,T")}) {
+            sg::ReceivedLine l;
+            l.source = source;
+            l.bytes = bytes;
+            dec.onLine(l);
+        }
+    }
+    const auto batch = dec.takeBatch();
+    ASSERT_EQ(batch.raw.size(), 8u);
+    EXPECT_EQ(batch.raw[1].reason.rfind("missing_checksum", 0), 0u) << batch.raw[1].reason;
+    EXPECT_EQ(batch.raw[3].reason.rfind("missing_checksum", 0), 0u) << batch.raw[3].reason;
+    EXPECT_EQ(batch.raw[5].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[5].reason, "no_checksum");
+    EXPECT_EQ(batch.raw[7].status, sg::log::DecodeStatus::Ok);
+    ASSERT_EQ(batch.headings.size(), 2u);  // only the exempt input's gyro lines
+    EXPECT_EQ(batch.headings[0].source, "mux");
+    EXPECT_DOUBLE_EQ(*batch.headings[0].heading_deg, 12.5);
+    EXPECT_DOUBLE_EQ(*batch.headings[1].heading_deg, 12.6);
+    EXPECT_EQ(dec.counters().at("plain").by_reason.at("missing_checksum"), 2u);
+    EXPECT_EQ(dec.counters().at("mux").by_reason.at("no_checksum"), 2u);
+    EXPECT_EQ(dec.counters().at("mux").by_reason.count("missing_checksum"), 0u);
+}
+
 }  // namespace
