@@ -1,6 +1,7 @@
-// `swathguard inspect CAPTURE [--config FILE] [--as nmea|NAME]`: decodes every line of a capture
-// file and prints one JSON object per line (line number, source type, sentence or layout, decoded
-// fields or the reason it failed), then one summary object with counts per type and per reason.
+// `swathguard inspect CAPTURE [--config FILE] [--as nmea|NAME] [--checksum-optional-talkers
+// ID,...]`: decodes every line of a capture file and prints one JSON object per line (line number,
+// source type, sentence or layout, decoded fields or the reason it failed), then one summary object
+// with counts per type and per reason.
 // Lines starting with '$' or '!' are NMEA; others are tried against the field maps (the
 // [fieldmap.NAME] tables of --config, else the default SGM/SGA/SGC layouts). Output format:
 // docs/formats.md, "swathguard inspect".
@@ -23,6 +24,7 @@
 #include "app/commands.hpp"
 #include "common/config_section.hpp"
 #include "common/line_framer.hpp"
+#include "common/nmea_talker.hpp"
 #include "common/received_line.hpp"
 #include "decode/field_map.hpp"
 #include "decode/instrument_clock.hpp"
@@ -274,11 +276,14 @@ struct Options {
     std::string capture;
     std::string config;
     std::string as;
+    std::vector<std::string> checksum_optional_talkers;  // as [[input]] checksum_optional_talkers
 };
 
 class Inspector {
 public:
-    Inspector(std::vector<FieldMap> maps, std::string as) : m_maps(std::move(maps)), m_json(m_out) {
+    Inspector(std::vector<FieldMap> maps, std::string as,
+              std::vector<std::string> checksum_optional_talkers)
+        : m_maps(std::move(maps)), m_nmea(std::move(checksum_optional_talkers)), m_json(m_out) {
         m_out.reserve(kOutFlushBytes + 8192);
         if (as.empty() || as == "nmea") {
             m_mode = as.empty() ? Mode::Auto : Mode::Nmea;
@@ -434,7 +439,8 @@ private:
     Mode m_mode = Mode::Auto;
     int m_only = -1;
     InstrumentClock m_clock;
-    NmeaStreamDecoder m_nmea;  // one capture file = one source (checksum rule per source)
+    NmeaStreamDecoder m_nmea;  // one capture file = one source (checksum rule per source,
+                               // minus --checksum-optional-talkers)
     std::size_t m_line_no = 0;
     std::size_t m_piece = 0;
     std::size_t m_records = 0;
@@ -446,6 +452,12 @@ private:
 };
 
 void runInspect(const Options& o) {
+    for (const auto& id : o.checksum_optional_talkers) {
+        if (!isTalkerId(id))
+            throw std::runtime_error(
+                fmt::format("--checksum-optional-talkers {}: expected NMEA talker ids, each {}", id,
+                            kTalkerIdWords));
+    }
     std::vector<FieldMap> maps = defaultFieldMaps();
     if (!o.config.empty()) {
         const toml::table root = config::parseFile(o.config);
@@ -456,7 +468,7 @@ void runInspect(const Options& o) {
                                                        &std::fclose);
     if (!in) throw std::runtime_error("cannot open capture " + o.capture);
 
-    Inspector inspector(std::move(maps), o.as);
+    Inspector inspector(std::move(maps), o.as, o.checksum_optional_talkers);
     LineFramer framer([&](std::string_view bytes, std::uint8_t flags) { inspector.line(bytes, flags); },
                       kFramerMaxBytes);
     std::vector<char> buf(1 << 18);
@@ -486,6 +498,11 @@ void addInspectCommand(CLI::App& app) {
     cmd->add_option("--as", opts->as,
                     "Decode every line as this format: nmea, or a layout name (default layouts: "
                     "mag, alt, cable)");
+    cmd->add_option("--checksum-optional-talkers", opts->checksum_optional_talkers,
+                    "NMEA talker ids (e.g. HE) whose sentences without a checksum are accepted "
+                    "after this file has sent checksums (as the [[input]] key "
+                    "checksum_optional_talkers)")
+        ->delimiter(',');
     cmd->callback([opts] { runInspect(*opts); });
 }
 

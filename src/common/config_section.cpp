@@ -215,6 +215,25 @@ std::vector<std::string> Section::strings(std::string_view key,
     return out;
 }
 
+std::vector<std::string> Section::stringList(std::string_view key,
+                                             const std::function<bool(std::string_view)>& valid,
+                                             std::string_view expected) const {
+    const auto* n = node(key);
+    if (n == nullptr) return {};
+    const auto* a = n->as_array();
+    if (a == nullptr) failAt(n, key, expected);
+    std::vector<std::string> out;
+    for (const auto& el : *a) {
+        const auto* s = el.as_string();
+        if (s == nullptr) failAt(&el, key, expected);
+        const std::string v = s->get();
+        if (!valid(v) || std::find(out.begin(), out.end(), v) != out.end())
+            failAt(&el, key, expected);
+        out.push_back(v);
+    }
+    return out;
+}
+
 Section Section::table(std::string_view key) const {
     const auto* n = node(key);
     const auto* t = n != nullptr ? n->as_table() : nullptr;

@@ -5,6 +5,7 @@
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <initializer_list>
 #include <memory>
 #include <optional>
@@ -69,6 +70,13 @@ public:
     // `fallback` when the key is absent.
     std::vector<std::string> strings(std::string_view key, std::initializer_list<std::string_view> choices,
                                      std::vector<std::string> fallback) const;
+
+    // An array of distinct strings, each accepted by `valid` (e.g. talker ids); `expected` says
+    // what the array must hold, and the error names the first element that is wrong (or the
+    // value itself when it is no array). Absent key or empty array: an empty vector.
+    std::vector<std::string> stringList(std::string_view key,
+                                        const std::function<bool(std::string_view)>& valid,
+                                        std::string_view expected) const;
 
     // Sub-tables.
     Section table(std::string_view key) const;

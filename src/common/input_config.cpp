@@ -6,6 +6,8 @@
 
 #include <fmt/format.h>
 
+#include "common/nmea_talker.hpp"
+
 namespace sg::config {
 namespace {
 
@@ -46,7 +48,8 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
         s.allowOnly({"name", "kind", "fieldmap", "role", "transport", "device", "baud", "parity",
                      "data_bits", "stop_bits", "listen", "receive_buffer_bytes", "connect",
                      "reconnect_min_s", "reconnect_max_s", "path", "follow", "clock",
-                     "latency_ms", "import_align", "import_rate_hz"});
+                     "latency_ms", "import_align", "import_rate_hz",
+                     "checksum_optional_talkers"});
         InputConfig c;
         c.name = s.string("name");
         if (c.name.empty()) s.fail("name", "a non-empty name");
@@ -61,6 +64,14 @@ std::vector<InputConfig> parseInputs(const Section& root, InputUse use) {
                 s.fail("fieldmap", "the name of a [fieldmap.NAME] table");
         } else if (s.has("fieldmap")) {
             s.fail("fieldmap", "no fieldmap for kind \"nmea\"");
+        }
+        if (c.kind == InputKind::Nmea) {
+            c.checksum_optional_talkers = s.stringList(
+                "checksum_optional_talkers", [](std::string_view id) { return isTalkerId(id); },
+                fmt::format("an array of distinct NMEA talker ids, each {}", kTalkerIdWords));
+        } else if (s.has("checksum_optional_talkers")) {
+            s.fail("checksum_optional_talkers",
+                   "no checksum_optional_talkers for kind \"fieldmap\"");
         }
         c.role = s.choice("role", {"gnss", "heading", "depth", "mag", "altimeter", "cable"});
         // Offline (import, reading a log back) the transport may be left out: import's --input

@@ -41,6 +41,11 @@ struct InputConfig {
     double reconnect_max_s = 0.5;   // the backoff doubles up to this, seconds (<= 1)
     std::string path;           // transport file
     bool follow = false;        // file: keep reading as the file grows
+    // NMEA only: talker ids (sg::isTalkerId) whose sentences are exempt on this input from the
+    // missing-checksum rule (decode::NmeaStreamDecoder): decoded and marked no_checksum when they
+    // come without '*hh', verified when they carry one. For a multiplexer that merges a talker
+    // that never sends checksums with one that does. Empty: no exemption (the default).
+    std::vector<std::string> checksum_optional_talkers;
     ClockSource clock = ClockSource::Receive;
     double latency_ms = 0.0;    // fixed delay between the instrument's measurement and the line
     // False only when parsed for offline use (InputUse::Offline) from a table without

@@ -592,9 +592,22 @@ std::string flagsDetail(const Decoder& d) {
     return s;
 }
 
+// True when the sentence's talker is exempt from the missing-checksum rule: the first two
+// characters of the address, matched exactly. A proprietary sentence ('$P...') has no
+// two-character talker and is never exempt.
+bool checksumOptional(std::string_view line, std::string_view address,
+                      std::span<const std::string> talkers) {
+    if (talkers.empty() || address.size() < 2) return false;
+    if (line[0] == '$' && address[0] == 'P') return false;
+    const std::string_view talker = address.substr(0, 2);
+    return std::any_of(talkers.begin(), talkers.end(),
+                       [&](const std::string& t) { return t == talker; });
+}
+
 }  // namespace
 
-NmeaSentence decodeNmea(std::string_view line, bool require_checksum) {
+NmeaSentence decodeNmea(std::string_view line, bool require_checksum,
+                        std::span<const std::string> checksum_optional_talkers) {
     NmeaSentence out;
     // Tolerate a terminator left on by a caller that did not frame the line.
     while (!line.empty() && (line.back() == '\n' || line.back() == '\r')) line.remove_suffix(1);
@@ -687,7 +700,7 @@ NmeaSentence decodeNmea(std::string_view line, bool require_checksum) {
         }
         has_checksum = true;
         out.checksum_ok = true;
-    } else if (require_checksum) {
+    } else if (require_checksum && !checksumOptional(line, address, checksum_optional_talkers)) {
         return fail(std::move(out), Reason::MissingChecksum,
                     "no '*hh' although this source has sent checksums");
     }

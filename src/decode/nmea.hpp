@@ -7,6 +7,7 @@
 
 #include <cstdint>
 #include <optional>
+#include <span>
 #include <string>
 #include <string_view>
 #include <variant>
@@ -156,17 +157,30 @@ struct NmeaSentence {
 // when the sentence has no checksum) and `detail` names the field. Fields the core uses (time,
 // date, position, status, fix quality, speed, heading, depth, GST sigmas) fail it (BadField).
 // `require_checksum`: a sentence without '*hh' is MissingChecksum instead of NoChecksum (see
-// NmeaStreamDecoder).
-NmeaSentence decodeNmea(std::string_view line, bool require_checksum = false);
+// NmeaStreamDecoder), unless the first two characters of its address are one of
+// `checksum_optional_talkers` (talker ids as sg::isTalkerId accepts them; a proprietary '$P...'
+// sentence has no such talker and is never exempt). A checksum that is present is verified
+// whatever the talker.
+NmeaSentence decodeNmea(std::string_view line, bool require_checksum = false,
+                        std::span<const std::string> checksum_optional_talkers = {});
 
 // decodeNmea with the state of one source (one input, one capture file): once the source has sent
 // a sentence with a correct checksum, every later sentence from it without one is rejected as
 // MissingChecksum. A receiver does not drop checksums from one sentence to the next; a corrupted
 // or lost '*' does, and would otherwise turn the checksum digits into data of the last field.
+// `checksum_optional_talkers` (the input's `checksum_optional_talkers`, docs/formats.md) are
+// exempt from that rule on this source: a multiplexer that merges a checksumming GNSS and a gyro
+// that never sends checksums onto one port (common practice on survey vessels).
 class NmeaStreamDecoder {
 public:
+    NmeaStreamDecoder() = default;
+    // Each id should satisfy sg::isTalkerId (common/nmea_talker.hpp; the parsers of the config
+    // and of `inspect` check it): any other string simply matches no sentence.
+    explicit NmeaStreamDecoder(std::vector<std::string> checksum_optional_talkers)
+        : m_optional(std::move(checksum_optional_talkers)) {}
+
     NmeaSentence decode(std::string_view line) {
-        NmeaSentence s = decodeNmea(line, m_checksummed);
+        NmeaSentence s = decodeNmea(line, m_checksummed, m_optional);
         if (s.checksum_ok) m_checksummed = true;
         return s;
     }
@@ -175,6 +189,7 @@ public:
 
 private:
     bool m_checksummed = false;
+    std::vector<std::string> m_optional;
 };
 
 // Steering and route sentences: what swathguard sends to the bridge (src/helm, docs/helm-output.md).

@@ -22,7 +22,8 @@ enum class Reason : std::uint8_t {
     FieldIgnored,     // decoded and usable, checksum correct; a field the core does not use was
                       // malformed and is null (`detail` names it): e.g. RMC variation "999.9,E"
     MissingChecksum,  // NMEA without '*hh' from a source that has sent checksums before (a
-                      // corrupted '*' would otherwise turn its checksum digits into data)
+                      // corrupted '*' would otherwise turn its checksum digits into data);
+                      // never for a talker the input lists in checksum_optional_talkers
 };
 
 inline constexpr int kReasonCount = 13;

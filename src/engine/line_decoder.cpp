@@ -26,6 +26,8 @@ LineDecoder::LineDecoder(std::vector<config::InputConfig> inputs, std::vector<de
             if (x.map == nullptr)
                 throw config::ConfigError(
                     fmt::format("input '{}': no [fieldmap.{}] table", in.name, in.fieldmap));
+        } else {
+            x.nmea = decode::NmeaStreamDecoder(in.checksum_optional_talkers);
         }
         x.counters = &m_counters[in.name];
         m_by_name.emplace(in.name, x);

@@ -87,7 +87,8 @@ private:
         const config::InputConfig* cfg = nullptr;
         const decode::FieldMap* map = nullptr;
         SourceCounters* counters = nullptr;  // this input's entry in m_counters (map: stable)
-        decode::NmeaStreamDecoder nmea;       // per-source checksum rule (decode/nmea.hpp)
+        decode::NmeaStreamDecoder nmea;       // per-source checksum rule (decode/nmea.hpp),
+                                              // with the input's checksum_optional_talkers
     };
     void decodeNmea(const ReceivedLine& line, Input& in, log::RawRow& raw, SourceCounters& c);
     void decodeFields(const ReceivedLine& line, const Input& in, log::RawRow& raw, SourceCounters& c);

@@ -151,6 +151,47 @@ TEST_F(Inspect, BadConfigNamesFileAndKey) {
     EXPECT_NE(run("inspect '" + cap.string() + "' --as nosuch", out, err), 0);
 }
 
+// A capture of a multiplexed port (common practice: GNSS with checksums, gyro HE without; the
+// checksum is NMEA 0183's XOR, computed in this file): without the option each gyro line after
+// the first GNSS checksum is missing_checksum, with --checksum-optional-talkers HE it decodes.
+TEST_F(Inspect, ChecksumOptionalTalkersOptionExemptsTheListedTalkerOnly) {
+    const std::string gga =
+        "$" + xorSealed("GPGGA,120000.00,5412.3456,N,00739.2593,E,4,14,0.7,1.2,M,45.0,M,,");
+    std::string gga_lost = gga;
+    gga_lost.erase(gga_lost.size() - 3, 1);  // its '*' lost in transit
+    std::string hdt_bad = "$" + xorSealed("HEHDT,93.2,T");
+    hdt_bad.back() = hdt_bad.back() == '0' ? '1' : '0';
+    const std::string cap = gga + "\r\n$HEHDT,93.1,T\r\n" + gga_lost + "\r\n" + hdt_bad + "\r\n";
+    const auto file = write("mux.nmea", cap);
+
+    std::vector<json> out;
+    std::string err;
+    ASSERT_EQ(run("inspect '" + file.string() + "'", out, err), 0) << err;
+    ASSERT_EQ(out.size(), 5u);
+    EXPECT_EQ(out[1]["reason"], "missing_checksum");
+    EXPECT_EQ(out[2]["reason"], "missing_checksum");
+
+    out.clear();
+    const std::string inspect = "inspect '" + file.string() + "' --checksum-optional-talkers ";
+    ASSERT_EQ(run(inspect + "HE", out, err), 0) << err;
+    ASSERT_EQ(out.size(), 5u);
+    EXPECT_EQ(out[0]["reason"], "ok");
+    EXPECT_EQ(out[1]["reason"], "no_checksum");
+    EXPECT_DOUBLE_EQ(out[1]["fields"]["heading_deg"].get<double>(), 93.1);
+    EXPECT_EQ(out[2]["reason"], "missing_checksum");  // the GNSS keeps the rule
+    EXPECT_EQ(out[3]["reason"], "bad_checksum");      // a checksum sent is still verified
+    EXPECT_EQ(out[4]["summary"]["by_reason"]["no_checksum"], 1);
+
+    // Several ids, comma-separated; a malformed one is refused, naming the option.
+    out.clear();
+    ASSERT_EQ(run(inspect + "HC,HE", out, err), 0) << err;
+    EXPECT_EQ(out[1]["reason"], "no_checksum");
+    out.clear();
+    EXPECT_NE(run(inspect + "he", out, err), 0);
+    EXPECT_NE(err.find("--checksum-optional-talkers he"), std::string::npos) << err;
+    EXPECT_TRUE(out.empty());
+}
+
 // Line numbers counted independently of the program: 1 + the number of LF bytes before the
 // line's first byte (what `grep -n` and `sed -n` number; this capture has no bare CR).
 int fileLineOf(const std::string& cap, const std::string& marker) {

@@ -8,6 +8,7 @@
 #include <cstdlib>
 #include <iterator>
 #include <string>
+#include <vector>
 
 #include "decode/nmea.hpp"
 #include "engine/line_decoder.hpp"
@@ -699,6 +700,115 @@ TEST(NmeaStream, LineDecoderKeepsTheRulePerInputAndLogsTheReasons) {
     EXPECT_EQ(c.ok, 1u);
     EXPECT_EQ(c.rejected, 1u);
     EXPECT_EQ(dec.counters().at("gyro").by_reason.at("no_checksum"), 2u);
+}
+
+// Common practice on survey vessels: a hardware NMEA multiplexer merges, onto one serial port, a
+// GNSS that sends checksums (talker GP) and a gyro that never does (talker HE, $HEHDT). The
+// checksum itself is NMEA 0183's: '*' + two hex digits, the XOR of the bytes between '$' and '*'
+// (withChecksum above, written without the library).
+TEST(NmeaStream, ChecksumOptionalTalkerOnAMultiplexedPort) {
+    const std::string gga =
+        withChecksum("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,");
+    const std::string rmc =
+        withChecksum("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W,A");
+    const std::string gyro = "$HEHDT,271.4,T";  // the gyro as it arrives: no '*hh'
+    // The GNSS's '*' corrupted in transit (its checksum digits now read as data) or lost.
+    std::string gga_star_hit = gga, gga_star_lost = gga;
+    gga_star_hit[gga.size() - 3] = ',';
+    gga_star_lost.erase(gga.size() - 3, 1);
+    // A gyro sentence with a wrong checksum: the correct one with its last hex digit changed.
+    std::string gyro_bad = withChecksum("HEHDT,271.4,T");
+    gyro_bad.back() = gyro_bad.back() == '0' ? '1' : '0';
+
+    // Default (no exemption): once the GNSS has sent a checksum, every gyro line is rejected.
+    NmeaStreamDecoder strict;
+    EXPECT_EQ(strict.decode(gyro).reason, Reason::NoChecksum);  // rule not armed yet
+    EXPECT_EQ(strict.decode(gga).reason, Reason::Ok);
+    for (int k = 0; k < 3; ++k) EXPECT_EQ(strict.decode(gyro).reason, Reason::MissingChecksum);
+    EXPECT_EQ(strict.decode(rmc).reason, Reason::Ok);
+    EXPECT_EQ(strict.decode(gyro).reason, Reason::MissingChecksum);
+
+    // checksum_optional_talkers = ["HE"]: the gyro's lines decode as they did before the rule
+    // armed (same reason, detail and value), the GNSS keeps the rule.
+    NmeaStreamDecoder mux(std::vector<std::string>{"HE"});
+    const NmeaSentence before = decodeNmea(gyro);
+    EXPECT_EQ(mux.decode(gga).reason, Reason::Ok);
+    EXPECT_TRUE(mux.checksummed());
+    for (int k = 0; k < 3; ++k) {
+        const auto h = mux.decode(gyro);
+        ASSERT_EQ(h.reason, Reason::NoChecksum) << h.detail;
+        EXPECT_EQ(h.detail, before.detail);
+        EXPECT_EQ(h.talker, "HE");
+        EXPECT_DOUBLE_EQ(std::get<Hdt>(h.data).heading_deg, 271.4);
+    }
+    EXPECT_EQ(mux.decode(rmc).reason, Reason::Ok);
+    for (const auto& bad : {gga_star_hit, gga_star_lost}) {
+        const auto g = mux.decode(bad);
+        EXPECT_EQ(g.reason, Reason::MissingChecksum) << bad;
+        EXPECT_TRUE(std::holds_alternative<std::monostate>(g.data));
+    }
+    // A checksum the gyro does send is verified: wrong is bad_checksum, right is ok.
+    const auto wrong = mux.decode(gyro_bad);
+    EXPECT_EQ(wrong.reason, Reason::BadChecksum) << gyro_bad;
+    EXPECT_TRUE(std::holds_alternative<std::monostate>(wrong.data));
+    const auto right = mux.decode(withChecksum("HEHDT,271.5,T"));
+    ASSERT_EQ(right.reason, Reason::Ok);
+    EXPECT_DOUBLE_EQ(std::get<Hdt>(right.data).heading_deg, 271.5);
+    // Only the listed talker: a magnetic compass (HC) on the same port keeps the rule, and so
+    // does a proprietary sentence, which has no two-character talker.
+    EXPECT_EQ(mux.decode("$HCHDT,270.9,T").reason, Reason::MissingChecksum);
+    EXPECT_EQ(mux.decode("$PHEXX,1").reason, Reason::MissingChecksum);
+    // The exemption does not disarm the rule for anyone else.
+    EXPECT_TRUE(mux.checksummed());
+    // The risk it takes (docs/formats.md): a GNSS sentence that loses its '*' AND has its talker
+    // id damaged into the listed one passes unchecked, its checksum digits read as the last field
+    // (GGA's reference station id). Pinned, so the documented risk is the real behaviour.
+    ASSERT_EQ(gga.substr(gga.size() - 3), "*47");  // the published example's checksum (above)
+    std::string risk = gga_star_lost;
+    risk.replace(1, 2, "HE");
+    const auto r = mux.decode(risk);
+    ASSERT_EQ(r.reason, Reason::NoChecksum) << risk;
+    EXPECT_EQ(std::get<Gga>(r.data).dgps_station, 47);
+    // The stateless decoder takes the same list.
+    const std::vector<std::string> he{"HE"};
+    EXPECT_EQ(decodeNmea(gyro, true, he).reason, Reason::NoChecksum);
+    EXPECT_EQ(decodeNmea(gga_star_hit, true, he).reason, Reason::MissingChecksum);
+}
+
+TEST(NmeaStream, LineDecoderTakesEachInputsChecksumOptionalTalkers) {
+    // The same multiplexed lines on two inputs, one with the key: record, import and replay all
+    // decode through LineDecoder, so the key of each input must reach its own decoder.
+    sg::config::InputConfig plain, mux;
+    plain.name = "plain";
+    mux.name = "mux";
+    mux.checksum_optional_talkers = {"HE"};
+    std::int64_t next_id = 1;
+    sg::engine::LineDecoder dec({plain, mux}, {}, [&] { return next_id++; });
+    const std::string gga =
+        withChecksum("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,");
+    for (const char* source : {"plain", "mux"}) {
+        for (const std::string& bytes : {gga, std::string("$HEHDT,12.5,T"), gga,
+                                         std::string("$HEHDT,12.6,T")}) {
+            sg::ReceivedLine l;
+            l.source = source;
+            l.bytes = bytes;
+            dec.onLine(l);
+        }
+    }
+    const auto batch = dec.takeBatch();
+    ASSERT_EQ(batch.raw.size(), 8u);
+    EXPECT_EQ(batch.raw[1].reason.rfind("missing_checksum", 0), 0u) << batch.raw[1].reason;
+    EXPECT_EQ(batch.raw[3].reason.rfind("missing_checksum", 0), 0u) << batch.raw[3].reason;
+    EXPECT_EQ(batch.raw[5].status, sg::log::DecodeStatus::Ok);
+    EXPECT_EQ(batch.raw[5].reason, "no_checksum");
+    EXPECT_EQ(batch.raw[7].status, sg::log::DecodeStatus::Ok);
+    ASSERT_EQ(batch.headings.size(), 2u);  // only the exempt input's gyro lines
+    EXPECT_EQ(batch.headings[0].source, "mux");
+    EXPECT_DOUBLE_EQ(*batch.headings[0].heading_deg, 12.5);
+    EXPECT_DOUBLE_EQ(*batch.headings[1].heading_deg, 12.6);
+    EXPECT_EQ(dec.counters().at("plain").by_reason.at("missing_checksum"), 2u);
+    EXPECT_EQ(dec.counters().at("mux").by_reason.at("no_checksum"), 2u);
+    EXPECT_EQ(dec.counters().at("mux").by_reason.count("missing_checksum"), 0u);
 }
 
 }  // namespace

@@ -628,6 +628,116 @@ TEST(ImportBinary, WhichPathWinsIsSaidAndABogusConfigPathIsAnError) {
     EXPECT_NE(unknown.out.find("(inputs: gnss, mag, sounder)"), std::string::npos) << unknown.out;
 }
 
+// A multiplexed port (common practice on survey vessels: a GNSS that sends checksums and a gyro
+// that never does, merged onto one serial port) captured to one file. With
+// checksum_optional_talkers = ["HE"] the gyro's lines are decoded when recorded live (file
+// reader), imported by the real binary and replayed from the config the log holds; without it
+// they are missing_checksum in all three. A checksum is NMEA 0183's XOR (nmeaWithChecksum; the
+// decode tests check that against a hand-written XOR).
+TEST(ImportBinary, MultiplexedGyroWithoutChecksumsDecodesAlikeLiveImportedAndReplayed) {
+    test::TempDir dir;
+    const std::string nav = dir.file("nav.nmea");
+    {
+        std::ofstream f(nav, std::ios::binary);
+        for (int i = 0; i < 20; ++i) {
+            std::string gga = test::gga(36000.0 + i, i * 0.01);
+            if (i == 7) gga[gga.size() - 3] = ',';  // '*' hit in transit: missing_checksum
+            f << gga << "\r\n" << test::rmc(36000.0 + i, "011226") << "\r\n";
+            char body[40];
+            std::snprintf(body, sizeof body, "HEHDT,%.1f,T", 90.0 + i * 0.5);
+            if (i == 11) {  // the gyro's one checksummed line, with a wrong checksum
+                std::string bad = decode::nmeaWithChecksum(body);
+                bad.back() = bad.back() == '0' ? '1' : '0';
+                f << bad << "\r\n";
+            } else {
+                f << "$" << body << "\r\n";  // as the gyro sends it: no '*hh'
+            }
+        }
+    }
+    auto writeConfig = [&](const std::string& name, const std::string& key) {
+        const auto cfg = dir.file(name);
+        std::ofstream c(cfg);
+        c << "[[input]]\nname = \"nav\"\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"file\"\n"
+          << "path = \"" << nav << "\"\n" << key
+          << "[[input]]\nname = \"mag\"\nkind = \"nmea\"\nrole = \"mag\"\ntransport = \"udp\"\n"
+          << "listen = \"127.0.0.1:47999\"\n"
+          << "[geomagnetic]\ninclination_deg = 66.0\nintensity_nT = 50000.0\n"
+          << "[[target]]\nname = \"t\"\nmodel = \"mass_rule\"\nmass_kg = 50.0\n"
+          << kRestOfSurvey;
+        return cfg;
+    };
+    const auto cfg_mux = writeConfig("mux.toml", "checksum_optional_talkers = [\"HE\"]\n");
+    const auto cfg_plain = writeConfig("plain.toml", "");
+
+    // Statuses and reason codes of the nav lines, in log order: "bytes|status|reason code".
+    auto statuses = [](const std::string& log) {
+        return test::shell("sqlite3 " + log +
+                           " \"select substr(bytes, 1, 6) || '|' || status || '|' || "
+                           "coalesce(substr(reason, 1, instr(reason || ':', ':') - 1), '') "
+                           "from raw_lines where source = 'nav' order by id\"");
+    };
+    auto countOf = [](const std::string& text, const std::string& what) {
+        std::size_t n = 0;
+        for (auto at = text.find(what); at != std::string::npos; at = text.find(what, at + 1)) ++n;
+        return n;
+    };
+    // Replay with the config stored in the log (no override): the decode counters of 'nav'.
+    auto replayed = [](const std::string& log) {
+        engine::LogReplay replay(log, std::nullopt);
+        replay.runToEnd();
+        return replay.pipeline().decoder().counters().at("nav").by_reason;
+    };
+    using ByReason = std::map<std::string, std::uint64_t, std::less<>>;
+    auto reasonCount = [](const ByReason& m, const char* r) {
+        const auto it = m.find(r);
+        return it == m.end() ? std::uint64_t{0} : it->second;
+    };
+
+    for (const bool exempt : {true, false}) {
+        SCOPED_TRACE(exempt ? "checksum_optional_talkers = [\"HE\"]" : "no key");
+        const auto& cfg = exempt ? cfg_mux : cfg_plain;
+        const auto imported = dir.file(exempt ? "mux.sglog" : "plain.sglog");
+        const auto r = runImport("--config " + cfg + " --log " + imported);
+        ASSERT_EQ(r.rc, 0) << r.out;
+        const std::string st = statuses(imported);
+        // The GNSS keeps the rule; the gyro's one checksum is verified.
+        EXPECT_EQ(countOf(st, "$GPGGA|rejected|missing_checksum"), 1u) << st;
+        EXPECT_EQ(countOf(st, "$HEHDT|rejected|bad_checksum"), 1u) << st;
+        EXPECT_EQ(countOf(st, "$HEHDT|ok|no_checksum"), exempt ? 19u : 0u) << st;
+        EXPECT_EQ(countOf(st, "$HEHDT|rejected|missing_checksum"), exempt ? 0u : 19u) << st;
+        EXPECT_EQ(test::shell("sqlite3 " + imported + " 'select count(*) from headings'"),
+                  exempt ? "19" : "0");
+        if (exempt) {
+            EXPECT_EQ(test::shell("sqlite3 " + imported +
+                                  " \"select printf('%.1f', min(heading_deg)) || '|' || "
+                                  "printf('%.1f', max(heading_deg)) from headings\""),
+                      "90.0|99.5");
+        }
+
+        // Live: the same file through a file reader and the record path's decoder.
+        const auto live = dir.file(exempt ? "mux_live.sglog" : "plain_live.sglog");
+        {
+            const auto table = config::parseFile(cfg);
+            auto inputs = config::parseInputs(config::Section(table, cfg));
+            inputs.resize(1);  // nav only: no UDP socket for the unused mag input
+            boost::asio::io_context io;
+            io::LogWriter w(live, {100, false});
+            io::Recorder rec(io, inputs, {}, w);
+            rec.start();
+            ASSERT_TRUE(test::runUntil(io, [&] { return rec.allFinished(); }));
+            rec.stop();
+            w.stop();
+        }
+        EXPECT_EQ(statuses(live), st);
+
+        // Replay: the key comes from the config stored with the log.
+        const auto by = replayed(imported);
+        EXPECT_EQ(reasonCount(by, "no_checksum"), exempt ? 19u : 0u);
+        EXPECT_EQ(reasonCount(by, "missing_checksum"), exempt ? 1u : 20u);
+        EXPECT_EQ(reasonCount(by, "bad_checksum"), 1u);
+    }
+}
+
 TEST(ImportBinary, DemoCapturesWithUntimedGyroAndSounderReplayAsTheLiveDemo) {
     // The simulator writes the demo survey to files; the gyro (HDT) and sounder (DPT) files carry
     // no time. Imported (those two placed in receive order over the GNSS span) and replayed with

@@ -161,4 +161,56 @@ TEST(InputConfig, MissingRequiredKeyNamesIt) {
     EXPECT_NE(msg.find("input[0].device"), std::string::npos) << msg;
 }
 
+// checksum_optional_talkers: the talkers a multiplexer merges without checksums onto an input
+// whose other talkers send them (common practice; the rule and its exemption: docs/formats.md).
+TEST(InputConfig, ChecksumOptionalTalkersAreReadPerNmeaInput) {
+    const std::string head =
+        "[[input]]\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"file\"\npath = \"x\"\n";
+    auto t = parseText(head + "name = \"mux\"\nchecksum_optional_talkers = [\"HE\", \"U1\"]\n" +
+                           head + "name = \"gnss\"\n" + head +
+                           "name = \"none\"\nchecksum_optional_talkers = []\n",
+                       "survey.toml");
+    Section root(t, "survey.toml");
+    const auto in = parseInputs(root);
+    ASSERT_EQ(in.size(), 3u);
+    EXPECT_EQ(in[0].checksum_optional_talkers, (std::vector<std::string>{"HE", "U1"}));
+    EXPECT_TRUE(in[1].checksum_optional_talkers.empty());  // default: the rule for every talker
+    EXPECT_TRUE(in[2].checksum_optional_talkers.empty());
+}
+
+TEST(InputConfig, BadChecksumOptionalTalkersNameFileKeyAndLine) {
+    const std::string kWhere = "survey.toml:6: key 'input[0].checksum_optional_talkers'";
+    struct Case {
+        std::string value;  // the TOML value of the key (line 6 of the file)
+        std::string found;  // what the message must say it found
+    };
+    const std::string head =
+        "[[input]]\nname = \"mux\"\nkind = \"nmea\"\nrole = \"gnss\"\ntransport = \"udp\"\n";
+    const Case cases[] = {
+        {"[\"he\"]", "found \"he\""},          // talker ids are upper case (NMEA 0183 address)
+        {"[\"HEX\"]", "found \"HEX\""},        // a talker id is two characters
+        {"[\"H\"]", "found \"H\""},
+        {"\"HE\"", "found \"HE\""},            // not a list
+        {"{ id = \"HE\" }", "found a table"},  // not a list either
+        {"[\"HE\", 7]", "found integer 7"},    // an element that is no string
+        {"[\"HE\", \"HE\"]", "found \"HE\""},  // listed twice
+        {"[\"PG\"]", "found \"PG\""},          // '$P' starts a proprietary sentence, no talker
+    };
+    for (const auto& c : cases) {
+        const std::string toml =
+            head + "checksum_optional_talkers = " + c.value + "\nlisten = \"0.0.0.0:5005\"\n";
+        const auto msg = errorOf(toml);
+        EXPECT_NE(msg.find(kWhere), std::string::npos) << toml << "\n-> " << msg;
+        EXPECT_NE(msg.find(c.found), std::string::npos) << toml << "\n-> " << msg;
+        EXPECT_NE(msg.find("talker ids"), std::string::npos) << msg;
+    }
+    // A field-map input has no NMEA talkers: the key is refused there.
+    const auto msg = errorOf(
+        "[[input]]\nname = \"m\"\nkind = \"fieldmap\"\nfieldmap = \"sgm\"\nrole = \"mag\"\n"
+        "checksum_optional_talkers = [\"HE\"]\ntransport = \"file\"\npath = \"x\"\n"
+        "[fieldmap.sgm]\nstart = \"SGM\"\nfield_nT = 3\n");
+    EXPECT_NE(msg.find(kWhere), std::string::npos) << msg;
+    EXPECT_NE(msg.find("kind \"fieldmap\""), std::string::npos) << msg;
+}
+
 }  // namespace
