@@ -32,6 +32,7 @@ struct ReplayOptions {
     bool json = false;
     std::string export_dir;
     bool no_picks = false;  // --no-picks: this run without anomaly picks and verification strip
+    double status_every_s = 0.0;  // --status-every: status line period, survey clock (s); 0 = off
 };
 
 // "max" -> 0 (no pacing), else a positive factor.
@@ -105,6 +106,10 @@ int runReplay(ReplayOptions& o) {
         auto last_publish = wall0;
         const std::int64_t step = std::max<std::int64_t>(1, replay.totalLines() / 10);
         std::int64_t next_print = step;
+        // --status-every: status lines at fixed steps of the survey clock, whatever the speed, so
+        // the same log always prints the same lines (a trainer's record of the day; tests).
+        const auto every_ns = static_cast<TimeNs>(o.status_every_s * 1e9);
+        TimeNs next_status = replay.surveyFirst() + every_ns;
         const auto now_log = [&] { return replay.surveyNow() != 0 ? replay.surveyNow() : replay.surveyFirst(); };
         const auto seekTo = [&](TimeNs target) {
             target = std::clamp(target, replay.surveyFirst(), replay.surveyLast());
@@ -159,8 +164,18 @@ int runReplay(ReplayOptions& o) {
                 }
             }
             const bool at_end = !replay.nextTime().has_value();
+            const auto printDueStatus = [&] {
+                if (link.hasScreen() || every_ns <= 0 || now_log() < next_status) return;
+                std::printf("%s | %s\n", utcText(now_log()).c_str(),
+                            engineStatus(replay.pipeline().engine()).c_str());
+                std::fflush(stdout);
+                while (next_status <= now_log()) next_status += every_ns;
+            };
             if (!paused && !at_end) {
-                if (speed == 0.0) {
+                if (speed == 0.0 && every_ns > 0 && !link.hasScreen()) {
+                    replay.runUntilSurvey(next_status);
+                    printDueStatus();
+                } else if (speed == 0.0) {
                     for (int i = 0; i < 20000 && replay.step(); ++i) {
                     }
                     if (!link.hasScreen() && static_cast<std::int64_t>(replay.linesFed()) >= next_print) {
@@ -175,7 +190,9 @@ int runReplay(ReplayOptions& o) {
                     const double wall_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - pace_wall).count();
                     replay.runUntilSurvey(pace_log + static_cast<TimeNs>(wall_s * speed * 1e9));
                     const auto now = std::chrono::steady_clock::now();
-                    if (!link.hasScreen() && now - last_print >= std::chrono::seconds(1)) {
+                    if (every_ns > 0) {
+                        printDueStatus();
+                    } else if (!link.hasScreen() && now - last_print >= std::chrono::seconds(1)) {
                         last_print = now;
                         std::printf("%s | %s\n", utcText(now_log()).c_str(),
                                     engineStatus(replay.pipeline().engine()).c_str());
@@ -257,6 +274,11 @@ void addReplayCommands(CLI::App& app) {
     replay->add_option("--config", ro->config, "Survey config to use instead of the one in the log");
     replay->add_flag("--no-picks", ro->no_picks,
                      "Replay without anomaly picks and the verification strip (as [picks] enabled = false)");
+    replay->add_option("--status-every", ro->status_every_s,
+                       "Without a screen: a status line every this many seconds of survey time, "
+                       "at any speed (default: every wall second when paced, every 10 % of the "
+                       "log at max)")
+        ->check(CLI::PositiveNumber);
     addScreenOptions(*replay, ro->screen);
     replay->callback([ro] { runReplay(*ro); });
 

@@ -5,6 +5,8 @@
 
 #include <fmt/format.h>
 
+#include "engine/alarm_text.hpp"
+
 namespace sg::app {
 
 std::string utcText(TimeNs utc_ns) {
@@ -33,13 +35,14 @@ std::string engineStatus(const engine::SurveyEngine& e) {
         out += " | no alarms";
     } else {
         out += " |";
-        for (const auto* ep : active) {
-            const auto& c = e.checks().check(ep->check);
-            // Words a surveyor reads, the value rounded to what it means (one table, src/checks).
-            out += fmt::format(" {}{} {}: {}", ep->ack_ns ? "" : "*",
-                               c.level() == checks::Level::kAlarm ? "ALARM" : "warn", checks::checkWords(ep->check),
-                               checks::checkValueText(ep->check, c.lastValue().value_or(0.0)));
-        }
+        // Each open episode as the screen's banner and alarm list state it: its worst level and the
+        // one sentence of engine::alarmStatement (a forming gap with its place and width). Never
+        // the check's last value: a held alarm outlives the condition that raised it.
+        const auto& spot = e.formingGapSpot();
+        for (const auto* ep : active)
+            out += fmt::format(" {}{} {}", ep->ack_ns ? "" : "*",
+                               ep->peak_level == checks::Level::kAlarm ? "ALARM" : "warn",
+                               engine::alarmStatement(*ep, spot ? &*spot : nullptr));
     }
     return out;
 }

@@ -11,7 +11,6 @@
 #include <cmath>
 #include <cstdio>
 #include <string>
-#include <string_view>
 #include <vector>
 
 #include "ui/panel.hpp"
@@ -140,11 +139,11 @@ public:
             // The words in the room before the buttons: as large as fits (1.8x down to 1.0x the
             // font) on one line or wrapped onto more; if even 1.0x does not fit, the last line
             // that fits ends in "..." and the whole text shows on hover.
-            std::string title = "ALARM  " + newest->words + ": " + newest->value_text;
-            // A forming gap says where: line, side, width and distance along the line.
-            static constexpr std::string_view kAt = "Forming gap on ";
-            if (newest->episode.check == "forming_gap" && newest->text.rfind(kAt, 0) == 0)
-                title = "ALARM  Gap forming: " + newest->text.substr(kAt.size());
+            // The alarm's one sentence (engine::alarmStatement, the same the headless status line
+            // prints): a forming gap says where, line, side, width and distance along the line.
+            std::string title = "ALARM  " + (newest->text.empty()
+                                                 ? newest->words + ": " + newest->value_text
+                                                 : newest->text);
             if (alarms_unacked > 1) title += "   (+" + std::to_string(alarms_unacked - 1) + " more)";
             const float tx = sp.x + sym + 16 * sc;
             const float room = std::max(0.0f, words_end - tx);

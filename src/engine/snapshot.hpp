@@ -134,8 +134,8 @@ struct GapView {
     PointEN centroid;
 };
 
-// A forming gap located (docs/checks.md, forming_gap): drawn as a marker on the plan and named in
-// the banner while its alarm is active.
+// A forming gap located (docs/checks.md, forming_gap): drawn as a marker on the plan while its
+// check is above ok.
 struct FormingGapView {
     bool active = false;          // the forming_gap check is above ok and the gap is located
     std::string line;             // planned line name, e.g. "L07"
@@ -144,7 +144,7 @@ struct FormingGapView {
     double along_m = 0.0;         // along the line from its start (m)
     PointEN at;                   // middle of the gap, survey CRS
     double lon_deg = 0.0, lat_deg = 0.0;
-    std::string text;             // "Forming gap on line L07, starboard, 6.2 m wide, at 840 m along the line"
+    // Its words are the alarm's (AlarmView::text, engine::alarmStatement), not kept here.
 };
 
 struct InfillView {
@@ -260,7 +260,8 @@ struct AlarmView {
     std::string unit;          // of peak_value
     std::string words;         // the check in a surveyor's words (checks::checkWords)
     std::string value_text;    // the peak in words and rounded, e.g. "7.0 m", "GPS fix"
-    std::string text;          // one line for the operator: words, value and detail
+    std::string text;          // the one sentence for the operator (engine::alarmStatement): the
+                               // banner shows it, the headless status line prints the same
     // Where the vessel's sensors were (their mean position) when the episode started, when known
     // (the forming-gap key of the screen jumps there).
     std::optional<PointEN> where;

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "coverage/gaps.hpp"
+#include "engine/alarm_text.hpp"
 #include "engine/picks_summary.hpp"
 #include "engine/snapshot_picks.hpp"
 
@@ -339,7 +340,6 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
         f.at = {spot->at.e_m, spot->at.n_m};
         f.lon_deg = spot->lon_deg;
         f.lat_deg = spot->lat_deg;
-        f.text = "Forming gap on " + spot->text();
     }
 
     // Plots, in the order the screen expects.
@@ -444,13 +444,8 @@ std::shared_ptr<const Snapshot> SnapshotBuilder::build(bool force_gaps) {
         a.unit = chk.check(ep.check).unit();
         a.words = std::string(checks::checkWords(ep.check));
         a.value_text = checks::checkValueText(ep.check, ep.peak_value);
-        a.text = a.words + ": " + a.value_text;
-        if (!ep.detail.empty()) a.text += " - " + ep.detail;
-        if (ep.check == "forming_gap") {
-            // Located: the live place while the episode is open, else where it was raised.
-            if (!ep.end_ns && s.forming_gap.active) a.text = s.forming_gap.text;
-            else if (!ep.detail.empty()) a.text = "Forming gap on " + ep.detail;
-        }
+        // The same sentence as the headless status line (one function, alarm_text.hpp).
+        a.text = alarmStatement(ep, spot ? &*spot : nullptr);
         if (auto it = m_episode_where.find(ep.id); it != m_episode_where.end()) a.where = it->second;
         else if (here && !ep.end_ns) a.where = m_episode_where[ep.id] = *here;
         (ep.end_ns ? past : active).push_back(std::move(a));
